@@ -1,0 +1,405 @@
+//! Errors: one [`Error`] type wrapping an [`ErrorKind`] that carries where the
+//! problem is (file, line, column, option) and what would fix it.
+//!
+//! Messages lead with *where*, then *what*, then the offending value, then the
+//! fix, so that a notebook cell or a terminal shows the whole story on one line:
+//!
+//! ```text
+//! parts.csv: line 14, column "bore_um" (3): cannot read "12a" as a number; correct the cell, or drop the column with `drop`
+//! training options: learning_rate = -0.1: must be a finite number greater than 0
+//! ```
+
+use std::fmt;
+use std::io;
+use std::path::PathBuf;
+
+/// The result type of every fallible stratanet function.
+pub type Result<T, E = Error> = std::result::Result<T, E>;
+
+/// A stratanet error. Cheap to move (one box); see [`Error::kind`] for details.
+pub struct Error(Box<ErrorKind>);
+
+/// What went wrong, with the context needed to find and fix it.
+#[non_exhaustive]
+#[derive(Debug)]
+pub enum ErrorKind {
+    /// Reading or writing a file failed.
+    Io {
+        /// The file.
+        path: PathBuf,
+        /// The operation, e.g. "reading" or "writing".
+        action: &'static str,
+        /// The operating system's error.
+        source: io::Error,
+    },
+    /// The CSV reader itself failed (bad UTF-8, an unterminated quote, ...).
+    Csv {
+        /// The file (or a source name for in-memory text).
+        path: PathBuf,
+        /// The 1-based line, when known.
+        line: Option<u64>,
+        /// The reader's error.
+        source: csv::Error,
+    },
+    /// A cell could not be read as what its column needs.
+    BadValue {
+        /// The file.
+        path: PathBuf,
+        /// The 1-based line in the file.
+        line: u64,
+        /// The column's header name.
+        column: String,
+        /// The column's 0-based position in the header.
+        index: usize,
+        /// The cell's text.
+        value: String,
+        /// What the cell should have been and how to fix it.
+        reason: String,
+    },
+    /// A cell is missing (empty, `NA`, `NaN`, `?`, ...).
+    MissingValue {
+        /// The file.
+        path: PathBuf,
+        /// The 1-based line in the file.
+        line: u64,
+        /// The column's header name.
+        column: String,
+        /// The column's 0-based position in the header.
+        index: usize,
+        /// The cell's text (possibly empty).
+        value: String,
+    },
+    /// A named column does not exist.
+    MissingColumn {
+        /// The file (or model) that lacks it.
+        path: PathBuf,
+        /// The name asked for.
+        column: String,
+        /// The names that do exist.
+        available: Vec<String>,
+    },
+    /// Two header cells carry the same name.
+    DuplicateColumn {
+        /// The file.
+        path: PathBuf,
+        /// The repeated name.
+        column: String,
+        /// 0-based positions of the first and second occurrence.
+        positions: (usize, usize),
+    },
+    /// A data row has a different number of cells than the header.
+    RaggedRow {
+        /// The file.
+        path: PathBuf,
+        /// The 1-based line in the file.
+        line: u64,
+        /// Cells in the header.
+        expected: usize,
+        /// Cells in this row.
+        found: usize,
+    },
+    /// The file has no header (it is empty).
+    EmptyFile {
+        /// The file.
+        path: PathBuf,
+    },
+    /// The file has a header but no data rows (or none left after dropping).
+    NoRows {
+        /// The file.
+        path: PathBuf,
+        /// Why there are no rows.
+        reason: String,
+    },
+    /// The target column holds only one class.
+    SingleClass {
+        /// The file.
+        path: PathBuf,
+        /// The target column.
+        column: String,
+        /// The one class present.
+        class: String,
+    },
+    /// An option is outside its valid range.
+    InvalidOption {
+        /// The option's name as the user wrote it (`learning_rate`, `--epochs`).
+        name: String,
+        /// The value given.
+        value: String,
+        /// The valid range or the fix.
+        reason: String,
+    },
+    /// Arrays whose sizes must agree do not.
+    ShapeMismatch {
+        /// What was being checked.
+        what: String,
+        /// The expected (rows, columns).
+        expected: (usize, usize),
+        /// The found (rows, columns).
+        found: (usize, usize),
+    },
+    /// Training produced a loss that is not finite.
+    Diverged {
+        /// The 1-based epoch at which it happened.
+        epoch: usize,
+        /// The learning rate in force then.
+        learning_rate: f64,
+        /// The non-finite loss.
+        loss: f64,
+    },
+    /// Input that is well-formed but unusable (e.g. a fold with a single class).
+    InvalidInput {
+        /// What was being done.
+        what: String,
+        /// Why it cannot be done, and the fix.
+        reason: String,
+    },
+    /// A model file is malformed or inconsistent.
+    ModelFile {
+        /// The file.
+        path: PathBuf,
+        /// What is wrong with it.
+        reason: String,
+    },
+}
+
+impl Error {
+    /// Wraps a kind.
+    pub fn new(kind: ErrorKind) -> Error {
+        Error(Box::new(kind))
+    }
+
+    /// The kind of error, with its context.
+    pub fn kind(&self) -> &ErrorKind {
+        &self.0
+    }
+
+    /// Unwraps the kind.
+    pub fn into_kind(self) -> ErrorKind {
+        *self.0
+    }
+
+    /// Is this an operating-system input/output failure?
+    pub fn is_io(&self) -> bool {
+        matches!(*self.0, ErrorKind::Io { .. })
+    }
+
+    /// Shorthand for [`ErrorKind::InvalidOption`].
+    pub fn option(name: impl Into<String>, value: impl fmt::Display, reason: impl Into<String>) -> Error {
+        Error::new(ErrorKind::InvalidOption {
+            name: name.into(),
+            value: value.to_string(),
+            reason: reason.into(),
+        })
+    }
+
+    /// Shorthand for [`ErrorKind::InvalidInput`].
+    pub fn input(what: impl Into<String>, reason: impl Into<String>) -> Error {
+        Error::new(ErrorKind::InvalidInput {
+            what: what.into(),
+            reason: reason.into(),
+        })
+    }
+
+    /// Shorthand for [`ErrorKind::ShapeMismatch`].
+    pub fn shape(what: impl Into<String>, expected: (usize, usize), found: (usize, usize)) -> Error {
+        Error::new(ErrorKind::ShapeMismatch {
+            what: what.into(),
+            expected,
+            found,
+        })
+    }
+
+    /// Shorthand for [`ErrorKind::Io`].
+    pub fn io(path: impl Into<PathBuf>, action: &'static str, source: io::Error) -> Error {
+        Error::new(ErrorKind::Io {
+            path: path.into(),
+            action,
+            source,
+        })
+    }
+
+    /// Shorthand for [`ErrorKind::ModelFile`].
+    pub fn model_file(path: impl Into<PathBuf>, reason: impl Into<String>) -> Error {
+        Error::new(ErrorKind::ModelFile {
+            path: path.into(),
+            reason: reason.into(),
+        })
+    }
+}
+
+fn list(names: &[String]) -> String {
+    const MAX: usize = 30;
+    let mut out: Vec<&str> = names.iter().take(MAX).map(String::as_str).collect();
+    if names.len() > MAX {
+        out.push("...");
+    }
+    out.join(", ")
+}
+
+impl fmt::Display for Error {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match &*self.0 {
+            ErrorKind::Io {
+                path,
+                action,
+                source,
+            } => write!(f, "{}: {action} failed: {source}", path.display()),
+            ErrorKind::Csv { path, line, source } => {
+                write!(f, "{}", path.display())?;
+                if let Some(line) = line {
+                    write!(f, ": line {line}")?;
+                }
+                let text = source.to_string();
+                if text.contains("invalid UTF-8") {
+                    write!(f, ": the file is not valid UTF-8; save it as UTF-8 text")
+                } else {
+                    write!(f, ": cannot parse as CSV: {text}")
+                }
+            }
+            ErrorKind::BadValue {
+                path,
+                line,
+                column,
+                index,
+                value,
+                reason,
+            } => write!(
+                f,
+                "{}: line {line}, column \"{column}\" ({index}): {reason} (found \"{value}\")",
+                path.display()
+            ),
+            ErrorKind::MissingValue {
+                path,
+                line,
+                column,
+                index,
+                value,
+            } => write!(
+                f,
+                "{}: line {line}, column \"{column}\" ({index}): missing value \"{value}\"; fill the cell, or pass the option missing = drop (`--missing drop`) to drop rows with missing cells",
+                path.display()
+            ),
+            ErrorKind::MissingColumn {
+                path,
+                column,
+                available,
+            } => write!(
+                f,
+                "{}: no column \"{column}\"; columns are: {}",
+                path.display(),
+                list(available)
+            ),
+            ErrorKind::DuplicateColumn {
+                path,
+                column,
+                positions,
+            } => write!(
+                f,
+                "{}: line 1: column name \"{column}\" appears twice (columns {} and {}); give every column a distinct name",
+                path.display(),
+                positions.0,
+                positions.1
+            ),
+            ErrorKind::RaggedRow {
+                path,
+                line,
+                expected,
+                found,
+            } => write!(
+                f,
+                "{}: line {line}: found {found} cells but the header has {expected}; every row needs one cell per column (check for a stray or missing comma)",
+                path.display()
+            ),
+            ErrorKind::EmptyFile { path } => write!(
+                f,
+                "{}: the file is empty; a header row naming the columns is needed, then one row per sample",
+                path.display()
+            ),
+            ErrorKind::NoRows { path, reason } => write!(f, "{}: {reason}", path.display()),
+            ErrorKind::SingleClass {
+                path,
+                column,
+                class,
+            } => write!(
+                f,
+                "{}: target column \"{column}\" holds only one class (\"{class}\"); a classifier needs at least two classes",
+                path.display()
+            ),
+            ErrorKind::InvalidOption {
+                name,
+                value,
+                reason,
+            } => write!(f, "option {name} = {value}: {reason}"),
+            ErrorKind::ShapeMismatch {
+                what,
+                expected,
+                found,
+            } => write!(
+                f,
+                "{what}: expected {} rows x {} columns, found {} x {}",
+                expected.0, expected.1, found.0, found.1
+            ),
+            ErrorKind::Diverged {
+                epoch,
+                learning_rate,
+                loss,
+            } => write!(
+                f,
+                "training diverged at epoch {epoch}: the loss became {loss} with learning_rate {learning_rate}; try a smaller learning_rate (e.g. a tenth), standardised inputs, or gradient-friendlier activations"
+            ),
+            ErrorKind::InvalidInput { what, reason } => write!(f, "{what}: {reason}"),
+            ErrorKind::ModelFile { path, reason } => {
+                write!(f, "{}: not a usable model file: {reason}", path.display())
+            }
+        }
+    }
+}
+
+// Debug is what `.unwrap()` and a notebook's fallback display show: make it
+// the readable message plus the kind's name, not a nested struct dump.
+impl fmt::Debug for Error {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        let name = format!("{:?}", self.0);
+        let name = name.split([' ', '{', '(']).next().unwrap_or("Error");
+        write!(f, "Error({name}: {self})")
+    }
+}
+
+impl std::error::Error for Error {
+    fn source(&self) -> Option<&(dyn std::error::Error + 'static)> {
+        match &*self.0 {
+            ErrorKind::Io { source, .. } => Some(source),
+            ErrorKind::Csv { source, .. } => Some(source),
+            _ => None,
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn option_message_names_the_option_and_range() {
+        let e = Error::option("learning_rate", -0.1, "must be a finite number greater than 0");
+        assert_eq!(
+            e.to_string(),
+            "option learning_rate = -0.1: must be a finite number greater than 0"
+        );
+        assert_eq!(
+            format!("{e:?}"),
+            "Error(InvalidOption: option learning_rate = -0.1: must be a finite number greater than 0)"
+        );
+    }
+
+    #[test]
+    fn long_column_lists_are_cut() {
+        let names: Vec<String> = (0..40).map(|i| format!("c{i}")).collect();
+        let e = Error::new(ErrorKind::MissingColumn {
+            path: "a.csv".into(),
+            column: "x".into(),
+            available: names,
+        });
+        assert!(e.to_string().ends_with("c29, ..."));
+    }
+}

@@ -1,0 +1,32 @@
+//! # stratanet
+//!
+//! Fit, validate and chart small multi-layer perceptrons (networks of a few
+//! layers trained by backpropagation) on tabular measurements, from an evcxr
+//! Jupyter notebook, plain Rust, or the `stratanet` command line.
+//!
+//! Every random draw comes from a generator you pass in ([`seeded_rng`]), so
+//! the same data, options and seed give bit-identical weights, metrics and
+//! charts on any number of threads.
+//!
+//! ## Module map
+//! - [`data`]: tables from CSV or arrays, scaling, splits and folds.
+//! - [`network`]: layers, activations, output heads, initialisation, prediction.
+//! - [`train`]: losses, optimisers, schedules, early stopping, gradient checks.
+//! - [`error`]: the [`Error`] type with file, line, column and fix.
+//! - [`rng`]: the seeded ChaCha8 generator and portable draws.
+#![warn(missing_docs)]
+#![doc(test(attr(deny(warnings))))]
+
+pub mod data;
+pub mod error;
+pub mod network;
+pub mod rng;
+pub mod train;
+pub mod validate;
+pub mod chart;
+
+pub use error::{Error, ErrorKind, Result};
+pub use rng::seeded_rng;
+
+pub use ndarray;
+pub use rand;

@@ -1,0 +1,1 @@
+//! Classification and regression metrics.

@@ -1,0 +1,3 @@
+//! Validation: metrics on labelled sets and statistical tests for comparing models.
+pub mod metrics;
+pub mod stats;

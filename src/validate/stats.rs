@@ -1,0 +1,1 @@
+//! Distributions and tests used to compare models.
