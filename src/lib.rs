@@ -21,6 +21,7 @@ pub mod data;
 pub mod error;
 pub mod network;
 pub mod rng;
+pub mod prelude;
 pub mod train;
 pub mod validate;
 pub mod chart;

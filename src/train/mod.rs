@@ -1,1 +1,499 @@
-//! (in progress)
+//! Training by backpropagation and stochastic gradient descent.
+//!
+//! [`train`] runs mini-batch descent on one network with the options in
+//! [`TrainingOptions`]: online updates (batch 1), mini-batches or full batch;
+//! plain, momentum, Nesterov or Adam updates; a learning-rate schedule; L2
+//! and L1 penalties; shuffling every epoch; and early stopping on validation
+//! rows with the best weights restored. The per-epoch history goes into a
+//! [`TrainingReport`].
+//!
+//! **Reported losses.** `training_loss` of an epoch is the mean of the
+//! per-row losses computed during that epoch's forward passes, each before
+//! its batch's update (the running mean; it costs no extra pass).
+//! `validation_loss` is the mean loss over the validation rows after the
+//! epoch. Neither includes the penalty terms.
+
+pub(crate) mod engine;
+mod gradcheck;
+mod loss;
+mod options;
+
+pub use gradcheck::{check_gradients, GradientCheck};
+pub use loss::Loss;
+pub use options::{EarlyStopping, Optimiser, Schedule, TrainingOptions};
+
+use crate::data::{Dataset, Target};
+use crate::error::{Error, ErrorKind, Result};
+use crate::network::{Head, Network, Precision, Real};
+use crate::rng;
+use engine::{evaluate, Backprop, Forward, Params};
+use ndarray::{Array2, ArrayView2};
+use rand::RngCore;
+use serde::{Deserialize, Serialize};
+use std::time::Instant;
+
+/// One epoch of the training history.
+#[derive(Clone, Debug, Serialize, Deserialize)]
+pub struct EpochRecord {
+    /// The epoch, from 1.
+    pub epoch: usize,
+    /// Mean training loss during the epoch.
+    pub training_loss: f64,
+    /// Mean validation loss after the epoch.
+    pub validation_loss: Option<f64>,
+    /// Share of validation rows classified correctly after the epoch.
+    pub validation_accuracy: Option<f64>,
+    /// The learning rate used in the epoch.
+    pub learning_rate: f64,
+    /// Seconds since training started (wall clock; not part of equality, and
+    /// never shown in default displays, since it differs between runs).
+    pub elapsed_seconds: f64,
+}
+
+impl PartialEq for EpochRecord {
+    fn eq(&self, other: &Self) -> bool {
+        self.epoch == other.epoch
+            && self.training_loss.to_bits() == other.training_loss.to_bits()
+            && self.validation_loss.map(f64::to_bits) == other.validation_loss.map(f64::to_bits)
+            && self.validation_accuracy.map(f64::to_bits)
+                == other.validation_accuracy.map(f64::to_bits)
+            && self.learning_rate.to_bits() == other.learning_rate.to_bits()
+    }
+}
+
+/// What happened in training.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct TrainingReport {
+    /// One record per epoch run.
+    pub history: Vec<EpochRecord>,
+    /// Epochs run.
+    pub epochs_run: usize,
+    /// The epoch whose weights were kept (the best validation loss with early
+    /// stopping or validation rows; otherwise the last epoch).
+    pub best_epoch: usize,
+    /// The best validation loss, when there were validation rows.
+    pub best_validation_loss: Option<f64>,
+    /// Whether early stopping ended training before the last epoch.
+    pub stopped_early: bool,
+    /// The loss that was minimised.
+    pub loss: Loss,
+}
+
+impl TrainingReport {
+    /// Training loss per epoch.
+    pub fn training_losses(&self) -> Vec<f64> {
+        self.history.iter().map(|e| e.training_loss).collect()
+    }
+
+    /// Validation loss per epoch (empty without validation rows).
+    pub fn validation_losses(&self) -> Vec<f64> {
+        self.history.iter().filter_map(|e| e.validation_loss).collect()
+    }
+
+    /// The last epoch's training loss.
+    pub fn final_training_loss(&self) -> f64 {
+        self.history.last().map_or(f64::NAN, |e| e.training_loss)
+    }
+}
+
+/// Encodes a target for a network head: one-hot rows for softmax, a 0/1
+/// column for a single logistic output (class 1 is the positive class), the
+/// values themselves for regression.
+///
+/// # Errors
+/// When the head and target do not fit (e.g. softmax with the wrong number
+/// of outputs, or a logistic output for more than two classes).
+pub fn encode_target(target: &Target, head: Head, outputs: usize) -> Result<Array2<f64>> {
+    match target {
+        Target::Classes { labels, names } => {
+            let k = names.len();
+            match head {
+                Head::Softmax if outputs == k => {
+                    let mut y = Array2::zeros((labels.len(), k));
+                    for (i, &l) in labels.iter().enumerate() {
+                        y[[i, l]] = 1.0;
+                    }
+                    Ok(y)
+                }
+                Head::Logistic if outputs == 1 && k == 2 => Ok(Array2::from_shape_fn(
+                    (labels.len(), 1),
+                    |(i, _)| labels[i] as f64,
+                )),
+                _ => Err(Error::input(
+                    "network and target",
+                    format!(
+                        "a {} head with {outputs} outputs cannot predict {k} classes; use softmax with {k} outputs{}",
+                        head.name(),
+                        if k == 2 { " or logistic with 1 output" } else { "" }
+                    ),
+                )),
+            }
+        }
+        Target::Values { values, .. } => {
+            if values.ncols() != outputs {
+                return Err(Error::shape(
+                    "targets for the network's outputs",
+                    (values.nrows(), outputs),
+                    values.dim(),
+                ));
+            }
+            Ok(values.clone())
+        }
+    }
+}
+
+/// Trains `network` on `data` (features already scaled as wanted), stopping
+/// early on `validation` when the options ask for it.
+///
+/// # Errors
+/// Invalid options, mismatched shapes, or divergence (a non-finite loss).
+///
+/// # Example
+/// ```
+/// use stratanet::prelude::*;
+/// use stratanet::ndarray::array;
+/// let x = array![[0.0, 0.0], [0.0, 1.0], [1.0, 0.0], [1.0, 1.0]];
+/// let data = Dataset::classification(x, vec![0, 1, 1, 1], vec!["no".into(), "yes".into()])?;
+/// let mut rng = seeded_rng(3);
+/// let mut net = Network::new(&[2, 1], Activation::Identity, Head::Logistic, Init::Auto, &mut rng)?;
+/// let options = TrainingOptions { epochs: 2000, batch_size: 4, learning_rate: 0.5,
+///     optimiser: Optimiser::Sgd, early_stopping: None, ..Default::default() };
+/// let report = train(&mut net, &data, None, &options, &mut rng)?;
+/// assert_eq!(net.predict_classes(data.x())?, vec![0, 1, 1, 1]); // a single unit fits OR
+/// assert!(report.final_training_loss() < 0.1);
+/// # Ok::<(), stratanet::Error>(())
+/// ```
+pub fn train<R: RngCore + ?Sized>(
+    network: &mut Network,
+    data: &Dataset,
+    validation: Option<&Dataset>,
+    options: &TrainingOptions,
+    rng: &mut R,
+) -> Result<TrainingReport> {
+    let y = encode_target(&data.target, network.head(), network.n_outputs())?;
+    let val = match validation {
+        Some(v) => Some((
+            v.features.view(),
+            encode_target(&v.target, network.head(), network.n_outputs())?,
+        )),
+        None => None,
+    };
+    let classify = matches!(data.target, Target::Classes { .. });
+    let val_ref = val.as_ref().map(|(x, y)| (x.view(), y.view()));
+    train_arrays_inner(network, data.features.view(), y.view(), val_ref, classify, options, rng)
+}
+
+/// Trains on plain arrays: `x` rows of inputs and `y` rows of targets in the
+/// network's output encoding (see [`encode_target`]).
+///
+/// # Errors
+/// As [`train`].
+pub fn train_arrays<R: RngCore + ?Sized>(
+    network: &mut Network,
+    x: ArrayView2<'_, f64>,
+    y: ArrayView2<'_, f64>,
+    validation: Option<(ArrayView2<'_, f64>, ArrayView2<'_, f64>)>,
+    options: &TrainingOptions,
+    rng: &mut R,
+) -> Result<TrainingReport> {
+    let classify = network.head() != Head::Identity;
+    train_arrays_inner(network, x, y, validation, classify, options, rng)
+}
+
+fn train_arrays_inner<R: RngCore + ?Sized>(
+    network: &mut Network,
+    x: ArrayView2<'_, f64>,
+    y: ArrayView2<'_, f64>,
+    validation: Option<(ArrayView2<'_, f64>, ArrayView2<'_, f64>)>,
+    classify: bool,
+    options: &TrainingOptions,
+    rng: &mut R,
+) -> Result<TrainingReport> {
+    options.validate(x.nrows(), validation.is_some())?;
+    let loss = options.loss_for(network.head());
+    if loss == Loss::CrossEntropy && network.head() == Head::Identity {
+        return Err(Error::option(
+            "loss",
+            "cross_entropy",
+            "needs a logistic or softmax head; use squared_error for the identity head",
+        ));
+    }
+    check_xy(network, x, y, "training")?;
+    if let Some((vx, vy)) = validation {
+        check_xy(network, vx, vy, "validation")?;
+    }
+    match network.precision() {
+        Precision::F64 => run::<f64, R>(network, x, y, validation, classify, options, loss, rng),
+        Precision::F32 => run::<f32, R>(network, x, y, validation, classify, options, loss, rng),
+    }
+}
+
+fn check_xy(net: &Network, x: ArrayView2<'_, f64>, y: ArrayView2<'_, f64>, what: &str) -> Result<()> {
+    if x.ncols() != net.n_inputs() {
+        return Err(Error::shape(format!("{what} inputs"), (x.nrows(), net.n_inputs()), x.dim()));
+    }
+    if y.dim() != (x.nrows(), net.n_outputs()) {
+        return Err(Error::shape(format!("{what} targets"), (x.nrows(), net.n_outputs()), y.dim()));
+    }
+    if x.nrows() == 0 {
+        return Err(Error::input(what, "there are no rows"));
+    }
+    if x.iter().chain(y.iter()).any(|v| !v.is_finite()) {
+        return Err(Error::input(what, "inputs and targets must be finite numbers"));
+    }
+    Ok(())
+}
+
+fn to_real<F: Real>(a: ArrayView2<'_, f64>) -> Array2<F> {
+    a.mapv(F::from_f64)
+}
+
+/// Optimiser state in the flat parameter layout.
+struct State<F: Real> {
+    first: Vec<F>,
+    second: Vec<F>,
+    updates: i32,
+}
+
+#[allow(clippy::too_many_arguments)]
+fn run<F: Real, R: RngCore + ?Sized>(
+    network: &mut Network,
+    x: ArrayView2<'_, f64>,
+    y: ArrayView2<'_, f64>,
+    validation: Option<(ArrayView2<'_, f64>, ArrayView2<'_, f64>)>,
+    classify: bool,
+    options: &TrainingOptions,
+    loss: Loss,
+    rng: &mut R,
+) -> Result<TrainingReport> {
+    let start = Instant::now();
+    let (activation, head) = (network.activation(), network.head());
+    let mut params = Params::<F>::from_network(network);
+    let xf = to_real::<F>(x);
+    let yf = to_real::<F>(y);
+    let val = validation.map(|(vx, vy)| (to_real::<F>(vx), to_real::<F>(vy)));
+    let n = x.nrows();
+    let batch = options.batch_size;
+    let mut bp = Backprop::new(&params, batch);
+    let mut eval_ws = val
+        .as_ref()
+        .map(|(vx, _)| Forward::new(&params, engine::EVAL_CHUNK.min(vx.nrows())));
+    let mut state = State {
+        first: vec![F::zero(); params.data.len()],
+        second: match options.optimiser {
+            Optimiser::Adam { .. } => vec![F::zero(); params.data.len()],
+            _ => Vec::new(),
+        },
+        updates: 0,
+    };
+    let mut order: Vec<usize> = (0..n).collect();
+    let mut history = Vec::with_capacity(options.epochs.min(100_000));
+    let mut best: Option<(f64, usize, Vec<F>)> = None;
+    let mut since_best = 0;
+    let mut stopped_early = false;
+    for epoch in 0..options.epochs {
+        let rate = options.schedule.rate(options.learning_rate, epoch, options.epochs);
+        if options.shuffle {
+            rng::shuffle(rng, &mut order);
+        }
+        let mut epoch_loss = 0.0f64;
+        for rows in order.chunks(batch) {
+            bp.gather(&xf, &yf, rows);
+            let batch_loss = bp.pass(&params, rows.len(), activation, head, loss).as_f64();
+            if !batch_loss.is_finite() {
+                return Err(diverged(epoch + 1, rate, batch_loss));
+            }
+            epoch_loss += batch_loss;
+            update(&mut params, &bp.grad, &mut state, options, F::from_f64(rate));
+        }
+        let training_loss = epoch_loss / n as f64;
+        if !training_loss.is_finite() || params.data.iter().any(|v| !v.is_finite()) {
+            return Err(diverged(epoch + 1, rate, training_loss));
+        }
+        let (validation_loss, validation_accuracy) = match (&val, eval_ws.as_mut()) {
+            (Some((vx, vy)), Some(ws)) => {
+                let (total, correct) = evaluate(&params, ws, vx, vy, activation, head, loss, classify);
+                let mean = total / vx.nrows() as f64;
+                if !mean.is_finite() {
+                    return Err(diverged(epoch + 1, rate, mean));
+                }
+                (Some(mean), classify.then(|| correct as f64 / vx.nrows() as f64))
+            }
+            _ => (None, None),
+        };
+        history.push(EpochRecord {
+            epoch: epoch + 1,
+            training_loss,
+            validation_loss,
+            validation_accuracy,
+            learning_rate: rate,
+            elapsed_seconds: start.elapsed().as_secs_f64(),
+        });
+        if options.progress_every > 0 && (epoch + 1) % options.progress_every == 0 {
+            let mut line = format!("epoch {}/{}: training loss {training_loss:.6}", epoch + 1, options.epochs);
+            if let Some(v) = validation_loss {
+                line.push_str(&format!(", validation loss {v:.6}"));
+            }
+            eprintln!("{line}");
+        }
+        if let Some(v) = validation_loss {
+            let min_improvement = options.early_stopping.map_or(0.0, |e| e.min_improvement);
+            let improved = match &best {
+                None => true,
+                Some((b, _, _)) => v < b - min_improvement,
+            };
+            if improved {
+                match &mut best {
+                    Some((b, e, w)) => {
+                        *b = v;
+                        *e = epoch + 1;
+                        w.copy_from_slice(&params.data);
+                    }
+                    None => best = Some((v, epoch + 1, params.data.clone())),
+                }
+                since_best = 0;
+            } else {
+                since_best += 1;
+            }
+            if let Some(es) = options.early_stopping {
+                if since_best >= es.patience {
+                    stopped_early = epoch + 1 < options.epochs;
+                    break;
+                }
+            }
+        }
+    }
+    let epochs_run = history.len();
+    let (best_epoch, best_validation_loss) = match best {
+        Some((v, e, w)) if options.early_stopping.is_some() => {
+            params.data = w;
+            (e, Some(v))
+        }
+        Some((v, e, _)) => {
+            // Validation rows without early stopping: report, keep the last weights.
+            let _ = e;
+            (epochs_run, Some(v))
+        }
+        None => (epochs_run, None),
+    };
+    params.write_to(network);
+    Ok(TrainingReport {
+        history,
+        epochs_run,
+        best_epoch,
+        best_validation_loss,
+        stopped_early,
+        loss,
+    })
+}
+
+fn diverged(epoch: usize, learning_rate: f64, loss: f64) -> Error {
+    Error::new(ErrorKind::Diverged {
+        epoch,
+        learning_rate,
+        loss,
+    })
+}
+
+/// Applies one update to every parameter (see [`options`] for the rules).
+fn update<F: Real>(params: &mut Params<F>, grad: &[F], state: &mut State<F>, options: &TrainingOptions, rate: F) {
+    state.updates += 1;
+    let decay = F::from_f64(options.weight_decay);
+    let l1 = F::from_f64(options.l1_penalty);
+    let penalised = options.weight_decay > 0.0 || options.l1_penalty > 0.0;
+    for l in 0..params.n_layers() {
+        let (wr, br) = params.ranges(l);
+        for (range, is_weight) in [(wr, true), (br, false)] {
+            if !is_weight && !options.train_biases {
+                continue;
+            }
+            let w = &mut params.data[range.clone()];
+            let g = &grad[range.clone()];
+            let v = &mut state.first[range.clone()];
+            let penalty = |wi: F| -> F {
+                if is_weight && penalised {
+                    let sign = if wi > F::zero() {
+                        F::one()
+                    } else if wi < F::zero() {
+                        -F::one()
+                    } else {
+                        F::zero()
+                    };
+                    decay * wi + l1 * sign
+                } else {
+                    F::zero()
+                }
+            };
+            match options.optimiser {
+                Optimiser::Sgd => {
+                    for (wi, &gi) in w.iter_mut().zip(g) {
+                        *wi = *wi - rate * (gi + penalty(*wi));
+                    }
+                }
+                Optimiser::Momentum { mu } => {
+                    let mu = F::from_f64(mu);
+                    for ((wi, &gi), vi) in w.iter_mut().zip(g).zip(v.iter_mut()) {
+                        *vi = mu * *vi - rate * (gi + penalty(*wi));
+                        *wi = *wi + *vi;
+                    }
+                }
+                Optimiser::Nesterov { mu } => {
+                    let mu = F::from_f64(mu);
+                    for ((wi, &gi), vi) in w.iter_mut().zip(g).zip(v.iter_mut()) {
+                        let previous = *vi;
+                        *vi = mu * *vi - rate * (gi + penalty(*wi));
+                        *wi = *wi - mu * previous + (F::one() + mu) * *vi;
+                    }
+                }
+                Optimiser::Adam {
+                    beta1,
+                    beta2,
+                    epsilon,
+                } => {
+                    let (b1, b2, eps) = (F::from_f64(beta1), F::from_f64(beta2), F::from_f64(epsilon));
+                    let c1 = F::one() - F::from_f64(beta1.powi(state.updates));
+                    let c2 = F::one() - F::from_f64(beta2.powi(state.updates));
+                    let s = &mut state.second[range.clone()];
+                    for (((wi, &gi), mi), si) in w.iter_mut().zip(g).zip(v.iter_mut()).zip(s.iter_mut()) {
+                        let gt = gi + penalty(*wi);
+                        *mi = b1 * *mi + (F::one() - b1) * gt;
+                        *si = b2 * *si + (F::one() - b2) * gt * gt;
+                        *wi = *wi - rate * (*mi / c1) / ((*si / c2).sqrt() + eps);
+                    }
+                }
+            }
+        }
+    }
+}
+
+/// The mean loss of `network` over rows `x` with targets `y` (network output
+/// encoding), without penalties.
+///
+/// # Errors
+/// Mismatched shapes; cross-entropy with the identity head.
+pub fn mean_loss(network: &Network, x: ArrayView2<'_, f64>, y: ArrayView2<'_, f64>, loss: Loss) -> Result<f64> {
+    check_xy(network, x, y, "loss")?;
+    if loss == Loss::CrossEntropy && network.head() == Head::Identity {
+        return Err(Error::option("loss", "cross_entropy", "needs a logistic or softmax head"));
+    }
+    Ok(match network.precision() {
+        Precision::F64 => mean_loss_in::<f64>(network, x, y, loss),
+        Precision::F32 => mean_loss_in::<f32>(network, x, y, loss),
+    })
+}
+
+fn mean_loss_in<F: Real>(network: &Network, x: ArrayView2<'_, f64>, y: ArrayView2<'_, f64>, loss: Loss) -> f64 {
+    let params = Params::<F>::from_network(network);
+    let mut ws = Forward::new(&params, engine::EVAL_CHUNK.min(x.nrows()));
+    let (total, _) = evaluate(
+        &params,
+        &mut ws,
+        &to_real::<F>(x),
+        &to_real::<F>(y),
+        network.activation(),
+        network.head(),
+        loss,
+        false,
+    );
+    total / x.nrows() as f64
+}

@@ -1,0 +1,197 @@
+//! Feature scaling, fitted on training rows only and applied to any rows.
+//!
+//! ```text
+//! standardise:  x' = (x - mean) / sd        mean and population sd (divide by n) of the training rows
+//! min-max:      x' = (x - min) / (max - min) onto [0, 1] over the training rows
+//! ```
+//! Both are common practice (no single source); the population form of the
+//! standard deviation is used so that a one-row fit is defined.
+//!
+//! **Zero spread.** When a column is constant in the training rows (sd = 0,
+//! or max = min), its scale is set to 1, so the column becomes `x - mean`
+//! (or `x - min`): exactly 0 on the training rows and the raw offset on other
+//! rows. Nothing is divided by zero, so no NaN or infinity can appear.
+
+use crate::error::{Error, Result};
+use ndarray::{Array2, ArrayView2, ArrayViewMut2, Axis};
+use serde::{Deserialize, Serialize};
+
+/// Which scaling to fit.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Scaling {
+    /// Leave features as they are.
+    None,
+    /// z-scores: subtract the mean, divide by the standard deviation.
+    #[default]
+    Standardise,
+    /// Map the training range onto [0, 1].
+    MinMax,
+}
+
+/// A fitted scaler: `x' = (x - offset) / scale`, column by column.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Scaler {
+    /// The kind that was fitted.
+    pub kind: Scaling,
+    /// Subtracted from each column.
+    pub offset: Vec<f64>,
+    /// Each column is divided by this (never 0).
+    pub scale: Vec<f64>,
+}
+
+impl Scaler {
+    /// Fits a scaler of `kind` on the given rows of `x` (all rows when `rows` is `None`).
+    ///
+    /// # Errors
+    /// When there are no rows to fit on.
+    pub fn fit(kind: Scaling, x: ArrayView2<'_, f64>, rows: Option<&[usize]>) -> Result<Scaler> {
+        let n = rows.map_or(x.nrows(), <[usize]>::len);
+        if n == 0 {
+            return Err(Error::input("fitting a scaler", "there are no rows to fit on"));
+        }
+        let d = x.ncols();
+        let mut offset = vec![0.0; d];
+        let mut scale = vec![1.0; d];
+        let each_row = |f: &mut dyn FnMut(ndarray::ArrayView1<'_, f64>)| match rows {
+            Some(rows) => rows.iter().for_each(|&r| f(x.row(r))),
+            None => x.rows().into_iter().for_each(f),
+        };
+        match kind {
+            Scaling::None => {}
+            Scaling::Standardise => {
+                // Two passes (mean, then squared deviations) for accuracy.
+                let mut sum = vec![0.0; d];
+                each_row(&mut |row| sum.iter_mut().zip(row).for_each(|(s, v)| *s += v));
+                let mean: Vec<f64> = sum.iter().map(|s| s / n as f64).collect();
+                let mut ss = vec![0.0; d];
+                each_row(&mut |row| {
+                    ss.iter_mut()
+                        .zip(row)
+                        .zip(&mean)
+                        .for_each(|((s, v), m)| *s += (v - m) * (v - m))
+                });
+                for j in 0..d {
+                    let sd = (ss[j] / n as f64).sqrt();
+                    offset[j] = mean[j];
+                    scale[j] = if sd > 0.0 && sd.is_finite() { sd } else { 1.0 };
+                }
+            }
+            Scaling::MinMax => {
+                let mut lo = vec![f64::INFINITY; d];
+                let mut hi = vec![f64::NEG_INFINITY; d];
+                each_row(&mut |row| {
+                    for (j, &v) in row.iter().enumerate() {
+                        lo[j] = lo[j].min(v);
+                        hi[j] = hi[j].max(v);
+                    }
+                });
+                for j in 0..d {
+                    let range = hi[j] - lo[j];
+                    offset[j] = lo[j];
+                    scale[j] = if range > 0.0 && range.is_finite() { range } else { 1.0 };
+                }
+            }
+        }
+        Ok(Scaler { kind, offset, scale })
+    }
+
+    /// Number of columns.
+    pub fn n_columns(&self) -> usize {
+        self.offset.len()
+    }
+
+    /// Scales `x` in place.
+    ///
+    /// # Errors
+    /// When the column count differs from the fitted one.
+    pub fn apply(&self, mut x: ArrayViewMut2<'_, f64>) -> Result<()> {
+        self.check(x.ncols())?;
+        if self.kind == Scaling::None {
+            return Ok(());
+        }
+        for mut row in x.axis_iter_mut(Axis(0)) {
+            for ((v, o), s) in row.iter_mut().zip(&self.offset).zip(&self.scale) {
+                *v = (*v - o) / s;
+            }
+        }
+        Ok(())
+    }
+
+    /// A scaled copy of `x`.
+    ///
+    /// # Errors
+    /// When the column count differs from the fitted one.
+    pub fn transform(&self, x: ArrayView2<'_, f64>) -> Result<Array2<f64>> {
+        let mut out = x.to_owned();
+        self.apply(out.view_mut())?;
+        Ok(out)
+    }
+
+    /// Undoes the scaling in place: `x = x' * scale + offset`.
+    ///
+    /// # Errors
+    /// When the column count differs from the fitted one.
+    pub fn invert(&self, mut x: ArrayViewMut2<'_, f64>) -> Result<()> {
+        self.check(x.ncols())?;
+        if self.kind == Scaling::None {
+            return Ok(());
+        }
+        for mut row in x.axis_iter_mut(Axis(0)) {
+            for ((v, o), s) in row.iter_mut().zip(&self.offset).zip(&self.scale) {
+                *v = *v * s + o;
+            }
+        }
+        Ok(())
+    }
+
+    fn check(&self, cols: usize) -> Result<()> {
+        if cols != self.n_columns() {
+            return Err(Error::input(
+                "scaling",
+                format!(
+                    "the scaler was fitted on {} columns, but the data has {cols}",
+                    self.n_columns()
+                ),
+            ));
+        }
+        Ok(())
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use ndarray::array;
+
+    #[test]
+    fn standardise_uses_training_rows_only() {
+        let x = array![[1.0, 5.0], [3.0, 5.0], [100.0, 7.0]];
+        let s = Scaler::fit(Scaling::Standardise, x.view(), Some(&[0, 1])).unwrap();
+        assert_eq!(s.offset, vec![2.0, 5.0]);
+        assert_eq!(s.scale, vec![1.0, 1.0]); // sd of [1,3] is 1; second column constant -> 1
+        let t = s.transform(x.view()).unwrap();
+        assert_eq!(t, array![[-1.0, 0.0], [1.0, 0.0], [98.0, 2.0]]);
+        assert!(t.iter().all(|v| v.is_finite()));
+    }
+
+    #[test]
+    fn min_max_round_trip() {
+        let x = array![[1.0, -2.0], [3.0, 2.0]];
+        let s = Scaler::fit(Scaling::MinMax, x.view(), None).unwrap();
+        let mut t = s.transform(x.view()).unwrap();
+        assert_eq!(t, array![[0.0, 0.0], [1.0, 1.0]]);
+        s.invert(t.view_mut()).unwrap();
+        assert_eq!(t, x);
+    }
+
+    // The population sd of 2, 4, 4, 4, 5, 5, 7, 9 is exactly 2 (the standard
+    // textbook example; common practice, no source).
+    #[test]
+    fn population_standard_deviation() {
+        let x = array![[2.0], [4.0], [4.0], [4.0], [5.0], [5.0], [7.0], [9.0]];
+        let s = Scaler::fit(Scaling::Standardise, x.view(), None).unwrap();
+        assert_eq!(s.offset, vec![5.0]);
+        assert_eq!(s.scale, vec![2.0]);
+    }
+}

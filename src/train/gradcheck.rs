@@ -1,0 +1,112 @@
+//! Gradient checking: backpropagated gradients against central differences.
+//!
+//! ```text
+//! numeric_i  = (J(w + h e_i) - J(w - h e_i)) / (2 h)
+//! rel_err_i  = |analytic_i - numeric_i| / max(|analytic_i|, |numeric_i|)
+//! ```
+//! with `J` the mean loss over the given rows (no penalties). Pairs where
+//! both values are below `1e-10` in size count as agreeing (their relative
+//! error is dominated by rounding). Source: Stanford CS231n notes, "Neural
+//! Networks Part 3" (h about 1e-5; below 1e-7 is good in double precision;
+//! rectifier kinks may need a looser bound). Always computed in f64.
+
+use super::engine::{Backprop, Params};
+use super::Loss;
+use crate::error::{Error, Result};
+use crate::network::{Head, Network};
+use ndarray::ArrayView2;
+use serde::{Deserialize, Serialize};
+
+/// The outcome of [`check_gradients`].
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct GradientCheck {
+    /// The largest relative error over all parameters.
+    pub max_relative_error: f64,
+    /// Where it occurred: (layer from 1, is it a bias, flat index in the layer).
+    pub worst: (usize, bool, usize),
+    /// Parameters compared.
+    pub parameters: usize,
+}
+
+/// Compares backpropagated gradients of the mean `loss` over rows `x`
+/// (targets `y` in output encoding) with central differences of step `h`.
+///
+/// # Errors
+/// Mismatched shapes, `h` not positive, cross-entropy with the identity head.
+///
+/// # Example
+/// ```
+/// use stratanet::prelude::*;
+/// use stratanet::train::{check_gradients, Loss};
+/// use stratanet::ndarray::array;
+/// let mut rng = seeded_rng(5);
+/// let net = Network::new(&[2, 3, 1], Activation::Tanh, Head::Logistic, Init::Auto, &mut rng)?;
+/// let x = array![[0.1, -0.4], [0.7, 0.2]];
+/// let y = array![[0.0], [1.0]];
+/// let check = check_gradients(&net, x.view(), y.view(), Loss::CrossEntropy, 1e-5)?;
+/// assert!(check.max_relative_error < 1e-7);
+/// # Ok::<(), stratanet::Error>(())
+/// ```
+pub fn check_gradients(
+    network: &Network,
+    x: ArrayView2<'_, f64>,
+    y: ArrayView2<'_, f64>,
+    loss: Loss,
+    h: f64,
+) -> Result<GradientCheck> {
+    if !(h > 0.0 && h.is_finite()) {
+        return Err(Error::option("h", h, "must be a finite number greater than 0"));
+    }
+    if loss == Loss::CrossEntropy && network.head() == Head::Identity {
+        return Err(Error::option("loss", "cross_entropy", "needs a logistic or softmax head"));
+    }
+    if x.ncols() != network.n_inputs() || y.dim() != (x.nrows(), network.n_outputs()) || x.nrows() == 0 {
+        return Err(Error::shape(
+            "gradient check rows",
+            (x.nrows().max(1), network.n_inputs()),
+            x.dim(),
+        ));
+    }
+    let (act, head) = (network.activation(), network.head());
+    let m = x.nrows();
+    let mut params = Params::<f64>::from_network(network);
+    let mut bp = Backprop::new(&params, m);
+    let rows: Vec<usize> = (0..m).collect();
+    let xf = x.to_owned();
+    let yf = y.to_owned();
+    bp.gather(&xf, &yf, &rows);
+    bp.pass(&params, m, act, head, loss);
+    let analytic = bp.grad.clone();
+    let objective = |p: &Params<f64>, bp: &mut Backprop<f64>| -> f64 {
+        bp.gather(&xf, &yf, &rows);
+        bp.pass(p, m, act, head, loss) / m as f64
+    };
+    let mut worst = (0.0f64, (1, false, 0));
+    for i in 0..params.data.len() {
+        let saved = params.data[i];
+        params.data[i] = saved + h;
+        let plus = objective(&params, &mut bp);
+        params.data[i] = saved - h;
+        let minus = objective(&params, &mut bp);
+        params.data[i] = saved;
+        let numeric = (plus - minus) / (2.0 * h);
+        let a = analytic[i];
+        let size = a.abs().max(numeric.abs());
+        let rel = if size < 1e-10 { 0.0 } else { (a - numeric).abs() / size };
+        if rel > worst.0 || rel.is_nan() {
+            let layer = (0..params.n_layers())
+                .rev()
+                .find(|&l| params.offsets[l] <= i)
+                .expect("offset 0 exists");
+            let (wr, br) = params.ranges(layer);
+            let is_bias = br.contains(&i);
+            let index = if is_bias { i - br.start } else { i - wr.start };
+            worst = (if rel.is_nan() { f64::INFINITY } else { rel }, (layer + 1, is_bias, index));
+        }
+    }
+    Ok(GradientCheck {
+        max_relative_error: worst.0,
+        worst: worst.1,
+        parameters: params.data.len(),
+    })
+}

@@ -1,0 +1,176 @@
+//! Losses and the output layer's error signal.
+//!
+//! Per sample, with outputs `a = head(z)` and targets `y`:
+//!
+//! ```text
+//! squared error   E = 1/2 sum_k (y_k - a_k)^2
+//! cross-entropy   logistic head:  E = sum_k -[y_k ln a_k + (1 - y_k) ln(1 - a_k)]
+//!                                   = sum_k max(z_k, 0) - z_k y_k + ln(1 + e^-|z_k|)   (computed this way)
+//!                 softmax head:   E = -sum_k y_k ln a_k = logsumexp(z) - sum_k y_k z_k
+//! ```
+//! The training objective of a mini-batch `B` is the mean `1/|B| sum E` plus
+//! the penalties (see [`TrainingOptions`](super::TrainingOptions)). The
+//! error signal `delta = dE/dz` at the output is
+//!
+//! ```text
+//! cross-entropy with its matching head (logistic or softmax):  delta = a - y
+//! squared error, identity head:                                 delta = a - y
+//! squared error, logistic head:                                 delta = (a - y) a (1 - a)
+//! squared error, softmax head:                                  delta_j = a_j ((a_j - y_j) - sum_k (a_k - y_k) a_k)
+//! ```
+//! Sources: squared error with logistic units, Rumelhart, Hinton & Williams
+//! (Nature, 1986); cross-entropy with softmax, Bridle (1990) and the CS231n
+//! notes (Stanford, "Linear classification"); the stable forms are common
+//! practice (no source).
+
+use crate::network::{sigmoid, Head, Real};
+use serde::{Deserialize, Serialize};
+
+/// The loss minimised in training.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Loss {
+    /// Half the summed squared error (the classic backpropagation setup).
+    SquaredError,
+    /// Cross-entropy (binary for logistic outputs, categorical for softmax).
+    CrossEntropy,
+}
+
+impl Loss {
+    /// A short name: `squared_error` or `cross_entropy`.
+    pub fn name(&self) -> &'static str {
+        match self {
+            Loss::SquaredError => "squared_error",
+            Loss::CrossEntropy => "cross_entropy",
+        }
+    }
+
+    /// The usual loss for a head: cross-entropy for logistic and softmax
+    /// heads, squared error for the identity head.
+    pub fn default_for(head: Head) -> Loss {
+        match head {
+            Head::Identity => Loss::SquaredError,
+            Head::Logistic | Head::Softmax => Loss::CrossEntropy,
+        }
+    }
+}
+
+/// For one row: turns output sums `z` into outputs (in place), writes
+/// `delta = scale * dE/dz` and returns the row's loss `E`.
+#[inline]
+pub(crate) fn row_loss_delta<F: Real>(
+    head: Head,
+    loss: Loss,
+    z: &mut [F],
+    y: &[F],
+    delta: Option<&mut [F]>,
+    scale: F,
+) -> F {
+    let half = F::from_f64(0.5);
+    match (loss, head) {
+        (Loss::CrossEntropy, Head::Logistic) => {
+            let mut e = F::zero();
+            for (zk, &yk) in z.iter_mut().zip(y) {
+                let v = *zk;
+                e = e + v.max(F::zero()) - v * yk + (-v.abs()).exp().ln_1p();
+                *zk = sigmoid(v);
+            }
+            if let Some(d) = delta {
+                for ((dk, &ak), &yk) in d.iter_mut().zip(z.iter()).zip(y) {
+                    *dk = (ak - yk) * scale;
+                }
+            }
+            e
+        }
+        (Loss::CrossEntropy, Head::Softmax) => {
+            let m = z.iter().copied().fold(F::neg_infinity(), F::max);
+            let mut sum = F::zero();
+            let mut yz = F::zero();
+            for (zk, &yk) in z.iter().zip(y) {
+                sum = sum + (*zk - m).exp();
+                yz = yz + yk * *zk;
+            }
+            let lse = m + sum.ln();
+            let mut ysum = F::zero();
+            for (zk, &yk) in z.iter_mut().zip(y) {
+                *zk = (*zk - m).exp() / sum;
+                ysum = ysum + yk;
+            }
+            if let Some(d) = delta {
+                for ((dk, &ak), &yk) in d.iter_mut().zip(z.iter()).zip(y) {
+                    *dk = (ak - yk) * scale;
+                }
+            }
+            ysum * lse - yz
+        }
+        (Loss::SquaredError, _) => {
+            head.apply_row(z);
+            let mut e = F::zero();
+            for (&ak, &yk) in z.iter().zip(y) {
+                e = e + (ak - yk) * (ak - yk);
+            }
+            if let Some(d) = delta {
+                match head {
+                    Head::Identity => {
+                        for ((dk, &ak), &yk) in d.iter_mut().zip(z.iter()).zip(y) {
+                            *dk = (ak - yk) * scale;
+                        }
+                    }
+                    Head::Logistic => {
+                        for ((dk, &ak), &yk) in d.iter_mut().zip(z.iter()).zip(y) {
+                            *dk = (ak - yk) * ak * (F::one() - ak) * scale;
+                        }
+                    }
+                    Head::Softmax => {
+                        let mut s = F::zero();
+                        for (&ak, &yk) in z.iter().zip(y) {
+                            s = s + (ak - yk) * ak;
+                        }
+                        for ((dk, &ak), &yk) in d.iter_mut().zip(z.iter()).zip(y) {
+                            *dk = ak * ((ak - yk) - s) * scale;
+                        }
+                    }
+                }
+            }
+            e * half
+        }
+        (Loss::CrossEntropy, Head::Identity) => {
+            unreachable!("options validation refuses cross-entropy with the identity head")
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    // CS231n course notes, "Linear classification" (Stanford): scores
+    // [-2.85, 0.86, 0.28], true class 2: loss 1.04019057 (printed 1.04),
+    // p = [0.01544932, 0.63116335, 0.35338733], dL/dz = p - y =
+    // [0.01544932, 0.63116335, -0.64661267].
+    #[test]
+    fn softmax_cross_entropy_reference() {
+        let mut z = [-2.85f64, 0.86, 0.28];
+        let y = [0.0, 0.0, 1.0];
+        let mut d = [0.0; 3];
+        let e = row_loss_delta(Head::Softmax, Loss::CrossEntropy, &mut z, &y, Some(&mut d), 1.0);
+        assert!((e - 1.04019057).abs() < 5e-9, "{e}");
+        assert!((e - 1.04).abs() < 5e-3);
+        for (p, r) in z.iter().zip([0.01544932, 0.63116335, 0.35338733]) {
+            assert!((p - r).abs() < 5e-9);
+        }
+        for (g, r) in d.iter().zip([0.01544932, 0.63116335, -0.64661267]) {
+            assert!((g - r).abs() < 5e-9);
+        }
+    }
+
+    #[test]
+    fn logistic_cross_entropy_is_finite_at_extremes() {
+        let mut z = [800.0f64];
+        let e = row_loss_delta(Head::Logistic, Loss::CrossEntropy, &mut z, &[0.0], None, 1.0);
+        assert_eq!(e, 800.0);
+        let mut z = [0.0f64];
+        let e = row_loss_delta(Head::Logistic, Loss::CrossEntropy, &mut z, &[1.0], None, 1.0);
+        assert!((e - std::f64::consts::LN_2).abs() < 1e-15);
+    }
+}
