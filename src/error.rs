@@ -184,7 +184,11 @@ impl Error {
     }
 
     /// Shorthand for [`ErrorKind::InvalidOption`].
-    pub fn option(name: impl Into<String>, value: impl fmt::Display, reason: impl Into<String>) -> Error {
+    pub fn option(
+        name: impl Into<String>,
+        value: impl fmt::Display,
+        reason: impl Into<String>,
+    ) -> Error {
         Error::new(ErrorKind::InvalidOption {
             name: name.into(),
             value: value.to_string(),
@@ -201,7 +205,11 @@ impl Error {
     }
 
     /// Shorthand for [`ErrorKind::ShapeMismatch`].
-    pub fn shape(what: impl Into<String>, expected: (usize, usize), found: (usize, usize)) -> Error {
+    pub fn shape(
+        what: impl Into<String>,
+        expected: (usize, usize),
+        found: (usize, usize),
+    ) -> Error {
         Error::new(ErrorKind::ShapeMismatch {
             what: what.into(),
             expected,
@@ -381,7 +389,11 @@ mod tests {
 
     #[test]
     fn option_message_names_the_option_and_range() {
-        let e = Error::option("learning_rate", -0.1, "must be a finite number greater than 0");
+        let e = Error::option(
+            "learning_rate",
+            -0.1,
+            "must be a finite number greater than 0",
+        );
         assert_eq!(
             e.to_string(),
             "option learning_rate = -0.1: must be a finite number greater than 0"

@@ -17,17 +17,19 @@
 #![warn(missing_docs)]
 #![doc(test(attr(deny(warnings))))]
 
+pub mod chart;
 pub mod data;
 pub mod error;
+pub mod fit;
 pub mod network;
-pub mod rng;
 pub mod prelude;
+pub mod rng;
 pub mod train;
 pub mod validate;
-pub mod chart;
 
 pub use error::{Error, ErrorKind, Result};
 pub use rng::seeded_rng;
 
+pub use fit::{fit, fit_with_seed, FitOptions, Fitted, Model};
 pub use ndarray;
 pub use rand;

@@ -19,8 +19,8 @@
 //! ```
 
 use rand::RngCore;
-pub use rand_chacha::ChaCha8Rng;
 use rand::SeedableRng;
+pub use rand_chacha::ChaCha8Rng;
 
 /// The generator type stratanet uses and documents.
 pub type StrataRng = ChaCha8Rng;

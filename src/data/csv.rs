@@ -326,7 +326,8 @@ pub(crate) fn resolve_header(
     if used.len() == target_index.map_or(0, |_| 1) {
         return Err(Error::new(ErrorKind::NoRows {
             path: path.to_path_buf(),
-            reason: "no feature columns are left once the target and dropped columns are taken out".into(),
+            reason: "no feature columns are left once the target and dropped columns are taken out"
+                .into(),
         }));
     }
     Ok((names, used))
@@ -341,7 +342,9 @@ pub(crate) fn read_columns<R: Read>(reader: R, path: &Path, opts: &CsvOptions) -
         .delimiter(opts.delimiter)
         .from_reader(reader);
     let mut record = csv::StringRecord::new();
-    let got = rdr.read_record(&mut record).map_err(|e| csv_error(path, e))?;
+    let got = rdr
+        .read_record(&mut record)
+        .map_err(|e| csv_error(path, e))?;
     if !got || (record.len() == 1 && record[0].trim().trim_start_matches('\u{feff}').is_empty()) {
         return Err(Error::new(ErrorKind::EmptyFile {
             path: path.to_path_buf(),
@@ -370,8 +373,7 @@ pub(crate) fn read_columns<R: Read>(reader: R, path: &Path, opts: &CsvOptions) -
         .map(|(k, &i)| {
             // The target is always read as text first: its kind is decided
             // once every label is known.
-            let forced_text =
-                k == 0 || opts.categorical.iter().any(|c| c == &names[i]);
+            let forced_text = k == 0 || opts.categorical.iter().any(|c| c == &names[i]);
             RawColumn {
                 name: names[i].clone(),
                 index: i,
@@ -451,9 +453,11 @@ pub(crate) fn read_columns<R: Read>(reader: R, path: &Path, opts: &CsvOptions) -
         for col in columns.iter_mut() {
             let cell = &record[col.index];
             if let RawData::Undecided = col.data {
-                col.data = match parse_number(cell) {
-                    Some(_) => RawData::Numeric(Vec::new()),
-                    None => RawData::Text {
+                // Any number, finite or not, makes the column numeric, so that
+                // an overflow marker such as "inf" is reported, not encoded.
+                col.data = match cell.trim().parse::<f64>() {
+                    Ok(_) => RawData::Numeric(Vec::new()),
+                    Err(_) => RawData::Text {
                         codes: Vec::new(),
                         levels: Vec::new(),
                         lookup: HashMap::new(),
@@ -505,9 +509,12 @@ pub(crate) fn read_columns<R: Read>(reader: R, path: &Path, opts: &CsvOptions) -
     }
     if rows == 0 {
         let reason = if dropped > 0 {
-            format!("all {dropped} data rows have missing cells, so none are left after dropping them")
+            format!(
+                "all {dropped} data rows have missing cells, so none are left after dropping them"
+            )
         } else {
-            "the file has a header but no data rows; add one row per sample below the header".to_string()
+            "the file has a header but no data rows; add one row per sample below the header"
+                .to_string()
         };
         return Err(Error::new(ErrorKind::NoRows {
             path: path.to_path_buf(),
@@ -590,7 +597,10 @@ fn build_dataset(raw: RawTable, opts: &CsvOptions, path: &Path) -> Result<Datase
                         return Err(Error::option(
                             "class_order",
                             format!("{order:?}"),
-                            format!("does not list the label \"{l}\" found in column \"{}\"", target_col.name),
+                            format!(
+                                "does not list the label \"{l}\" found in column \"{}\"",
+                                target_col.name
+                            ),
                         ));
                     }
                 }
@@ -639,7 +649,9 @@ fn build_dataset(raw: RawTable, opts: &CsvOptions, path: &Path) -> Result<Datase
     for ((data, remap), enc) in blocks.iter().zip(&encodings) {
         match data {
             RawData::Numeric(values) => {
-                features.column_mut(offset).assign(&ndarray::ArrayView1::from(&values[..]));
+                features
+                    .column_mut(offset)
+                    .assign(&ndarray::ArrayView1::from(&values[..]));
             }
             RawData::Text { codes, .. } => {
                 for (r, &c) in codes.iter().enumerate() {
@@ -650,7 +662,10 @@ fn build_dataset(raw: RawTable, opts: &CsvOptions, path: &Path) -> Result<Datase
         }
         offset += enc.width();
     }
-    let feature_names = encodings.iter().flat_map(ColumnEncoding::feature_names).collect();
+    let feature_names = encodings
+        .iter()
+        .flat_map(ColumnEncoding::feature_names)
+        .collect();
     Ok(Dataset {
         features,
         feature_names,
@@ -693,7 +708,10 @@ mod tests {
 
     #[test]
     fn dropped_columns_are_not_parsed() {
-        let d = CsvOptions::new("y").drop(&["junk"]).read_str("a,junk,y\n1,??,p\n2,,q\n", "t.csv").unwrap();
+        let d = CsvOptions::new("y")
+            .drop(&["junk"])
+            .read_str("a,junk,y\n1,??,p\n2,,q\n", "t.csv")
+            .unwrap();
         assert_eq!(d.feature_names, ["a"]);
     }
 }

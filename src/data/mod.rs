@@ -208,7 +208,11 @@ impl Dataset {
                 ),
             ));
         }
-        if let Some((row, &l)) = labels.iter().enumerate().find(|(_, &l)| l >= class_names.len()) {
+        if let Some((row, &l)) = labels
+            .iter()
+            .enumerate()
+            .find(|(_, &l)| l >= class_names.len())
+        {
             return Err(Error::input(
                 "classification table",
                 format!(
@@ -376,13 +380,16 @@ impl Dataset {
     /// # Errors
     /// An error listing the feature names when there is no such column.
     pub fn feature_index(&self, name: &str) -> Result<usize> {
-        self.feature_names.iter().position(|n| n == name).ok_or_else(|| {
-            Error::new(crate::ErrorKind::MissingColumn {
-                path: self.source.clone().into(),
-                column: name.to_string(),
-                available: self.feature_names.clone(),
+        self.feature_names
+            .iter()
+            .position(|n| n == name)
+            .ok_or_else(|| {
+                Error::new(crate::ErrorKind::MissingColumn {
+                    path: self.source.clone().into(),
+                    column: name.to_string(),
+                    available: self.feature_names.clone(),
+                })
             })
-        })
     }
 }
 

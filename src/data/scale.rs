@@ -48,7 +48,10 @@ impl Scaler {
     pub fn fit(kind: Scaling, x: ArrayView2<'_, f64>, rows: Option<&[usize]>) -> Result<Scaler> {
         let n = rows.map_or(x.nrows(), <[usize]>::len);
         if n == 0 {
-            return Err(Error::input("fitting a scaler", "there are no rows to fit on"));
+            return Err(Error::input(
+                "fitting a scaler",
+                "there are no rows to fit on",
+            ));
         }
         let d = x.ncols();
         let mut offset = vec![0.0; d];
@@ -89,11 +92,19 @@ impl Scaler {
                 for j in 0..d {
                     let range = hi[j] - lo[j];
                     offset[j] = lo[j];
-                    scale[j] = if range > 0.0 && range.is_finite() { range } else { 1.0 };
+                    scale[j] = if range > 0.0 && range.is_finite() {
+                        range
+                    } else {
+                        1.0
+                    };
                 }
             }
         }
-        Ok(Scaler { kind, offset, scale })
+        Ok(Scaler {
+            kind,
+            offset,
+            scale,
+        })
     }
 
     /// Number of columns.

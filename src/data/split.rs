@@ -94,7 +94,9 @@ pub fn stratified_split<R: RngCore + ?Sized>(
             ));
         }
         split.test.extend_from_slice(&rows[..n_test]);
-        split.validation.extend_from_slice(&rows[n_test..n_test + n_val]);
+        split
+            .validation
+            .extend_from_slice(&rows[n_test..n_test + n_val]);
         split.train.extend_from_slice(&rows[n_test + n_val..]);
     }
     split.train.sort_unstable();

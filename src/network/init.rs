@@ -41,7 +41,12 @@ pub enum Init {
 
 impl Init {
     /// The weight half-width `L` and whether biases are drawn too.
-    pub(crate) fn limit(self, n_in: usize, n_out: usize, activation: Option<Activation>) -> (f64, bool) {
+    pub(crate) fn limit(
+        self,
+        n_in: usize,
+        n_out: usize,
+        activation: Option<Activation>,
+    ) -> (f64, bool) {
         let glorot = (6.0 / (n_in + n_out) as f64).sqrt();
         let he = (6.0 / n_in as f64).sqrt();
         match self {

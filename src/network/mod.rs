@@ -159,7 +159,8 @@ impl Network {
                 None
             };
             let (limit, draw_biases) = init.limit(n_in, n_out, hidden_act);
-            let weights = Array2::from_shape_fn((n_in, n_out), |_| rng::uniform(rng, -limit, limit));
+            let weights =
+                Array2::from_shape_fn((n_in, n_out), |_| rng::uniform(rng, -limit, limit));
             let biases = if draw_biases {
                 Array1::from_shape_fn(n_out, |_| rng::uniform(rng, -limit, limit))
             } else {
@@ -199,7 +200,12 @@ impl Network {
                     (1, layer.biases.len()),
                 ));
             }
-            if layer.weights.iter().chain(layer.biases.iter()).any(|v| !v.is_finite()) {
+            if layer
+                .weights
+                .iter()
+                .chain(layer.biases.iter())
+                .any(|v| !v.is_finite())
+            {
                 return Err(Error::input(
                     format!("layer {}", i + 1),
                     "holds a weight or bias that is not a finite number",
@@ -292,8 +298,12 @@ impl Network {
     pub fn predict(&self, x: ArrayView2<'_, f64>) -> Result<Array2<f64>> {
         self.check_inputs(x)?;
         Ok(match self.precision {
-            Precision::F64 => crate::train::engine::Params::<f64>::from_network(self).predict(x, self),
-            Precision::F32 => crate::train::engine::Params::<f32>::from_network(self).predict(x, self),
+            Precision::F64 => {
+                crate::train::engine::Params::<f64>::from_network(self).predict(x, self)
+            }
+            Precision::F32 => {
+                crate::train::engine::Params::<f32>::from_network(self).predict(x, self)
+            }
         })
     }
 
@@ -335,8 +345,12 @@ impl Network {
             ));
         }
         Ok(match self.precision {
-            Precision::F64 => crate::train::engine::Params::<f64>::from_network(self).hidden(x, self, layer),
-            Precision::F32 => crate::train::engine::Params::<f32>::from_network(self).hidden(x, self, layer),
+            Precision::F64 => {
+                crate::train::engine::Params::<f64>::from_network(self).hidden(x, self, layer)
+            }
+            Precision::F32 => {
+                crate::train::engine::Params::<f32>::from_network(self).hidden(x, self, layer)
+            }
         })
     }
 
@@ -382,7 +396,11 @@ fn check_architecture(sizes: &[usize], activation: Activation, head: Head) -> Re
     }
     if let Activation::LeakyRelu(s) = activation {
         if !(s > 0.0 && s < 1.0) {
-            return Err(Error::option("leaky_relu slope", s, "must be between 0 and 1"));
+            return Err(Error::option(
+                "leaky_relu slope",
+                s,
+                "must be between 0 and 1",
+            ));
         }
     }
     if head == Head::Softmax && sizes[sizes.len() - 1] < 2 {

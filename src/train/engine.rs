@@ -175,15 +175,25 @@ impl<F: Real> Forward<F> {
             };
             let mut out = rest[0].slice_mut(s![..m, ..]);
             general_mat_mul(F::one(), &input, &params.weights(l), F::zero(), &mut out);
-            bias_and_activate(&mut out, params.biases(l), if l == last { None } else { Some(activation) });
+            bias_and_activate(
+                &mut out,
+                params.biases(l),
+                if l == last { None } else { Some(activation) },
+            );
         }
     }
 }
 
 /// Adds the bias row to every row and applies the activation, in one pass.
-fn bias_and_activate<F: Real>(out: &mut ArrayViewMut2<'_, F>, b: &[F], activation: Option<Activation>) {
+fn bias_and_activate<F: Real>(
+    out: &mut ArrayViewMut2<'_, F>,
+    b: &[F],
+    activation: Option<Activation>,
+) {
     for mut row in out.rows_mut() {
-        let row = row.as_slice_mut().expect("rows of a standard-layout buffer are contiguous");
+        let row = row
+            .as_slice_mut()
+            .expect("rows of a standard-layout buffer are contiguous");
         match activation {
             None | Some(Activation::Identity) => {
                 row.iter_mut().zip(b).for_each(|(v, &bk)| *v = *v + bk)
@@ -230,7 +240,14 @@ impl<F: Real> Backprop<F> {
     /// Forward and backward pass over the first `m` gathered rows: fills
     /// `grad` with the gradient of the batch's mean loss (no penalties) and
     /// returns the summed loss of the rows.
-    pub fn pass(&mut self, params: &Params<F>, m: usize, activation: Activation, head: Head, loss: Loss) -> F {
+    pub fn pass(
+        &mut self,
+        params: &Params<F>,
+        m: usize,
+        activation: Activation,
+        head: Head,
+        loss: Loss,
+    ) -> F {
         let n_layers = params.n_layers();
         self.fwd.run(params, m, activation, n_layers);
         let last = n_layers - 1;
@@ -244,7 +261,8 @@ impl<F: Real> Backprop<F> {
                 let yr = self.targets.row(i);
                 let yr = yr.as_slice().expect("contiguous");
                 let dr = d.row_mut(i).into_slice().expect("contiguous");
-                total = total + crate::train::loss::row_loss_delta(head, loss, zr, yr, Some(dr), scale);
+                total =
+                    total + crate::train::loss::row_loss_delta(head, loss, zr, yr, Some(dr), scale);
             }
         }
         for l in (0..n_layers).rev() {
@@ -257,7 +275,8 @@ impl<F: Real> Backprop<F> {
                 self.fwd.acts[l - 1].slice(s![..m, ..])
             };
             {
-                let mut gw = ArrayViewMut2::from_shape((n_in, n_out), &mut self.grad[wr]).expect("layout");
+                let mut gw =
+                    ArrayViewMut2::from_shape((n_in, n_out), &mut self.grad[wr]).expect("layout");
                 general_mat_mul(F::one(), &input.t(), &delta, F::zero(), &mut gw);
             }
             let gb = &mut self.grad[br];
@@ -271,7 +290,13 @@ impl<F: Real> Backprop<F> {
                 let (before, after) = self.deltas.split_at_mut(l);
                 let delta = after[0].slice(s![..m, ..]);
                 let mut prev = before[l - 1].slice_mut(s![..m, ..]);
-                general_mat_mul(F::one(), &delta, &params.weights(l).t(), F::zero(), &mut prev);
+                general_mat_mul(
+                    F::one(),
+                    &delta,
+                    &params.weights(l).t(),
+                    F::zero(),
+                    &mut prev,
+                );
                 let a = self.fwd.acts[l - 1].slice(s![..m, ..]);
                 match activation {
                     Activation::Identity => {}
@@ -306,7 +331,9 @@ pub(crate) fn evaluate<F: Real>(
     for start in (0..x.nrows()).step_by(capacity) {
         let end = (start + capacity).min(x.nrows());
         let m = end - start;
-        ws.input.slice_mut(s![..m, ..]).assign(&x.slice(s![start..end, ..]));
+        ws.input
+            .slice_mut(s![..m, ..])
+            .assign(&x.slice(s![start..end, ..]));
         ws.run(params, m, activation, n_layers);
         let z = ws.acts.last_mut().expect("layers");
         let mut chunk_total = F::zero();
@@ -314,7 +341,8 @@ pub(crate) fn evaluate<F: Real>(
             let zr = z.row_mut(i).into_slice().expect("contiguous");
             let yr = y.row(start + i);
             let yr = yr.as_slice().expect("contiguous");
-            chunk_total = chunk_total + crate::train::loss::row_loss_delta(head, loss, zr, yr, None, F::one());
+            chunk_total = chunk_total
+                + crate::train::loss::row_loss_delta(head, loss, zr, yr, None, F::one());
             if classify {
                 let hit = if zr.len() == 1 {
                     (zr[0] >= F::from_f64(0.5)) == (yr[0] >= F::from_f64(0.5))

@@ -153,7 +153,14 @@ mod tests {
         let mut z = [-2.85f64, 0.86, 0.28];
         let y = [0.0, 0.0, 1.0];
         let mut d = [0.0; 3];
-        let e = row_loss_delta(Head::Softmax, Loss::CrossEntropy, &mut z, &y, Some(&mut d), 1.0);
+        let e = row_loss_delta(
+            Head::Softmax,
+            Loss::CrossEntropy,
+            &mut z,
+            &y,
+            Some(&mut d),
+            1.0,
+        );
         assert!((e - 1.04019057).abs() < 5e-9, "{e}");
         assert!((e - 1.04).abs() < 5e-3);
         for (p, r) in z.iter().zip([0.01544932, 0.63116335, 0.35338733]) {
@@ -167,10 +174,24 @@ mod tests {
     #[test]
     fn logistic_cross_entropy_is_finite_at_extremes() {
         let mut z = [800.0f64];
-        let e = row_loss_delta(Head::Logistic, Loss::CrossEntropy, &mut z, &[0.0], None, 1.0);
+        let e = row_loss_delta(
+            Head::Logistic,
+            Loss::CrossEntropy,
+            &mut z,
+            &[0.0],
+            None,
+            1.0,
+        );
         assert_eq!(e, 800.0);
         let mut z = [0.0f64];
-        let e = row_loss_delta(Head::Logistic, Loss::CrossEntropy, &mut z, &[1.0], None, 1.0);
+        let e = row_loss_delta(
+            Head::Logistic,
+            Loss::CrossEntropy,
+            &mut z,
+            &[1.0],
+            None,
+            1.0,
+        );
         assert!((e - std::f64::consts::LN_2).abs() < 1e-15);
     }
 }

@@ -87,7 +87,10 @@ impl TrainingReport {
 
     /// Validation loss per epoch (empty without validation rows).
     pub fn validation_losses(&self) -> Vec<f64> {
-        self.history.iter().filter_map(|e| e.validation_loss).collect()
+        self.history
+            .iter()
+            .filter_map(|e| e.validation_loss)
+            .collect()
     }
 
     /// The last epoch's training loss.
@@ -180,7 +183,15 @@ pub fn train<R: RngCore + ?Sized>(
     };
     let classify = matches!(data.target, Target::Classes { .. });
     let val_ref = val.as_ref().map(|(x, y)| (x.view(), y.view()));
-    train_arrays_inner(network, data.features.view(), y.view(), val_ref, classify, options, rng)
+    train_arrays_inner(
+        network,
+        data.features.view(),
+        y.view(),
+        val_ref,
+        classify,
+        options,
+        rng,
+    )
 }
 
 /// Trains on plain arrays: `x` rows of inputs and `y` rows of targets in the
@@ -228,18 +239,34 @@ fn train_arrays_inner<R: RngCore + ?Sized>(
     }
 }
 
-fn check_xy(net: &Network, x: ArrayView2<'_, f64>, y: ArrayView2<'_, f64>, what: &str) -> Result<()> {
+fn check_xy(
+    net: &Network,
+    x: ArrayView2<'_, f64>,
+    y: ArrayView2<'_, f64>,
+    what: &str,
+) -> Result<()> {
     if x.ncols() != net.n_inputs() {
-        return Err(Error::shape(format!("{what} inputs"), (x.nrows(), net.n_inputs()), x.dim()));
+        return Err(Error::shape(
+            format!("{what} inputs"),
+            (x.nrows(), net.n_inputs()),
+            x.dim(),
+        ));
     }
     if y.dim() != (x.nrows(), net.n_outputs()) {
-        return Err(Error::shape(format!("{what} targets"), (x.nrows(), net.n_outputs()), y.dim()));
+        return Err(Error::shape(
+            format!("{what} targets"),
+            (x.nrows(), net.n_outputs()),
+            y.dim(),
+        ));
     }
     if x.nrows() == 0 {
         return Err(Error::input(what, "there are no rows"));
     }
     if x.iter().chain(y.iter()).any(|v| !v.is_finite()) {
-        return Err(Error::input(what, "inputs and targets must be finite numbers"));
+        return Err(Error::input(
+            what,
+            "inputs and targets must be finite numbers",
+        ));
     }
     Ok(())
 }
@@ -292,19 +319,29 @@ fn run<F: Real, R: RngCore + ?Sized>(
     let mut since_best = 0;
     let mut stopped_early = false;
     for epoch in 0..options.epochs {
-        let rate = options.schedule.rate(options.learning_rate, epoch, options.epochs);
+        let rate = options
+            .schedule
+            .rate(options.learning_rate, epoch, options.epochs);
         if options.shuffle {
             rng::shuffle(rng, &mut order);
         }
         let mut epoch_loss = 0.0f64;
         for rows in order.chunks(batch) {
             bp.gather(&xf, &yf, rows);
-            let batch_loss = bp.pass(&params, rows.len(), activation, head, loss).as_f64();
+            let batch_loss = bp
+                .pass(&params, rows.len(), activation, head, loss)
+                .as_f64();
             if !batch_loss.is_finite() {
                 return Err(diverged(epoch + 1, rate, batch_loss));
             }
             epoch_loss += batch_loss;
-            update(&mut params, &bp.grad, &mut state, options, F::from_f64(rate));
+            update(
+                &mut params,
+                &bp.grad,
+                &mut state,
+                options,
+                F::from_f64(rate),
+            );
         }
         let training_loss = epoch_loss / n as f64;
         if !training_loss.is_finite() || params.data.iter().any(|v| !v.is_finite()) {
@@ -312,12 +349,16 @@ fn run<F: Real, R: RngCore + ?Sized>(
         }
         let (validation_loss, validation_accuracy) = match (&val, eval_ws.as_mut()) {
             (Some((vx, vy)), Some(ws)) => {
-                let (total, correct) = evaluate(&params, ws, vx, vy, activation, head, loss, classify);
+                let (total, correct) =
+                    evaluate(&params, ws, vx, vy, activation, head, loss, classify);
                 let mean = total / vx.nrows() as f64;
                 if !mean.is_finite() {
                     return Err(diverged(epoch + 1, rate, mean));
                 }
-                (Some(mean), classify.then(|| correct as f64 / vx.nrows() as f64))
+                (
+                    Some(mean),
+                    classify.then(|| correct as f64 / vx.nrows() as f64),
+                )
             }
             _ => (None, None),
         };
@@ -330,7 +371,11 @@ fn run<F: Real, R: RngCore + ?Sized>(
             elapsed_seconds: start.elapsed().as_secs_f64(),
         });
         if options.progress_every > 0 && (epoch + 1) % options.progress_every == 0 {
-            let mut line = format!("epoch {}/{}: training loss {training_loss:.6}", epoch + 1, options.epochs);
+            let mut line = format!(
+                "epoch {}/{}: training loss {training_loss:.6}",
+                epoch + 1,
+                options.epochs
+            );
             if let Some(v) = validation_loss {
                 line.push_str(&format!(", validation loss {v:.6}"));
             }
@@ -396,7 +441,13 @@ fn diverged(epoch: usize, learning_rate: f64, loss: f64) -> Error {
 }
 
 /// Applies one update to every parameter (see [`options`] for the rules).
-fn update<F: Real>(params: &mut Params<F>, grad: &[F], state: &mut State<F>, options: &TrainingOptions, rate: F) {
+fn update<F: Real>(
+    params: &mut Params<F>,
+    grad: &[F],
+    state: &mut State<F>,
+    options: &TrainingOptions,
+    rate: F,
+) {
     state.updates += 1;
     let decay = F::from_f64(options.weight_decay);
     let l1 = F::from_f64(options.l1_penalty);
@@ -450,11 +501,14 @@ fn update<F: Real>(params: &mut Params<F>, grad: &[F], state: &mut State<F>, opt
                     beta2,
                     epsilon,
                 } => {
-                    let (b1, b2, eps) = (F::from_f64(beta1), F::from_f64(beta2), F::from_f64(epsilon));
+                    let (b1, b2, eps) =
+                        (F::from_f64(beta1), F::from_f64(beta2), F::from_f64(epsilon));
                     let c1 = F::one() - F::from_f64(beta1.powi(state.updates));
                     let c2 = F::one() - F::from_f64(beta2.powi(state.updates));
                     let s = &mut state.second[range.clone()];
-                    for (((wi, &gi), mi), si) in w.iter_mut().zip(g).zip(v.iter_mut()).zip(s.iter_mut()) {
+                    for (((wi, &gi), mi), si) in
+                        w.iter_mut().zip(g).zip(v.iter_mut()).zip(s.iter_mut())
+                    {
                         let gt = gi + penalty(*wi);
                         *mi = b1 * *mi + (F::one() - b1) * gt;
                         *si = b2 * *si + (F::one() - b2) * gt * gt;
@@ -471,10 +525,19 @@ fn update<F: Real>(params: &mut Params<F>, grad: &[F], state: &mut State<F>, opt
 ///
 /// # Errors
 /// Mismatched shapes; cross-entropy with the identity head.
-pub fn mean_loss(network: &Network, x: ArrayView2<'_, f64>, y: ArrayView2<'_, f64>, loss: Loss) -> Result<f64> {
+pub fn mean_loss(
+    network: &Network,
+    x: ArrayView2<'_, f64>,
+    y: ArrayView2<'_, f64>,
+    loss: Loss,
+) -> Result<f64> {
     check_xy(network, x, y, "loss")?;
     if loss == Loss::CrossEntropy && network.head() == Head::Identity {
-        return Err(Error::option("loss", "cross_entropy", "needs a logistic or softmax head"));
+        return Err(Error::option(
+            "loss",
+            "cross_entropy",
+            "needs a logistic or softmax head",
+        ));
     }
     Ok(match network.precision() {
         Precision::F64 => mean_loss_in::<f64>(network, x, y, loss),
@@ -482,7 +545,12 @@ pub fn mean_loss(network: &Network, x: ArrayView2<'_, f64>, y: ArrayView2<'_, f6
     })
 }
 
-fn mean_loss_in<F: Real>(network: &Network, x: ArrayView2<'_, f64>, y: ArrayView2<'_, f64>, loss: Loss) -> f64 {
+fn mean_loss_in<F: Real>(
+    network: &Network,
+    x: ArrayView2<'_, f64>,
+    y: ArrayView2<'_, f64>,
+    loss: Loss,
+) -> f64 {
     let params = Params::<F>::from_network(network);
     let mut ws = Forward::new(&params, engine::EVAL_CHUNK.min(x.nrows()));
     let (total, _) = evaluate(

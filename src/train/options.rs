@@ -220,7 +220,11 @@ fn positive(name: &str, v: f64) -> Result<()> {
     if v > 0.0 && v.is_finite() {
         Ok(())
     } else {
-        Err(Error::option(name, v, "must be a finite number greater than 0"))
+        Err(Error::option(
+            name,
+            v,
+            "must be a finite number greater than 0",
+        ))
     }
 }
 
@@ -228,7 +232,11 @@ fn non_negative(name: &str, v: f64) -> Result<()> {
     if v >= 0.0 && v.is_finite() {
         Ok(())
     } else {
-        Err(Error::option(name, v, "must be a finite number, 0 or greater"))
+        Err(Error::option(
+            name,
+            v,
+            "must be a finite number, 0 or greater",
+        ))
     }
 }
 
@@ -267,7 +275,9 @@ impl TrainingOptions {
         non_negative("l1_penalty", self.l1_penalty)?;
         match self.optimiser {
             Optimiser::Sgd => {}
-            Optimiser::Momentum { mu } | Optimiser::Nesterov { mu } => unit_open("momentum mu", mu)?,
+            Optimiser::Momentum { mu } | Optimiser::Nesterov { mu } => {
+                unit_open("momentum mu", mu)?
+            }
             Optimiser::Adam {
                 beta1,
                 beta2,
@@ -285,7 +295,11 @@ impl TrainingOptions {
                     return Err(Error::option("schedule every", 0, "must be at least 1"));
                 }
                 if !(factor > 0.0 && factor <= 1.0) {
-                    return Err(Error::option("schedule factor", factor, "must be in (0, 1]"));
+                    return Err(Error::option(
+                        "schedule factor",
+                        factor,
+                        "must be in (0, 1]",
+                    ));
                 }
             }
             Schedule::Exponential { gamma } => {
@@ -313,7 +327,11 @@ impl TrainingOptions {
                 ));
             }
             if es.patience == 0 {
-                return Err(Error::option("early_stopping patience", 0, "must be at least 1"));
+                return Err(Error::option(
+                    "early_stopping patience",
+                    0,
+                    "must be at least 1",
+                ));
             }
             non_negative("early_stopping min_improvement", es.min_improvement)?;
         }
@@ -332,14 +350,26 @@ mod tests {
 
     #[test]
     fn refusals_name_the_option() {
-        let o = TrainingOptions { epochs: 0, ..Default::default() };
-        assert_eq!(o.validate(10, true).unwrap_err().to_string(), "option epochs = 0: must be at least 1");
-        let o = TrainingOptions { learning_rate: -0.1, ..Default::default() };
+        let o = TrainingOptions {
+            epochs: 0,
+            ..Default::default()
+        };
+        assert_eq!(
+            o.validate(10, true).unwrap_err().to_string(),
+            "option epochs = 0: must be at least 1"
+        );
+        let o = TrainingOptions {
+            learning_rate: -0.1,
+            ..Default::default()
+        };
         assert_eq!(
             o.validate(100, true).unwrap_err().to_string(),
             "option learning_rate = -0.1: must be a finite number greater than 0"
         );
-        let o = TrainingOptions { batch_size: 64, ..Default::default() };
+        let o = TrainingOptions {
+            batch_size: 64,
+            ..Default::default()
+        };
         assert_eq!(
             o.validate(10, true).unwrap_err().to_string(),
             "option batch_size = 64: must be at most the number of training rows (10); for full-batch descent use batch_size = 10"
@@ -353,8 +383,18 @@ mod tests {
 
     #[test]
     fn schedules() {
-        assert_eq!(Schedule::Step { every: 10, factor: 0.5 }.rate(1.0, 25, 100), 0.25);
-        assert_eq!(Schedule::Exponential { gamma: 0.5 }.rate(1.0, 3, 100), 0.125);
+        assert_eq!(
+            Schedule::Step {
+                every: 10,
+                factor: 0.5
+            }
+            .rate(1.0, 25, 100),
+            0.25
+        );
+        assert_eq!(
+            Schedule::Exponential { gamma: 0.5 }.rate(1.0, 3, 100),
+            0.125
+        );
         assert_eq!(Schedule::Cosine { min_rate: 0.0 }.rate(1.0, 0, 100), 1.0);
         assert!((Schedule::Cosine { min_rate: 0.0 }.rate(1.0, 50, 100) - 0.5).abs() < 1e-15);
     }

@@ -1,1 +1,11 @@
+//! stratanet's integration tests, in one binary (see DEVELOPERS.md).
+//!
+//! Every check against an outside source names it beside the check.
 
+mod classic_problems;
+mod csv_errors;
+mod determinism;
+mod gradients;
+mod iris;
+mod support;
+mod worked_examples;
