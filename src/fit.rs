@@ -222,6 +222,33 @@ pub struct Model {
     pub options: FitOptions,
     /// The seed all of the fit's draws came from.
     pub seed: u64,
+    /// How and from what the model was made.
+    pub provenance: Provenance,
+}
+
+/// Where a model came from: the library, the table and a summary of training.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Provenance {
+    /// The stratanet version that trained the model.
+    pub library_version: String,
+    /// [`Dataset::fingerprint`] of the whole table given to `fit`.
+    pub table_fingerprint: String,
+    /// Rows in that table.
+    pub table_rows: usize,
+    /// Where the table came from (its path, or a description).
+    pub table_source: String,
+    /// Rows used for training and for validation.
+    pub rows_used: (usize, usize),
+    /// Epochs run by the kept restart.
+    pub epochs_run: usize,
+    /// The epoch whose weights were kept.
+    pub best_epoch: usize,
+    /// The best validation loss, when there were validation rows.
+    pub best_validation_loss: Option<f64>,
+    /// Whether early stopping ended training.
+    pub stopped_early: bool,
+    /// The final training loss of the kept restart.
+    pub final_training_loss: f64,
 }
 
 impl Model {
@@ -422,6 +449,18 @@ pub fn fit_with_seed(data: &Dataset, options: &FitOptions, seed: u64) -> Result<
         is_classifier: data.labels().is_some(),
         options: options.clone(),
         seed,
+        provenance: Provenance {
+            library_version: env!("CARGO_PKG_VERSION").to_string(),
+            table_fingerprint: data.fingerprint(),
+            table_rows: data.n_rows(),
+            table_source: data.source.clone(),
+            rows_used: (split.train.len(), split.validation.len()),
+            epochs_run: report.epochs_run,
+            best_epoch: report.best_epoch,
+            best_validation_loss: report.best_validation_loss,
+            stopped_early: report.stopped_early,
+            final_training_loss: report.final_training_loss(),
+        },
     };
     Ok(Fitted {
         model,

@@ -30,6 +30,6 @@ pub mod validate;
 pub use error::{Error, ErrorKind, Result};
 pub use rng::seeded_rng;
 
-pub use fit::{fit, fit_with_seed, FitOptions, Fitted, Model};
+pub use fit::{fit, fit_with_seed, FitOptions, Fitted, Model, Provenance};
 pub use ndarray;
 pub use rand;

@@ -375,6 +375,40 @@ impl Dataset {
         }
     }
 
+    /// A SHA-256 fingerprint (hex) of the table's content: feature names,
+    /// target name and names, every feature value's bits and every target.
+    /// Two tables with the same fingerprint hold the same numbers in the
+    /// same order (FIPS 180-4 SHA-256, via the `sha2` crate).
+    pub fn fingerprint(&self) -> String {
+        use sha2::{Digest, Sha256};
+        let mut h = Sha256::new();
+        let mut text = |s: &str| {
+            h.update((s.len() as u64).to_le_bytes());
+            h.update(s.as_bytes());
+        };
+        for n in &self.feature_names {
+            text(n);
+        }
+        text(&self.target_name);
+        for n in self.target.names() {
+            text(n);
+        }
+        h.update((self.features.nrows() as u64).to_le_bytes());
+        h.update((self.features.ncols() as u64).to_le_bytes());
+        for v in self.features.iter() {
+            h.update(v.to_bits().to_le_bytes());
+        }
+        match &self.target {
+            Target::Classes { labels, .. } => labels
+                .iter()
+                .for_each(|&l| h.update((l as u64).to_le_bytes())),
+            Target::Values { values, .. } => values
+                .iter()
+                .for_each(|v| h.update(v.to_bits().to_le_bytes())),
+        }
+        h.finalize().iter().map(|b| format!("{b:02x}")).collect()
+    }
+
     /// The index of a feature column by name.
     ///
     /// # Errors
