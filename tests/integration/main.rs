@@ -4,6 +4,7 @@
 
 mod classic_problems;
 mod csv_errors;
+mod demo_data;
 mod determinism;
 mod gradients;
 mod iris;
