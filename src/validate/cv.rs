@@ -1,0 +1,342 @@
+//! Cross-validation without leaks, in parallel and bit-identical to a
+//! sequential run.
+//!
+//! [`cross_validate`] draws, up front and in this order from the caller's
+//! generator: the fold plan (stratified k-fold for classes, repeated when
+//! asked; plain k-fold for numbers), then one seed per fold. Each fold then
+//! depends only on its rows and its seed, so folds can run on any number of
+//! threads in any order and give the same numbers. Inside a fold, [`fit`]
+//! sees only the fold's training rows: the validation split, the scaler and
+//! early stopping are all fitted there, and the held-out rows are touched
+//! only to be scored. (The one-hot level set is read from the whole table
+//! when it is loaded; it carries no statistic of the target, and a level
+//! absent from a fold's training rows is a column of zeros there.)
+//!
+//! Each metric is summarised over folds as mean, sample standard deviation
+//! and a 95% interval `mean +- t_{0.975, k-1} sd / sqrt(k)` (Student t over
+//! folds). Caveat: folds share training rows, so their scores are not
+//! independent and this interval is too narrow; there is no unbiased
+//! estimator of the variance of k-fold cross-validation (Bengio & Grandvalet,
+//! JMLR 5, 2004). Read it as a guide to the spread, not as a guarantee.
+
+use super::metrics::{ClassificationMetrics, Metric, RegressionMetrics};
+use super::stats::{summarise, Summary};
+use crate::data::{kfold, repeated_stratified_folds, Dataset, Fold, Target};
+use crate::error::{Error, Result};
+use crate::fit::{fit_with_seed, FitOptions, Model};
+use crate::rng;
+use crate::train::TrainingReport;
+use ndarray::Array2;
+use rand::RngCore;
+use rayon::prelude::*;
+use serde::{Deserialize, Serialize};
+
+/// How to cross-validate.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(default)]
+pub struct CvOptions {
+    /// Folds per repeat, `k` (>= 2).
+    pub folds: usize,
+    /// Independent repeats of the k-fold plan (>= 1).
+    pub repeats: usize,
+    /// Run folds in parallel (the numbers are the same either way).
+    pub parallel: bool,
+    /// Print one line per finished fold on stderr.
+    pub progress: bool,
+}
+
+impl Default for CvOptions {
+    fn default() -> Self {
+        CvOptions {
+            folds: 5,
+            repeats: 1,
+            parallel: true,
+            progress: false,
+        }
+    }
+}
+
+/// Scores of one set of predictions.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Scores {
+    /// A classifier's metrics.
+    Classification(ClassificationMetrics),
+    /// A regression model's metrics.
+    Regression(RegressionMetrics),
+}
+
+impl Scores {
+    /// Scores a model on a labelled table.
+    ///
+    /// # Errors
+    /// When the table's features or target do not fit the model.
+    pub fn of(model: &Model, data: &Dataset) -> Result<(Scores, Array2<f64>)> {
+        model.check_features(data)?;
+        match &data.target {
+            Target::Classes { labels, names } => {
+                let p = model.predict_probabilities(data.x())?;
+                let m = ClassificationMetrics::from_probabilities(labels, p.view())?.with_class_names(names)?;
+                Ok((Scores::Classification(m), p))
+            }
+            Target::Values { values, .. } => {
+                let out = model.predict(data.x())?;
+                let m = RegressionMetrics::from_arrays(values.view(), out.view())?;
+                Ok((Scores::Regression(m), out))
+            }
+        }
+    }
+
+    /// The value of one metric (undefined values are 0 and carry a note).
+    ///
+    /// # Errors
+    /// A metric that does not apply (e.g. R^2 for a classifier).
+    pub fn value(&self, metric: Metric) -> Result<f64> {
+        Ok(match self {
+            Scores::Classification(m) => m.value(metric)?.value,
+            Scores::Regression(m) => m.value(metric)?.value,
+        })
+    }
+
+    /// Notes on undefined values.
+    pub fn notes(&self) -> Vec<String> {
+        match self {
+            Scores::Classification(m) => m.note_lines(),
+            Scores::Regression(m) => m.notes.iter().map(|n| n.to_string()).collect(),
+        }
+    }
+
+    /// The metrics that apply to this kind of model, in display order.
+    pub fn metrics(&self) -> Vec<Metric> {
+        match self {
+            Scores::Classification(_) => Metric::ALL.iter().copied().filter(|m| !m.is_regression()).collect(),
+            Scores::Regression(_) => Metric::ALL.iter().copied().filter(|m| m.is_regression()).collect(),
+        }
+    }
+}
+
+/// One fold's outcome.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct FoldResult {
+    /// The fold's index in the plan (from 0; repeat r's folds follow repeat r-1's).
+    pub index: usize,
+    /// The seed the fold's fit drew from.
+    pub seed: u64,
+    /// Number of rows the fold trained on (before its validation split).
+    pub train_rows: usize,
+    /// The held-out rows (indices into the table).
+    pub test_rows: Vec<usize>,
+    /// Scores on the held-out rows.
+    pub scores: Scores,
+    /// Predictions on the held-out rows: class probabilities or values.
+    pub predictions: Array2<f64>,
+    /// The fold's training history.
+    pub report: TrainingReport,
+}
+
+/// One metric summarised over folds.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct MetricSummary {
+    /// The metric.
+    pub metric: Metric,
+    /// Its value in each fold, in fold order.
+    pub values: Vec<f64>,
+    /// Mean, standard deviation and 95% interval.
+    pub summary: Summary,
+}
+
+/// The outcome of [`cross_validate`].
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct CrossValidation {
+    /// What was validated.
+    pub options: FitOptions,
+    /// How.
+    pub cv: CvOptions,
+    /// Rows in the table.
+    pub n_rows: usize,
+    /// Class names (empty for regression).
+    pub class_names: Vec<String>,
+    /// Every fold's result, in plan order.
+    pub folds: Vec<FoldResult>,
+    /// Every applicable metric over the folds.
+    pub summary: Vec<MetricSummary>,
+}
+
+impl CrossValidation {
+    /// The summary of one metric.
+    ///
+    /// # Errors
+    /// When the metric does not apply to this kind of model.
+    pub fn metric(&self, metric: Metric) -> Result<&MetricSummary> {
+        self.summary.iter().find(|s| s.metric == metric).ok_or_else(|| {
+            Error::option(
+                "metric",
+                metric.name(),
+                format!(
+                    "does not apply here; available: {}",
+                    self.summary.iter().map(|s| s.metric.name()).collect::<Vec<_>>().join(", ")
+                ),
+            )
+        })
+    }
+
+    /// Mean training and held-out row counts per fold.
+    pub fn mean_rows(&self) -> (f64, f64) {
+        let k = self.folds.len() as f64;
+        let train = self.folds.iter().map(|f| f.train_rows as f64).sum::<f64>() / k;
+        let test = self.folds.iter().map(|f| f.test_rows.len() as f64).sum::<f64>() / k;
+        (train, test)
+    }
+
+    /// Notes on undefined values in any fold, prefixed with the fold.
+    pub fn notes(&self) -> Vec<String> {
+        self.folds
+            .iter()
+            .flat_map(|f| f.scores.notes().into_iter().map(move |n| format!("fold {}: {n}", f.index + 1)))
+            .collect()
+    }
+}
+
+/// A fold plan and the seed of each fold, drawn from one generator.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct FoldPlan {
+    /// The folds.
+    pub folds: Vec<Fold>,
+    /// One seed per fold.
+    pub seeds: Vec<u64>,
+}
+
+impl FoldPlan {
+    /// Draws the plan for `data` (stratified for classes).
+    ///
+    /// # Errors
+    /// Invalid fold or repeat counts for the data (named, with the valid range).
+    pub fn draw<R: RngCore + ?Sized>(data: &Dataset, cv: &CvOptions, rng: &mut R) -> Result<FoldPlan> {
+        if cv.repeats == 0 {
+            return Err(Error::option("repeats", 0, "must be at least 1"));
+        }
+        let folds = match data.labels() {
+            Some(labels) => repeated_stratified_folds(labels, cv.folds, cv.repeats, rng)?,
+            None => {
+                let mut all = Vec::new();
+                for _ in 0..cv.repeats {
+                    all.extend(kfold(data.n_rows(), cv.folds, rng)?);
+                }
+                all
+            }
+        };
+        let seeds = folds.iter().map(|_| rng::child_seed(rng)).collect();
+        Ok(FoldPlan { folds, seeds })
+    }
+}
+
+/// Cross-validates `options` on `data` (see the module docs).
+///
+/// # Errors
+/// Invalid options; a fold whose training rows lack a class; divergence in any fold.
+///
+/// # Example
+/// ```
+/// use stratanet::prelude::*;
+/// use stratanet::validate::{cross_validate, CvOptions, Metric};
+/// let data = stratanet::data::CsvOptions::new("verdict").drop(&["part_id"])
+///     .read(concat!(env!("CARGO_MANIFEST_DIR"), "/demo-data/parts.csv"))?;
+/// let options = FitOptions::default().hidden(&[6]).epochs(30);
+/// let cv = cross_validate(&data, &options, &CvOptions { folds: 3, ..Default::default() }, &mut seeded_rng(1))?;
+/// assert_eq!(cv.folds.len(), 3);
+/// assert!(cv.metric(Metric::Accuracy)?.summary.mean > 0.5);
+/// # Ok::<(), stratanet::Error>(())
+/// ```
+pub fn cross_validate<R: RngCore + ?Sized>(
+    data: &Dataset,
+    options: &FitOptions,
+    cv: &CvOptions,
+    rng: &mut R,
+) -> Result<CrossValidation> {
+    let plan = FoldPlan::draw(data, cv, rng)?;
+    cross_validate_with_plan(data, options, cv, &plan)
+}
+
+/// Cross-validates on a given plan (the same plan for several configurations
+/// makes their fold scores paired).
+///
+/// # Errors
+/// As [`cross_validate`].
+pub fn cross_validate_with_plan(
+    data: &Dataset,
+    options: &FitOptions,
+    cv: &CvOptions,
+    plan: &FoldPlan,
+) -> Result<CrossValidation> {
+    options.validate()?;
+    let run = |k: usize| -> Result<FoldResult> { run_fold(data, options, plan, k, cv.progress) };
+    let results: Vec<Result<FoldResult>> = if cv.parallel {
+        (0..plan.folds.len()).into_par_iter().map(run).collect()
+    } else {
+        (0..plan.folds.len()).map(run).collect()
+    };
+    let folds: Vec<FoldResult> = results.into_iter().collect::<Result<_>>()?;
+    let summary = summarise_folds(&folds)?;
+    Ok(CrossValidation {
+        options: options.clone(),
+        cv: cv.clone(),
+        n_rows: data.n_rows(),
+        class_names: data.class_names().map(<[String]>::to_vec).unwrap_or_default(),
+        folds,
+        summary,
+    })
+}
+
+pub(crate) fn run_fold(data: &Dataset, options: &FitOptions, plan: &FoldPlan, k: usize, progress: bool) -> Result<FoldResult> {
+    let fold = &plan.folds[k];
+    let train = data.select(&fold.train);
+    let test = data.select(&fold.test);
+    if let (Some(all), Some(labels)) = (data.class_names(), train.labels()) {
+        let mut seen = vec![false; all.len()];
+        labels.iter().for_each(|&l| seen[l] = true);
+        if let Some(missing) = seen.iter().position(|s| !s) {
+            return Err(Error::input(
+                format!("cross-validation fold {}", k + 1),
+                format!(
+                    "its training rows hold no row of class \"{}\"; use fewer folds (at most the smallest class count)",
+                    all[missing]
+                ),
+            ));
+        }
+    }
+    let fitted = fit_with_seed(&train, options, plan.seeds[k]).map_err(|e| {
+        Error::input(format!("cross-validation fold {}", k + 1), e.to_string())
+    })?;
+    let (scores, predictions) = Scores::of(&fitted.model, &test)?;
+    if progress {
+        eprintln!("fold {}/{} done", k + 1, plan.folds.len());
+    }
+    Ok(FoldResult {
+        index: k,
+        seed: plan.seeds[k],
+        train_rows: fold.train.len(),
+        test_rows: fold.test.clone(),
+        scores,
+        predictions,
+        report: fitted.report,
+    })
+}
+
+pub(crate) fn summarise_folds(folds: &[FoldResult]) -> Result<Vec<MetricSummary>> {
+    let Some(first) = folds.first() else {
+        return Err(Error::input("cross-validation", "there are no folds"));
+    };
+    first
+        .scores
+        .metrics()
+        .into_iter()
+        .map(|metric| {
+            let values = folds.iter().map(|f| f.scores.value(metric)).collect::<Result<Vec<f64>>>()?;
+            Ok(MetricSummary {
+                metric,
+                summary: summarise(&values)?,
+                values,
+            })
+        })
+        .collect()
+}
