@@ -847,7 +847,7 @@ pub struct RocCurve {
 /// that division.
 ///
 /// Sources: T. Fawcett, "An introduction to ROC analysis", Pattern Recognition
-/// Letters 27 (2006) 861-874, Algorithms 1 and 3 (points and area); J. A.
+/// Letters 27 (2006) 861-874, Algorithms 1 and 2 (points and area); J. A.
 /// Hanley & B. J. McNeil, "The meaning and use of the area under a receiver
 /// operating characteristic (ROC) curve", Radiology 143 (1982) 29-36 (AUC = U
 /// of H. B. Mann & D. R. Whitney, Annals of Mathematical Statistics 18, 1947,
@@ -947,10 +947,13 @@ pub struct OneVsRestAuc {
 /// macro = (1 / |K|) sum_{k in K} AUC_k,   K = classes present in truth (when at least two are)
 /// ```
 ///
-/// Source: F. Provost & P. Domingos, "Well-trained PETs: improving probability
-/// estimation trees", CeDER working paper IS-00-04, 2000 (one-vs-rest), and
-/// Fawcett 2006, section 10 (who weights by prevalence; this function does
-/// not, as scikit-learn's `multi_class="ovr", average="macro"`).
+/// Source: Fawcett 2006, section 10.2, which gives this one-vs-rest
+/// construction with the class AUCs weighted by prevalence (after F. Provost
+/// & P. Domingos, "Well-trained PETs: improving probability estimation
+/// trees", NYU CeDER working paper IS-00-04, 2000). This function takes the
+/// unweighted mean instead, as scikit-learn's `multi_class="ovr",
+/// average="macro"` (common practice), so that rare classes count as much as
+/// common ones.
 ///
 /// # Errors
 /// As [`log_loss`] for the probabilities.

@@ -1,3 +1,19 @@
 //! Validation: metrics on labelled sets and statistical tests for comparing models.
+//!
+//! - [`metrics`]: confusion matrix, accuracy, balanced accuracy, F1, Cohen's
+//!   kappa, Matthews correlation, log-loss, Brier score, ROC and
+//!   precision-recall curves, AUC, regression errors, one-call summaries
+//!   ([`ClassificationMetrics`], [`RegressionMetrics`]) and metric names
+//!   ([`Metric`]) for sorting folds and sweeps.
+//! - [`stats`]: Student t, normal, chi-square and binomial distribution
+//!   functions, the per-fold [`Summary`] with a t interval, McNemar's test and
+//!   the corrected resampled t-test.
+//!
+//! Values that are undefined for the input (a class never predicted, a
+//! constant truth, ...) are never a silent `NaN`: they are 0 with a note
+//! saying why (see [`Score`]).
 pub mod metrics;
 pub mod stats;
+
+pub use metrics::{ClassificationMetrics, ConfusionMatrix, Metric, RegressionMetrics, Score};
+pub use stats::{corrected_resampled_t_test, mcnemar_test, McNemar, ResampledTTest, Summary};
