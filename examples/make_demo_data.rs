@@ -22,7 +22,8 @@ fn normal(rng: &mut ChaCha8Rng) -> f64 {
 /// flipped to a random other class, as an inspector's slips would be.
 pub fn parts(rows: usize, seed: u64) -> String {
     let mut rng = seeded_rng(seed);
-    let mut out = String::from("part_id,bore_dev_um,roundness_um,roughness_ra_um,spindle,verdict\n");
+    let mut out =
+        String::from("part_id,bore_dev_um,roundness_um,roughness_ra_um,spindle,verdict\n");
     let spindles = ["north", "south", "east"];
     for i in 0..rows {
         let spindle = (uniform01(&mut rng) * 3.0) as usize;

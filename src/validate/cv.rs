@@ -20,7 +20,7 @@
 //! JMLR 5, 2004). Read it as a guide to the spread, not as a guarantee.
 
 use super::metrics::{ClassificationMetrics, Metric, RegressionMetrics};
-use super::stats::{summarise, Summary};
+use super::stats::Summary;
 use crate::data::{kfold, repeated_stratified_folds, Dataset, Fold, Target};
 use crate::error::{Error, Result};
 use crate::fit::{fit_with_seed, FitOptions, Model};
@@ -76,7 +76,8 @@ impl Scores {
         match &data.target {
             Target::Classes { labels, names } => {
                 let p = model.predict_probabilities(data.x())?;
-                let m = ClassificationMetrics::from_probabilities(labels, p.view())?.with_class_names(names)?;
+                let m = ClassificationMetrics::from_probabilities(labels, p.view())?
+                    .with_class_names(names)?;
                 Ok((Scores::Classification(m), p))
             }
             Target::Values { values, .. } => {
@@ -109,8 +110,16 @@ impl Scores {
     /// The metrics that apply to this kind of model, in display order.
     pub fn metrics(&self) -> Vec<Metric> {
         match self {
-            Scores::Classification(_) => Metric::ALL.iter().copied().filter(|m| !m.is_regression()).collect(),
-            Scores::Regression(_) => Metric::ALL.iter().copied().filter(|m| m.is_regression()).collect(),
+            Scores::Classification(_) => Metric::ALL
+                .iter()
+                .copied()
+                .filter(|m| !m.is_regression())
+                .collect(),
+            Scores::Regression(_) => Metric::ALL
+                .iter()
+                .copied()
+                .filter(|m| m.is_regression())
+                .collect(),
         }
     }
 }
@@ -168,23 +177,35 @@ impl CrossValidation {
     /// # Errors
     /// When the metric does not apply to this kind of model.
     pub fn metric(&self, metric: Metric) -> Result<&MetricSummary> {
-        self.summary.iter().find(|s| s.metric == metric).ok_or_else(|| {
-            Error::option(
-                "metric",
-                metric.name(),
-                format!(
-                    "does not apply here; available: {}",
-                    self.summary.iter().map(|s| s.metric.name()).collect::<Vec<_>>().join(", ")
-                ),
-            )
-        })
+        self.summary
+            .iter()
+            .find(|s| s.metric == metric)
+            .ok_or_else(|| {
+                Error::option(
+                    "metric",
+                    metric.name(),
+                    format!(
+                        "does not apply here; available: {}",
+                        self.summary
+                            .iter()
+                            .map(|s| s.metric.name())
+                            .collect::<Vec<_>>()
+                            .join(", ")
+                    ),
+                )
+            })
     }
 
     /// Mean training and held-out row counts per fold.
     pub fn mean_rows(&self) -> (f64, f64) {
         let k = self.folds.len() as f64;
         let train = self.folds.iter().map(|f| f.train_rows as f64).sum::<f64>() / k;
-        let test = self.folds.iter().map(|f| f.test_rows.len() as f64).sum::<f64>() / k;
+        let test = self
+            .folds
+            .iter()
+            .map(|f| f.test_rows.len() as f64)
+            .sum::<f64>()
+            / k;
         (train, test)
     }
 
@@ -192,7 +213,12 @@ impl CrossValidation {
     pub fn notes(&self) -> Vec<String> {
         self.folds
             .iter()
-            .flat_map(|f| f.scores.notes().into_iter().map(move |n| format!("fold {}: {n}", f.index + 1)))
+            .flat_map(|f| {
+                f.scores
+                    .notes()
+                    .into_iter()
+                    .map(move |n| format!("fold {}: {n}", f.index + 1))
+            })
             .collect()
     }
 }
@@ -211,7 +237,11 @@ impl FoldPlan {
     ///
     /// # Errors
     /// Invalid fold or repeat counts for the data (named, with the valid range).
-    pub fn draw<R: RngCore + ?Sized>(data: &Dataset, cv: &CvOptions, rng: &mut R) -> Result<FoldPlan> {
+    pub fn draw<R: RngCore + ?Sized>(
+        data: &Dataset,
+        cv: &CvOptions,
+        rng: &mut R,
+    ) -> Result<FoldPlan> {
         if cv.repeats == 0 {
             return Err(Error::option("repeats", 0, "must be at least 1"));
         }
@@ -281,13 +311,22 @@ pub fn cross_validate_with_plan(
         options: options.clone(),
         cv: cv.clone(),
         n_rows: data.n_rows(),
-        class_names: data.class_names().map(<[String]>::to_vec).unwrap_or_default(),
+        class_names: data
+            .class_names()
+            .map(<[String]>::to_vec)
+            .unwrap_or_default(),
         folds,
         summary,
     })
 }
 
-pub(crate) fn run_fold(data: &Dataset, options: &FitOptions, plan: &FoldPlan, k: usize, progress: bool) -> Result<FoldResult> {
+pub(crate) fn run_fold(
+    data: &Dataset,
+    options: &FitOptions,
+    plan: &FoldPlan,
+    k: usize,
+    progress: bool,
+) -> Result<FoldResult> {
     let fold = &plan.folds[k];
     let train = data.select(&fold.train);
     let test = data.select(&fold.test);
@@ -304,9 +343,8 @@ pub(crate) fn run_fold(data: &Dataset, options: &FitOptions, plan: &FoldPlan, k:
             ));
         }
     }
-    let fitted = fit_with_seed(&train, options, plan.seeds[k]).map_err(|e| {
-        Error::input(format!("cross-validation fold {}", k + 1), e.to_string())
-    })?;
+    let fitted = fit_with_seed(&train, options, plan.seeds[k])
+        .map_err(|e| Error::input(format!("cross-validation fold {}", k + 1), e.to_string()))?;
     let (scores, predictions) = Scores::of(&fitted.model, &test)?;
     if progress {
         eprintln!("fold {}/{} done", k + 1, plan.folds.len());
@@ -331,10 +369,13 @@ pub(crate) fn summarise_folds(folds: &[FoldResult]) -> Result<Vec<MetricSummary>
         .metrics()
         .into_iter()
         .map(|metric| {
-            let values = folds.iter().map(|f| f.scores.value(metric)).collect::<Result<Vec<f64>>>()?;
+            let values = folds
+                .iter()
+                .map(|f| f.scores.value(metric))
+                .collect::<Result<Vec<f64>>>()?;
             Ok(MetricSummary {
                 metric,
-                summary: summarise(&values)?,
+                summary: Summary::from_values(&values)?,
                 values,
             })
         })

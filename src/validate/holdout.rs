@@ -56,9 +56,17 @@ impl HoldOut {
     ///
     /// # Errors
     /// A fraction outside `(0, 1)` or too few rows per class.
-    pub fn split<R: RngCore + ?Sized>(data: &Dataset, fraction: f64, rng: &mut R) -> Result<(Dataset, HoldOut)> {
+    pub fn split<R: RngCore + ?Sized>(
+        data: &Dataset,
+        fraction: f64,
+        rng: &mut R,
+    ) -> Result<(Dataset, HoldOut)> {
         if !(fraction > 0.0 && fraction < 1.0) {
-            return Err(crate::Error::option("test_fraction", fraction, "must be above 0 and below 1"));
+            return Err(crate::Error::option(
+                "test_fraction",
+                fraction,
+                "must be above 0 and below 1",
+            ));
         }
         let split = match data.labels() {
             Some(labels) => stratified_split(labels, 0.0, fraction, rng)?,

@@ -56,7 +56,11 @@ impl Grid {
         let (decays, vary_d) = or_base(&self.weight_decays, base.training.weight_decay);
         let total = hidden.len() * acts.len() * rates.len() * batches.len() * decays.len();
         if total > 10_000 {
-            return Err(Error::option("grid", total, "has more than 10,000 configurations; split it into smaller sweeps"));
+            return Err(Error::option(
+                "grid",
+                total,
+                "has more than 10,000 configurations; split it into smaller sweeps",
+            ));
         }
         let mut out = Vec::with_capacity(total);
         for h in &hidden {
@@ -73,7 +77,14 @@ impl Grid {
                             let mut parts = Vec::new();
                             if vary_h || !vary_a && !vary_r && !vary_b && !vary_d {
                                 let widths: Vec<String> = h.iter().map(usize::to_string).collect();
-                                parts.push(format!("hidden {}", if widths.is_empty() { "none".into() } else { widths.join("-") }));
+                                parts.push(format!(
+                                    "hidden {}",
+                                    if widths.is_empty() {
+                                        "none".into()
+                                    } else {
+                                        widths.join("-")
+                                    }
+                                ));
                             }
                             if vary_a {
                                 parts.push(a.name().to_string());
@@ -172,7 +183,11 @@ impl SweepPlan {
     ) -> Result<SweepPlan> {
         let configurations = grid.configurations(base)?;
         if configurations.is_empty() {
-            return Err(Error::option("grid", "empty", "needs at least one configuration"));
+            return Err(Error::option(
+                "grid",
+                "empty",
+                "needs at least one configuration",
+            ));
         }
         if metric.is_regression() == data.labels().is_some() {
             return Err(Error::option(
@@ -186,7 +201,9 @@ impl SweepPlan {
             ));
         }
         for (name, o) in &configurations {
-            o.validate().map_err(|e| Error::input(format!("sweep configuration \"{name}\""), e.to_string()))?;
+            o.validate().map_err(|e| {
+                Error::input(format!("sweep configuration \"{name}\""), e.to_string())
+            })?;
         }
         let folds = FoldPlan::draw(data, cv, rng)?;
         Ok(SweepPlan {
@@ -218,7 +235,11 @@ impl SweepPlan {
     pub fn run_trial(&self, data: &Dataset, index: usize) -> Result<FoldResult> {
         let trials = self.configurations.len() * self.folds.folds.len();
         if index >= trials {
-            return Err(Error::option("trial", index, format!("must be below {trials}, the number of trials in the plan")));
+            return Err(Error::option(
+                "trial",
+                index,
+                format!("must be below {trials}, the number of trials in the plan"),
+            ));
         }
         if data.fingerprint() != self.table_fingerprint {
             return Err(Error::input(
@@ -235,12 +256,21 @@ impl SweepPlan {
     ///
     /// # Errors
     /// A missing or extra trial.
-    pub fn merge(&self, data_rows: usize, class_names: &[String], results: Vec<FoldResult>) -> Result<SweepTable> {
+    pub fn merge(
+        &self,
+        data_rows: usize,
+        class_names: &[String],
+        results: Vec<FoldResult>,
+    ) -> Result<SweepTable> {
         let k = self.folds.folds.len();
         if results.len() != self.configurations.len() * k {
             return Err(Error::input(
                 "merging sweep trials",
-                format!("expected {} trial results, found {}", self.configurations.len() * k, results.len()),
+                format!(
+                    "expected {} trial results, found {}",
+                    self.configurations.len() * k,
+                    results.len()
+                ),
             ));
         }
         let mut rows = Vec::with_capacity(self.configurations.len());
@@ -265,7 +295,11 @@ impl SweepPlan {
             });
         }
         let metric = self.metric;
-        rows.sort_by(|a, b| metric.best_first(a.summary.mean, b.summary.mean).then(a.index.cmp(&b.index)));
+        rows.sort_by(|a, b| {
+            metric
+                .best_first(a.summary.mean, b.summary.mean)
+                .then(a.index.cmp(&b.index))
+        });
         Ok(SweepTable { metric, rows })
     }
 }
@@ -290,7 +324,11 @@ pub fn sweep<R: RngCore + ?Sized>(
         .map(|t| {
             let r = plan.run_trial(data, t.index);
             if cv.progress {
-                eprintln!("trial {}/{} done", t.index + 1, plan.configurations.len() * plan.folds.folds.len());
+                eprintln!(
+                    "trial {}/{} done",
+                    t.index + 1,
+                    plan.configurations.len() * plan.folds.folds.len()
+                );
             }
             r
         })
@@ -298,6 +336,10 @@ pub fn sweep<R: RngCore + ?Sized>(
     let results = results.into_iter().collect::<Result<Vec<_>>>()?;
     let table = plan.merge(data.n_rows(), data.class_names().unwrap_or(&[]), results)?;
     let best_options = &plan.configurations[table.rows[0].index].1;
-    let best = fit(data, best_options, &mut crate::rng::seeded_rng(plan.refit_seed))?;
+    let best = fit(
+        data,
+        best_options,
+        &mut crate::rng::seeded_rng(plan.refit_seed),
+    )?;
     Ok(Sweep { table, best })
 }

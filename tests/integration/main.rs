@@ -9,4 +9,5 @@ mod determinism;
 mod gradients;
 mod iris;
 mod support;
+mod validation;
 mod worked_examples;
