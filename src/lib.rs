@@ -22,6 +22,7 @@ pub mod data;
 pub mod error;
 pub mod fit;
 pub mod network;
+pub mod notebook;
 pub mod prelude;
 pub mod rng;
 pub mod train;
