@@ -682,7 +682,8 @@ pub(crate) fn draw_axes(canvas: &Canvas, plot: Rect, x: &Axis, y: &Axis, grid: G
             last_right = px + half;
         }
     }
-    let mut last_top = f64::INFINITY;
+    // Vertical tick labels: skip any closer than a line to the previous one.
+    let mut last_y = f64::NAN;
     for tick in &y.ticks {
         let py = y.scale.map(tick.value);
         canvas.line(
@@ -691,7 +692,7 @@ pub(crate) fn draw_axes(canvas: &Canvas, plot: Rect, x: &Axis, y: &Axis, grid: G
             1.0,
             1.0,
         )?;
-        if py + size::TICK / 2.0 < last_top - 2.0 {
+        if last_y.is_nan() || (py - last_y).abs() >= size::TICK + 2.0 {
             canvas.text(
                 &tick.label,
                 plot.left - 7.0,
@@ -700,7 +701,7 @@ pub(crate) fn draw_axes(canvas: &Canvas, plot: Rect, x: &Axis, y: &Axis, grid: G
                 Align::Right,
                 Baseline::Middle,
             )?;
-            last_top = py - size::TICK / 2.0;
+            last_y = py;
         }
     }
     if !x.label.is_empty() {
@@ -886,14 +887,19 @@ pub(crate) struct Page {
 impl Page {
     /// Lays out a page of the canvas' size.
     pub fn new(canvas: &Canvas, title: &str, notes: Vec<String>) -> Page {
+        Page::sized(canvas.width, canvas.height, title, notes)
+    }
+
+    /// Lays out a page of `width` x `height` pixels.
+    pub fn sized(width: f64, height: f64, title: &str, notes: Vec<String>) -> Page {
         let m = size::MARGIN;
         let notes_height = notes.len() as f64 * (size::NOTE + 5.0);
         Page {
             content: Rect {
                 left: m,
                 top: m + size::TITLE + 14.0,
-                right: canvas.width - m,
-                bottom: canvas.height - m - notes_height - if notes.is_empty() { 0.0 } else { 4.0 },
+                right: width - m,
+                bottom: height - m - notes_height - if notes.is_empty() { 0.0 } else { 4.0 },
             },
             title: title.to_string(),
             notes,

@@ -54,15 +54,22 @@ use std::sync::atomic::{AtomicU64, Ordering};
 
 use crate::{Error, Result};
 
+mod confusion;
 mod contour;
+mod decision;
 mod draw;
+mod hidden;
 mod learning;
 mod pca;
+mod scatter;
 pub mod theme;
 
 #[cfg(test)]
 mod testing;
 
+pub use confusion::confusion_matrix;
+pub use decision::{decision_map, ClassPoints, DecisionMapOptions, CONTOUR_STROKE, CONTOUR_WIDTH};
+pub use hidden::{hidden_layer, HiddenView};
 pub use learning::{learning_curves, LearningCurveOptions, TrainingHistory, YScale};
 pub use pca::{principal_components_2, PrincipalComponents};
 
