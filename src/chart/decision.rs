@@ -361,9 +361,11 @@ fn draw_cells(
     codes: &[u16],
     colour_of: &dyn Fn(u16) -> Rgb,
 ) -> Result<()> {
-    // (first column, last column + 1, code) -> (first row, last row + 1)
-    let mut open: BTreeMap<(usize, usize, u16), (usize, usize)> = BTreeMap::new();
-    let mut done: Vec<((usize, usize, u16), (usize, usize))> = Vec::new();
+    // A run (first column, last column + 1, code) spans rows (first, last + 1).
+    type Run = (usize, usize, u16);
+    type Rows = (usize, usize);
+    let mut open: BTreeMap<Run, Rows> = BTreeMap::new();
+    let mut done: Vec<(Run, Rows)> = Vec::new();
     for j in 0..n {
         let row = &codes[j * n..(j + 1) * n];
         let mut runs = Vec::new();
@@ -374,7 +376,7 @@ fn draw_cells(
                 start = i;
             }
         }
-        let mut next: BTreeMap<(usize, usize, u16), (usize, usize)> = BTreeMap::new();
+        let mut next: BTreeMap<Run, Rows> = BTreeMap::new();
         for run in runs {
             let rows = match open.remove(&run) {
                 Some((first, _)) => (first, j + 1),
@@ -421,14 +423,14 @@ fn draw_colour_bar(canvas: &Canvas, x: f64, y: f64, heading: &str, width: f64) -
     canvas.text(&text, x, y, font.bold(), Align::Left, Baseline::Top)?;
     let top = y + size::LEGEND + 8.0;
     let band = 9.0;
-    for b in 0..11 {
+    for (b, colour) in SUNSET.iter().enumerate() {
         let rect = Rect {
             left: x + 4.0,
             right: x + 20.0,
             top: top + (10 - b) as f64 * band,
             bottom: top + (11 - b) as f64 * band,
         };
-        canvas.fill_rect(rect, SUNSET[b].mix(theme::WHITE, MAP_LIGHTEN), 1.0)?;
+        canvas.fill_rect(rect, colour.mix(theme::WHITE, MAP_LIGHTEN), 1.0)?;
     }
     let whole = Rect {
         left: x + 4.0,

@@ -382,17 +382,6 @@ impl Scale {
     pub fn map(&self, v: f64) -> f64 {
         self.start + self.fraction(v) * (self.end - self.start)
     }
-
-    /// The value at pixel `p` (inverse of [`Scale::map`]).
-    pub fn value_at(&self, p: f64) -> f64 {
-        let t = (p - self.start) / (self.end - self.start);
-        match self.kind {
-            ScaleKind::Linear => self.lo + t * (self.hi - self.lo),
-            ScaleKind::Log10 => {
-                10f64.powf(self.lo.log10() + t * (self.hi.log10() - self.lo.log10()))
-            }
-        }
-    }
 }
 
 /// A tick: its value and label.
@@ -744,8 +733,6 @@ pub(crate) enum Key {
     Dashed { colour: Rgb },
     /// A marker alone.
     Marker { shape: Marker, colour: Rgb },
-    /// A filled square.
-    Swatch { colour: Rgb },
 }
 
 /// One legend line.
@@ -838,16 +825,6 @@ pub(crate) fn draw_legend(
                     colour,
                     Some(theme::OUTLINE),
                 )?;
-            }
-            Key::Swatch { colour } => {
-                let r = Rect {
-                    left: x + 4.0,
-                    top: cy - 7.0,
-                    right: x + 18.0,
-                    bottom: cy + 7.0,
-                };
-                canvas.fill_rect(r, colour, 1.0)?;
-                canvas.stroke_rect(r, theme::AXIS)?;
             }
         }
         let text = fit_text(&entry.label, size::LEGEND, width - KEY_WIDTH);
@@ -1036,7 +1013,6 @@ mod tests {
     fn scales_map_both_ways() {
         let s = Scale::new(ScaleKind::Log10, (0.01, 1.0), (100.0, 0.0));
         assert!((s.map(0.1) - 50.0).abs() < 1e-9);
-        assert!((s.value_at(50.0) - 0.1).abs() < 1e-12);
         let s = Scale::new(ScaleKind::Linear, (0.0, 10.0), (0.0, 200.0));
         assert!((s.map(2.5) - 50.0).abs() < 1e-9);
     }

@@ -54,12 +54,15 @@ use std::sync::atomic::{AtomicU64, Ordering};
 
 use crate::{Error, Result};
 
+mod compare;
 mod confusion;
 mod contour;
+mod curves;
 mod decision;
 mod draw;
 mod hidden;
 mod learning;
+mod network;
 mod pca;
 mod scatter;
 pub mod theme;
@@ -67,10 +70,13 @@ pub mod theme;
 #[cfg(test)]
 mod testing;
 
+pub use compare::{cross_validation_comparison, ConfigurationScores};
 pub use confusion::confusion_matrix;
+pub use curves::{precision_recall_curves, roc_curves, Curve};
 pub use decision::{decision_map, ClassPoints, DecisionMapOptions, CONTOUR_STROKE, CONTOUR_WIDTH};
 pub use hidden::{hidden_layer, HiddenView};
 pub use learning::{learning_curves, LearningCurveOptions, TrainingHistory, YScale};
+pub use network::{network_diagram, NetworkWeights, MAX_NODES_PER_LAYER};
 pub use pca::{principal_components_2, PrincipalComponents};
 
 /// Scatter charts draw at most this many points; above it they draw every
