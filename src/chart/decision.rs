@@ -292,12 +292,13 @@ pub fn decision_map(
                 label: y_label.clone(),
             };
             draw_cells(canvas, plot, n, &codes, &colour_of)?;
-            if two_class {
-                draw_boundary(canvas, plot, n, &p_one)?;
-            }
             canvas.stroke_rect(plot, theme::AXIS)?;
             draw_axes(canvas, plot, &x, &y, Grid::None)?;
             scatter::draw_points(canvas, &prepared.points, &x.scale, &y.scale)?;
+            // The boundary goes over the points, so dense clouds cannot hide it.
+            if two_class {
+                draw_boundary(canvas, plot, n, &p_one)?;
+            }
             let used = draw_legend(
                 canvas,
                 legend.left,

@@ -223,7 +223,10 @@ impl fmt::Debug for Chart {
 /// Size, title and axis labels shared by every chart kind.
 ///
 /// Fields left as `None` get a default chosen by the chart (the chart kind as
-/// title, column names through [`axis_label`] as axis labels).
+/// title, column names through [`axis_label`] as axis labels). Charts
+/// without such an axis ignore the label: the network diagram both, the
+/// cross-validation comparison `y_label` (its rows are named). In learning
+/// curves `y_label` names the loss panel.
 #[derive(Clone, Debug, PartialEq)]
 pub struct ChartOptions {
     /// Width in pixels, 240 to 4096. Default 720.
