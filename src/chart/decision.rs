@@ -55,6 +55,8 @@ pub struct DecisionMapOptions {
     pub x_range: Option<(f64, f64)>,
     /// The vertical range to map; default the points' range padded by 5% each side.
     pub y_range: Option<(f64, f64)>,
+    /// Extra notes printed under the chart (e.g. how other features were fixed).
+    pub notes: Vec<String>,
 }
 
 impl Default for DecisionMapOptions {
@@ -64,6 +66,7 @@ impl Default for DecisionMapOptions {
             resolution: 150,
             x_range: None,
             y_range: None,
+            notes: Vec::new(),
         }
     }
 }
@@ -233,6 +236,7 @@ pub fn decision_map(
     };
 
     let mut notes = prepared.notes.clone();
+    notes.extend(options.notes.iter().cloned());
     if let Some(note) = scatter::class_note(&names, &prepared.per_class) {
         notes.push(note);
     }

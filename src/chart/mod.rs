@@ -64,6 +64,7 @@ mod hidden;
 mod learning;
 mod network;
 mod pca;
+mod results;
 mod scatter;
 pub mod theme;
 
@@ -78,6 +79,10 @@ pub use hidden::{hidden_layer, HiddenView};
 pub use learning::{learning_curves, LearningCurveOptions, TrainingHistory, YScale};
 pub use network::{network_diagram, NetworkWeights, MAX_NODES_PER_LAYER};
 pub use pca::{principal_components_2, PrincipalComponents};
+pub use results::{
+    confusion, cv_comparison, decision_boundary, decision_boundary_principal, decision_boundary_with, hidden_layer_view, network,
+    precision_recall, roc, training_curves, training_curves_with,
+};
 
 /// Scatter charts draw at most this many points; above it they draw every
 /// k-th point (k = ceil(n / MAX_POINTS)) and say so in a note.

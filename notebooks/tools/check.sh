@@ -1,0 +1,19 @@
+#!/usr/bin/env bash
+# Runs nbcheck.py (the headless notebook checker) with the project's own
+# Jupyter environment; runs setup.sh first when that is missing or stale.
+#
+#   bash notebooks/tools/check.sh execute notebooks/ [--write]
+#   bash notebooks/tools/check.sh reproduce notebooks/
+#   bash notebooks/tools/check.sh normalise --check notebooks/
+#
+# Works from any folder; relative notebook paths are taken from the caller's.
+set -euo pipefail
+NB_TOOLS=$(cd "$(dirname "${BASH_SOURCE[0]}")" && pwd)
+HOME=${HOME:-}
+# shellcheck source=env.sh
+. "$NB_TOOLS/env.sh"
+if [ ! -x "$NB_PY" ] || [ ! -f "$JUPYTER_PATH/kernels/$NB_KERNEL/kernel.json" ] \
+   || [ "$(cat "$NB_VENV/.nbcheck-requirements" 2>/dev/null)" != "$(cat "$NB_TOOLS/requirements.txt"; "${PYTHON:-python3}" -c 'import sys; print(sys.version)')" ]; then
+  bash "$NB_TOOLS/setup.sh" >&2
+fi
+exec "$NB_PY" "$NB_TOOLS/nbcheck.py" "$@"

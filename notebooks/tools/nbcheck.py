@@ -1,0 +1,639 @@
+#!/usr/bin/env python3
+"""Headless checks of the evcxr (Rust) notebooks, in real Jupyter.
+
+Run it through notebooks/tools/check.sh, which sets up the environment
+(kernelspec, Jupyter folders, venv); see that script for the paths.
+
+  nbcheck.py execute NOTEBOOK... [--write]
+      Run every cell in the evcxr kernel with the notebook's folder as working
+      directory; fail on an `error` output (compile errors, `:dep` failures),
+      on a stderr stream containing `panicked at`, on a cell tagged
+      `expect-svg` / `expect-html` / `expect-text` / `expect-png` /
+      `expect-json` / `expect-markdown` / `expect-latex` that shows no output of
+      that MIME type, and on a cell tagged `raises-exception` that does not
+      fail. Other stderr output is a warning (an Err that `?` returns from a
+      cell reaches only stderr), a failure with --strict-stderr unless the
+      cell is tagged `allow-stderr`. With --write, a notebook that passes is
+      saved back, normalised.
+
+  nbcheck.py reproduce NOTEBOOK...
+      Run each notebook again in memory and compare every output with the
+      committed one (text, HTML and SVG byte for byte); print the cells that
+      differ and exit non-zero on any difference or failed check.
+
+  nbcheck.py normalise NOTEBOOK... [--check]
+      Rewrite notebooks in the normalised form without running them (or, with
+      --check, only report which ones are not normalised).
+
+A folder argument means every *.ipynb in it. Exit status: 0 all passed,
+1 something failed, 2 bad usage.
+
+Normalised form: no execution counts; no `execution`/`ExecuteTime` cell
+metadata; evcxr's `:timing` output ("Took 12ms") dropped; all stdout of a cell
+in one stream output, then all stderr, then rich results, then errors (evcxr
+sends stdout and stderr from two threads, so their interleaving is not
+stable); in stderr, panic backtraces (evcxr sets RUST_BACKTRACE=1; they hold
+toolchain hashes and this machine's paths) and the thread id in "thread 'x'
+(1234) panicked at" removed; the kernelspec set to evcxr's ("rust"); JSON
+with sorted keys and one-space indent, as nbformat writes it.
+"""
+
+from __future__ import annotations
+
+import argparse
+import asyncio
+import fcntl
+import json
+import os
+import re
+import shutil
+import sys
+import time
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import nbformat
+from nbclient import NotebookClient
+from nbclient.exceptions import CellTimeoutError, DeadKernelError
+
+ROOT = Path(__file__).resolve().parents[2]
+BUILD_DIR = ROOT / "target" / "nbcheck" / "evcxr"
+LOCK_FILE = ROOT / "target" / "nbcheck" / "lock"
+KERNEL_LOG = ROOT / "target" / "nbcheck" / "kernel.log"
+
+MIME_TAGS = {
+    "expect-svg": "image/svg+xml",
+    "expect-html": "text/html",
+    "expect-text": "text/plain",
+    "expect-png": "image/png",
+    "expect-json": "application/json",
+    "expect-markdown": "text/markdown",
+    "expect-latex": "text/latex",
+}
+ERROR_TAG = "raises-exception"  # nbclient's own name for "this cell fails"
+STDERR_TAG = "allow-stderr"
+PANIC = "panicked at"
+TIMING_LINE = re.compile(r"^Took \d+ms\s*$")
+TIMING_HTML = re.compile(r"^\s*(<span[^>]*>)?\s*Took \d+ms\s*(</span>)?\s*$")
+ANSI = re.compile(r"\x1b\[[0-9;]*[A-Za-z]")
+# Rust >= 1.89 names the thread's OS id in panic messages: thread 'x' (5562) panicked at
+PANIC_THREAD_ID = re.compile(r"(thread '[^']*') \(\d+\) (panicked at)")
+DROP_CELL_METADATA = ("execution", "ExecuteTime")
+KERNELSPEC = {"display_name": "Rust", "language": "rust", "name": "rust"}
+
+
+def out(line: str = "") -> None:
+    print(line, flush=True)
+
+
+def plain(text: str) -> str:
+    return ANSI.sub("", text)
+
+
+def first_line(source: str) -> str:
+    for line in source.splitlines():
+        if line.strip():
+            return line.strip()
+    return ""
+
+
+def short(text: str, width: int = 100) -> str:
+    return text if len(text) <= width else text[: width - 1] + "…"
+
+
+# --------------------------------------------------------------------------
+# Normalisation
+# --------------------------------------------------------------------------
+
+
+def is_timing_output(output) -> bool:
+    if output.get("output_type") not in ("execute_result", "display_data"):
+        return False
+    data = output.get("data", {})
+    return set(data) == {"text/html"} and bool(TIMING_HTML.match(data["text/html"]))
+
+
+def drop_backtraces(lines: list[str]) -> list[str]:
+    """evcxr runs cells with RUST_BACKTRACE=1, so a panic prints a backtrace
+    with toolchain hashes and absolute paths of this machine: drop it (the
+    `stack backtrace:` line, the indented frames, and rustc's closing note)."""
+    kept, in_trace = [], False
+    for line in lines:
+        if line.rstrip("\n") == "stack backtrace:":
+            in_trace = True
+            continue
+        if in_trace:
+            if line[:1].isspace() and line.strip():
+                continue
+            in_trace = False
+            if line.startswith("note: Some details are omitted"):
+                continue
+        kept.append(line)
+    return kept
+
+
+def normalise_outputs(outputs: list) -> list:
+    streams: dict[str, str] = {"stdout": "", "stderr": ""}
+    rich, errors = [], []
+    for o in outputs:
+        kind = o.get("output_type")
+        if kind == "stream":
+            name = o.get("name", "stdout")
+            streams[name] = streams.get(name, "") + o.get("text", "")
+        elif kind in ("execute_result", "display_data"):
+            if is_timing_output(o):
+                continue
+            o = nbformat.from_dict(dict(o))
+            if kind == "execute_result":
+                o["execution_count"] = None
+            o.setdefault("metadata", {})
+            rich.append(o)
+        elif kind == "error":
+            errors.append(o)
+        else:
+            rich.append(o)
+    result = []
+    for name, text in streams.items():
+        lines = [l for l in text.splitlines(keepends=True) if not TIMING_LINE.match(l)]
+        if name == "stderr":
+            lines = drop_backtraces(lines)
+        text = PANIC_THREAD_ID.sub(r"\1 \2", "".join(lines))
+        if text:
+            result.append(nbformat.v4.new_output("stream", name=name, text=text))
+    return result + rich + errors
+
+
+def normalise_notebook(nb) -> None:
+    nb.nbformat_minor = max(nb.get("nbformat_minor", 5), 5)
+    nb.metadata["kernelspec"] = dict(KERNELSPEC)
+    used = {c.get("id") for c in nb.cells if c.get("id")}
+    for index, cell in enumerate(nb.cells):
+        if not cell.get("id"):
+            cid = f"cell-{index}"
+            while cid in used:
+                cid += "x"
+            used.add(cid)
+            cell["id"] = cid
+        for key in DROP_CELL_METADATA:
+            cell.metadata.pop(key, None)
+        if cell.cell_type == "code":
+            cell.execution_count = None
+            cell.outputs = normalise_outputs(cell.get("outputs", []))
+
+
+def notebook_text(nb) -> str:
+    text = nbformat.writes(nb, version=4)
+    return text if text.endswith("\n") else text + "\n"
+
+
+def write_atomically(path: Path, text: str) -> None:
+    tmp = path.with_name(f".{path.name}.{os.getpid()}.tmp")
+    tmp.write_text(text, encoding="utf-8")
+    os.replace(tmp, path)
+
+
+# --------------------------------------------------------------------------
+# Running a notebook
+# --------------------------------------------------------------------------
+
+
+@dataclass
+class CellResult:
+    index: int
+    source: str
+    ran: bool = False
+    seconds: float = 0.0
+    checks_passed: int = 0
+    failures: list[str] = field(default_factory=list)
+    warnings: list[str] = field(default_factory=list)
+
+
+@dataclass
+class Run:
+    path: Path
+    nb: object = None
+    cells: list[CellResult] = field(default_factory=list)
+    fatal: str | None = None
+    first_cell_seconds: float | None = None
+    cold: bool = False
+    seconds: float = 0.0
+
+    @property
+    def passed(self) -> bool:
+        return self.fatal is None and all(not c.failures for c in self.cells)
+
+
+def build_dir_is_cold() -> bool:
+    return not (BUILD_DIR / "target").is_dir()
+
+
+def prepare_build_dir(fresh: bool) -> bool:
+    """evcxr builds in EVCXR_TMPDIR; we keep it in target/ so later runs reuse
+    compiled dependencies, and seed it with the repo's Cargo.lock so `:dep`
+    resolves the same dependency versions as `cargo build` does."""
+    if fresh and BUILD_DIR.exists():
+        shutil.rmtree(BUILD_DIR)
+    cold = build_dir_is_cold()
+    BUILD_DIR.mkdir(parents=True, exist_ok=True)
+    lock = ROOT / "Cargo.lock"
+    if lock.is_file():
+        shutil.copyfile(lock, BUILD_DIR / "Cargo.lock")
+    return cold
+
+
+def check_cell(cell, result: CellResult, reply_status: str | None, strict_stderr: bool) -> None:
+    outputs = cell.get("outputs", [])
+    tags = set(cell.metadata.get("tags", []))
+    errors = [o for o in outputs if o.get("output_type") == "error"]
+    stderr = "".join(
+        o.get("text", "") for o in outputs if o.get("output_type") == "stream" and o.get("name") == "stderr"
+    )
+    stderr_lines = plain(stderr).splitlines()
+    panics = [
+        " ".join(x.strip() for x in stderr_lines[i : i + 2])
+        for i, l in enumerate(stderr_lines)
+        if PANIC in l
+    ]
+    mimes = set()
+    for o in outputs:
+        if o.get("output_type") in ("execute_result", "display_data") and not is_timing_output(o):
+            mimes.update(o.get("data", {}))
+
+    def ok() -> None:
+        result.checks_passed += 1
+
+    if ERROR_TAG in tags:
+        if errors or panics:
+            ok()
+        else:
+            result.failures.append(f"tagged {ERROR_TAG} but raised no error and did not panic")
+    else:
+        if errors:
+            for e in errors:
+                trace = [plain(l) for l in e.get("traceback", [])]
+                detail = "\n".join("        " + short(l, 160) for l in trace[:12] if l.strip())
+                msg = f"error output: {e.get('ename', '')}: {plain(e.get('evalue', ''))}".rstrip(": ")
+                result.failures.append(msg + ("\n" + detail if detail else ""))
+        elif reply_status == "error":
+            result.failures.append("kernel replied status=error without an error output")
+        else:
+            ok()
+        if panics:
+            result.failures.append("panic on stderr: " + short(panics[0].strip(), 200))
+        else:
+            ok()
+        # evcxr reports an Err returned by `?` in a cell only as stderr text
+        # (status ok, no error output), so stderr is the only trace of it.
+        text = [l for l in stderr_lines if l.strip() and not TIMING_LINE.match(l)]
+        if text and not panics and STDERR_TAG not in tags:
+            what = f"stderr output (an Err from `?` shows only this way): {short(text[0].strip(), 120)!r}"
+            if strict_stderr:
+                result.failures.append(what + f"; tag the cell {STDERR_TAG} if it is meant")
+            else:
+                result.warnings.append(what)
+                ok()
+        else:
+            ok()
+    for tag in sorted(tags):
+        if tag.startswith("expect-"):
+            mime = MIME_TAGS.get(tag)
+            if mime is None:
+                result.failures.append(f"unknown tag {tag!r} (known: {', '.join(sorted(MIME_TAGS))})")
+            elif mime in mimes:
+                ok()
+            else:
+                shown = ", ".join(sorted(mimes)) or "no rich output"
+                result.failures.append(f"tagged {tag} but produced no {mime} (got: {shown})")
+
+
+async def run_notebook(path: Path, args) -> Run:
+    run = Run(path=path)
+    nb = nbformat.read(path, as_version=4)
+    run.nb = nb
+    replies: dict[int, str] = {}
+    starts: dict[int, float] = {}
+
+    def on_execute(cell, cell_index, **_):
+        starts[cell_index] = time.monotonic()
+        out(f"  cell {cell_index}: running `{short(first_line(cell.source), 60)}`")
+
+    def on_executed(cell, cell_index, execute_reply, **_):
+        replies[cell_index] = (execute_reply or {}).get("content", {}).get("status")
+
+    client = NotebookClient(
+        nb,
+        timeout=args.timeout,
+        startup_timeout=args.startup_timeout,
+        kernel_name=args.kernel,
+        allow_errors=True,
+        record_timing=False,
+        on_cell_execute=on_execute,
+        on_cell_executed=on_executed,
+    )
+    env = dict(os.environ, EVCXR_TMPDIR=str(BUILD_DIR))
+    run.cold = prepare_build_dir(args.fresh)
+    t_nb = time.monotonic()
+    code_cells = [(i, c) for i, c in enumerate(nb.cells) if c.cell_type == "code" and c.source.strip()]
+    for i, c in enumerate(nb.cells):
+        if c.cell_type == "code" and not c.source.strip():
+            c.outputs = []
+    KERNEL_LOG.parent.mkdir(parents=True, exist_ok=True)
+    log = open(KERNEL_LOG, "a", encoding="utf-8")
+    log.write(f"==== {time.strftime('%Y-%m-%d %H:%M:%S')} {rel(path)}\n")
+    log.flush()
+    try:
+        # The kernel's own stdout/stderr (not the cells') go to the log.
+        async with client.async_setup_kernel(cwd=str(path.parent), env=env, stdout=log, stderr=log):
+            info = await client.async_wait_for_reply(client.kc.kernel_info())
+            if info and "language_info" in info.get("content", {}):
+                nb.metadata["language_info"] = info["content"]["language_info"]
+            for n, (index, cell) in enumerate(code_cells):
+                result = CellResult(index=index, source=cell.source)
+                run.cells.append(result)
+                try:
+                    await client.async_execute_cell(cell, index, execution_count=n + 1)
+                except CellTimeoutError:
+                    result.failures.append(f"timed out after {args.timeout} s (--timeout)")
+                    run.fatal = f"cell {index} timed out; later cells not run"
+                except DeadKernelError:
+                    result.failures.append("the kernel died")
+                    run.fatal = f"kernel died in cell {index}; later cells not run"
+                result.ran = True
+                result.seconds = time.monotonic() - starts.get(index, time.monotonic())
+                if n == 0:
+                    run.first_cell_seconds = result.seconds
+                out(f"  cell {index}: {result.seconds:.1f} s")
+                if run.fatal:
+                    break
+                check_cell(cell, result, replies.get(index), args.strict_stderr)
+    except Exception as exc:  # kernel failed to start, connection trouble, ...
+        if run.fatal is None:
+            run.fatal = f"{type(exc).__name__}: {exc} (kernel log: {rel(KERNEL_LOG)})"
+    finally:
+        log.close()
+    for index, cell in code_cells:
+        if not any(r.index == index for r in run.cells):
+            run.cells.append(CellResult(index=index, source=cell.source, failures=["not run"]))
+    run.cells.sort(key=lambda r: r.index)
+    run.seconds = time.monotonic() - t_nb
+    normalise_notebook(nb)
+    return run
+
+
+# --------------------------------------------------------------------------
+# Reports
+# --------------------------------------------------------------------------
+
+
+def describe(run: Run) -> tuple[int, int, int, int]:
+    cells_ok = sum(1 for c in run.cells if c.ran and not c.failures)
+    cells_bad = len(run.cells) - cells_ok
+    checks_ok = sum(c.checks_passed for c in run.cells)
+    checks_bad = sum(len(c.failures) for c in run.cells) + (1 if run.fatal else 0)
+    return cells_ok, cells_bad, checks_ok, checks_bad
+
+
+def rel(path: Path) -> str:
+    try:
+        return str(path.resolve().relative_to(ROOT))
+    except ValueError:
+        return str(path)
+
+
+def report_run(run: Run, extra_failures: int = 0) -> None:
+    cells_ok, cells_bad, checks_ok, checks_bad = describe(run)
+    checks_bad += extra_failures
+    verdict = "PASS" if run.passed and not extra_failures else "FAIL"
+    first = (
+        f"{run.first_cell_seconds:.1f} s ({'cold' if run.cold else 'warm'} evcxr build folder)"
+        if run.first_cell_seconds is not None
+        else "not run"
+    )
+    out(
+        f"{verdict} {rel(run.path)}: cells: {cells_ok} passed, {cells_bad} failed; "
+        f"checks: {checks_ok} passed, {checks_bad} failed"
+    )
+    out(f"  first cell: {first}; whole notebook {run.seconds:.1f} s")
+    if run.fatal:
+        out(f"  fatal: {run.fatal}")
+    for c in run.cells:
+        for f in c.failures:
+            out(f"  cell {c.index} (`{short(first_line(c.source), 60)}`): {f}")
+        for w in c.warnings:
+            out(f"  warning: cell {c.index} (`{short(first_line(c.source), 60)}`): {w}")
+
+
+def first_difference(old: str, new: str) -> str:
+    a, b = old.splitlines(), new.splitlines()
+    for n in range(max(len(a), len(b))):
+        la = a[n] if n < len(a) else None
+        lb = b[n] if n < len(b) else None
+        if la != lb:
+            break
+    else:
+        return "      (only line endings differ)"
+    if la is None or lb is None:
+        which = "committed" if la is None else "new"
+        text = lb if la is None else la
+        return f"      line {n + 1}: only in {'new' if la is None else 'committed'} output ({which} ended): {short(text, 100)!r}"
+    col = next((i for i, (x, y) in enumerate(zip(la, lb)) if x != y), min(len(la), len(lb)))
+    lo = max(0, col - 30)
+
+    def window(s: str) -> str:
+        piece = s[lo : col + 50]
+        return ("…" if lo else "") + piece + ("…" if col + 50 < len(s) else "")
+
+    return (
+        f"      line {n + 1}, column {col + 1} (committed {len(a)} lines, new {len(b)} lines):\n"
+        f"      - committed: {window(la)!r}\n"
+        f"      + new:       {window(lb)!r}"
+    )
+
+
+def output_items(outputs: list) -> dict[str, str]:
+    """Each output as (label -> text): stream:stdout, text/html, error, ..."""
+    items: dict[str, str] = {}
+
+    def put(label: str, text: str) -> None:
+        n, key = 2, label
+        while key in items:
+            key, n = f"{label} #{n}", n + 1
+        items[key] = text
+
+    for o in outputs:
+        kind = o.get("output_type")
+        if kind == "stream":
+            put(f"stream {o.get('name')}", o.get("text", ""))
+        elif kind in ("execute_result", "display_data"):
+            for mime, value in sorted(o.get("data", {}).items()):
+                put(mime, value if isinstance(value, str) else json.dumps(value, sort_keys=True, indent=1))
+        elif kind == "error":
+            put("error", "\n".join([o.get("ename", ""), o.get("evalue", "")] + list(o.get("traceback", []))))
+    return items
+
+
+def compare(committed, executed) -> list[str]:
+    diffs = []
+    old_cells = [c for c in committed.cells]
+    if not any(c.get("outputs") for c in old_cells if c.cell_type == "code"):
+        diffs.append("  the committed notebook has no outputs: run `check.sh execute --write` on it first")
+    for index, (old, new) in enumerate(zip(old_cells, executed.cells)):
+        if old.cell_type != "code":
+            continue
+        a, b = output_items(old.get("outputs", [])), output_items(new.get("outputs", []))
+        head = f"  cell {index} (`{short(first_line(old.source), 60)}`)"
+        for label in list(a) + [l for l in b if l not in a]:
+            if label not in b:
+                diffs.append(f"{head} {label}: in the committed notebook, not produced now")
+            elif label not in a:
+                diffs.append(f"{head} {label}: produced now, not in the committed notebook")
+                diffs.append(first_difference("", b[label]))
+            elif a[label] != b[label]:
+                diffs.append(f"{head} {label} differs")
+                diffs.append(first_difference(a[label], b[label]))
+    return diffs
+
+
+# --------------------------------------------------------------------------
+# Commands
+# --------------------------------------------------------------------------
+
+
+def expand(paths: list[str]) -> list[Path]:
+    result = []
+    for p in paths:
+        path = Path(p)
+        if path.is_dir():
+            result.extend(sorted(q for q in path.glob("*.ipynb") if not q.name.startswith(".")))
+        elif path.is_file():
+            result.append(path)
+        else:
+            sys.exit(f"nbcheck: no such notebook or folder: {p}")
+    return [p.resolve() for p in result]
+
+
+def take_lock():
+    LOCK_FILE.parent.mkdir(parents=True, exist_ok=True)
+    handle = open(LOCK_FILE, "w")
+    try:
+        fcntl.flock(handle, fcntl.LOCK_EX | fcntl.LOCK_NB)
+    except BlockingIOError:
+        out(f"nbcheck: another nbcheck holds {rel(LOCK_FILE)} (it shares the evcxr build folder); waiting")
+        fcntl.flock(handle, fcntl.LOCK_EX)
+    return handle
+
+
+def cmd_execute(args) -> int:
+    notebooks = expand(args.notebooks)
+    _lock = take_lock()
+    passed = failed = 0
+    timings = []
+    for path in notebooks:
+        out(f"== execute {rel(path)}")
+        run = asyncio.run(run_notebook(path, args))
+        report_run(run)
+        if run.first_cell_seconds is not None:
+            timings.append((rel(path), run.first_cell_seconds, run.cold))
+        if run.passed:
+            passed += 1
+            if args.write:
+                write_atomically(path, notebook_text(run.nb))
+                out(f"  wrote {rel(path)} (normalised)")
+        else:
+            failed += 1
+            if args.write:
+                out(f"  not written: it failed")
+    summary(timings)
+    out(f"notebooks: {passed} passed, {failed} failed")
+    return 0 if failed == 0 else 1
+
+
+def cmd_reproduce(args) -> int:
+    notebooks = expand(args.notebooks)
+    _lock = take_lock()
+    passed = failed = 0
+    timings = []
+    for path in notebooks:
+        out(f"== reproduce {rel(path)}")
+        committed = nbformat.read(path, as_version=4)
+        normalise_notebook(committed)
+        run = asyncio.run(run_notebook(path, args))
+        diffs = compare(committed, run.nb)
+        n_diff = sum(1 for d in diffs if d.startswith("  ") and not d.startswith("      "))
+        report_run(run, extra_failures=n_diff)
+        if run.first_cell_seconds is not None:
+            timings.append((rel(path), run.first_cell_seconds, run.cold))
+        if diffs:
+            out(f"  {n_diff} output(s) differ from the committed notebook:")
+            for d in diffs:
+                out(d)
+        else:
+            out("  every output matches the committed notebook")
+        if run.passed and not diffs:
+            passed += 1
+        else:
+            failed += 1
+    summary(timings)
+    out(f"notebooks: {passed} passed, {failed} failed")
+    return 0 if failed == 0 else 1
+
+
+def cmd_normalise(args) -> int:
+    bad = 0
+    for path in expand(args.notebooks):
+        original = path.read_text(encoding="utf-8")
+        nb = nbformat.read(path, as_version=4)
+        normalise_notebook(nb)
+        text = notebook_text(nb)
+        if text == original:
+            out(f"ok {rel(path)}")
+        elif args.check:
+            bad += 1
+            out(f"NOT NORMALISED {rel(path)}")
+        else:
+            write_atomically(path, text)
+            out(f"normalised {rel(path)}")
+    return 1 if bad else 0
+
+
+def summary(timings) -> None:
+    if timings:
+        out("first-cell (:dep) wall times:")
+        for name, seconds, cold in timings:
+            out(f"  {seconds:7.1f} s  {'cold' if cold else 'warm'}  {name}")
+
+
+def main(argv=None) -> int:
+    parser = argparse.ArgumentParser(prog="nbcheck", description=__doc__.split("\n\n")[0])
+    sub = parser.add_subparsers(dest="command", required=True)
+
+    def common(p):
+        p.add_argument("notebooks", nargs="+", help="notebooks, or folders of notebooks")
+        p.add_argument("--timeout", type=int, default=int(os.environ.get("NBCHECK_TIMEOUT", 1200)),
+                       help="seconds per cell (default 1200, or $NBCHECK_TIMEOUT); the first :dep cell compiles the crate")
+        p.add_argument("--startup-timeout", type=int, default=120, help="seconds for the kernel to start")
+        p.add_argument("--kernel", default=os.environ.get("NBCHECK_KERNEL", "rust"), help="kernelspec name (default rust)")
+        p.add_argument("--strict-stderr", action="store_true",
+                       default=os.environ.get("NBCHECK_STRICT_STDERR", "") not in ("", "0"),
+                       help=f"fail (not just warn) on stderr output in a cell not tagged {STDERR_TAG} "
+                            "(or set NBCHECK_STRICT_STDERR=1)")
+        p.add_argument("--fresh", action="store_true",
+                       help=f"delete the evcxr build folder ({BUILD_DIR.relative_to(ROOT)}) first: a cold :dep compile")
+
+    p = sub.add_parser("execute", help="run notebooks and check their outputs")
+    common(p)
+    p.add_argument("--write", action="store_true", help="save each notebook that passes, normalised")
+    p.set_defaults(func=cmd_execute)
+    p = sub.add_parser("reproduce", help="rerun notebooks and compare with the committed outputs")
+    common(p)
+    p.set_defaults(func=cmd_reproduce)
+    p = sub.add_parser("normalise", help="normalise notebooks without running them")
+    p.add_argument("notebooks", nargs="+")
+    p.add_argument("--check", action="store_true", help="only report, do not write")
+    p.set_defaults(func=cmd_normalise)
+    args = parser.parse_args(argv)
+    return args.func(args)
+
+
+if __name__ == "__main__":
+    sys.exit(main())

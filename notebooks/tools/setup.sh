@@ -1,0 +1,107 @@
+#!/usr/bin/env bash
+# Sets up everything the headless notebook checker needs, inside this repo:
+#
+#   target/notebook-venv   Python venv with the pinned Jupyter client
+#                          (notebooks/tools/requirements.txt)
+#   target/jupyter         the evcxr kernelspec ("rust"), Jupyter's runtime and
+#                          config folders, an empty evcxr config folder
+#
+# and, outside the repo, only what the Rust toolchain itself owns:
+# `cargo install evcxr_jupyter --locked --version 0.22.0` when it is missing,
+# and `rustup component add rust-src` when that is missing.
+#
+# Idempotent: a second run checks and prints "ok" for each step. Run it from
+# any folder:  bash notebooks/tools/setup.sh
+# Environment: PYTHON (default python3, needs >= 3.9), HOME or CARGO_HOME.
+set -euo pipefail
+
+NB_TOOLS=$(cd "$(dirname "${BASH_SOURCE[0]}")" && pwd)
+if [ -z "${HOME:-}" ] && [ -z "${CARGO_HOME:-}" ]; then
+  echo "setup: neither HOME nor CARGO_HOME is set; cargo and rustup need one" >&2
+  exit 2
+fi
+HOME=${HOME:-}
+# shellcheck source=env.sh
+. "$NB_TOOLS/env.sh"
+
+start=$(date +%s)
+say() { printf 'setup: %s\n' "$*"; }
+need() {
+  command -v "$1" >/dev/null 2>&1 || { echo "setup: '$1' not found on PATH ($2)" >&2; exit 2; }
+}
+
+# 1. Python virtual environment with pinned packages -------------------------
+PYTHON=${PYTHON:-python3}
+need "$PYTHON" "set PYTHON to a Python 3.9+ interpreter"
+"$PYTHON" -c 'import sys; sys.exit(sys.version_info < (3, 9))' \
+  || { echo "setup: $PYTHON is older than 3.9" >&2; exit 2; }
+
+req="$NB_TOOLS/requirements.txt"
+stamp="$NB_VENV/.nbcheck-requirements"
+want="$(cat "$req"; "$PYTHON" -c 'import sys; print(sys.version)')"
+if [ -x "$NB_PY" ] && [ -f "$stamp" ] && [ "$(cat "$stamp")" = "$want" ]; then
+  say "ok: venv $NB_VENV has the pinned packages"
+else
+  if [ ! -x "$NB_PY" ] || ! "$NB_PY" -c 'import sys' >/dev/null 2>&1; then
+    rm -rf "$NB_VENV"
+    mkdir -p "$(dirname "$NB_VENV")"
+    "$PYTHON" -m venv "$NB_VENV"
+    say "created venv $NB_VENV ($("$NB_PY" --version))"
+  fi
+  "$NB_PY" -m pip install --quiet --no-input --require-virtualenv -r "$req"
+  printf '%s' "$want" >"$stamp"
+  say "installed into the venv: $(grep -E '^(nbclient|nbformat|jupyter_client)==' "$req" | tr '\n' ' ')"
+fi
+
+# 2. evcxr_jupyter -----------------------------------------------------------
+need cargo "install Rust with rustup"
+if cargo install --list 2>/dev/null | grep -q "^evcxr_jupyter v$NB_EVCXR_VERSION:"; then
+  say "ok: evcxr_jupyter $NB_EVCXR_VERSION installed ($(command -v evcxr_jupyter))"
+elif command -v evcxr_jupyter >/dev/null 2>&1 \
+     && ! cargo install --list 2>/dev/null | grep -q '^evcxr_jupyter v'; then
+  say "warning: using evcxr_jupyter at $(command -v evcxr_jupyter), not installed by cargo; version unknown"
+else
+  say "installing evcxr_jupyter $NB_EVCXR_VERSION (cargo install, several minutes)"
+  t0=$(date +%s)
+  cargo install evcxr_jupyter --locked --version "$NB_EVCXR_VERSION"
+  say "installed evcxr_jupyter in $(( $(date +%s) - t0 )) s"
+fi
+need evcxr_jupyter "cargo install evcxr_jupyter --locked --version $NB_EVCXR_VERSION"
+
+# 3. rust-src (evcxr and its rust-analyzer want the standard library source) --
+if ! command -v rustup >/dev/null 2>&1; then
+  say "warning: no rustup; cannot check the rust-src component"
+elif rustup component list --installed 2>/dev/null | grep -q '^rust-src'; then
+  say "ok: rustup component rust-src installed"
+else
+  rustup component add rust-src
+  say "added rustup component rust-src"
+fi
+
+# 4. The kernelspec, in our own Jupyter folder --------------------------------
+mkdir -p "$JUPYTER_RUNTIME_DIR" "$JUPYTER_CONFIG_DIR" "$EVCXR_CONFIG_DIR"
+kernel_json="$JUPYTER_PATH/kernels/$NB_KERNEL/kernel.json"
+exe=$(command -v evcxr_jupyter)
+if [ -f "$kernel_json" ] && grep -qF "\"$exe\"" "$kernel_json"; then
+  say "ok: kernel '$NB_KERNEL' registered in $JUPYTER_PATH/kernels"
+else
+  # evcxr_jupyter --install writes to $JUPYTER_PATH/kernels/rust when
+  # JUPYTER_PATH is set (else to ~/.local/share/jupyter).
+  evcxr_jupyter --install >/dev/null
+  [ -f "$kernel_json" ] || { echo "setup: evcxr_jupyter --install did not write $kernel_json" >&2; exit 1; }
+  say "registered kernel '$NB_KERNEL' in $JUPYTER_PATH/kernels (argv[0] $exe)"
+fi
+
+# 5. Prove the client finds that kernel, and only ours -------------------------
+found=$("$NB_PY" - "$NB_KERNEL" <<'PY'
+import sys
+from jupyter_client.kernelspec import KernelSpecManager
+print(KernelSpecManager().find_kernel_specs().get(sys.argv[1], "MISSING"))
+PY
+)
+case "$found" in
+  "$JUPYTER_PATH/kernels/$NB_KERNEL") say "ok: jupyter_client resolves kernel '$NB_KERNEL' to $found" ;;
+  *) echo "setup: jupyter_client resolves kernel '$NB_KERNEL' to $found, not $JUPYTER_PATH/kernels/$NB_KERNEL" >&2; exit 1 ;;
+esac
+
+say "done in $(( $(date +%s) - start )) s"
