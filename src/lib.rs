@@ -17,6 +17,7 @@
 #![warn(missing_docs)]
 #![doc(test(attr(deny(warnings))))]
 
+mod atomic;
 pub mod chart;
 pub mod data;
 pub mod error;
