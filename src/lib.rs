@@ -12,6 +12,7 @@
 //! - [`data`]: tables from CSV or arrays, scaling, splits and folds.
 //! - [`network`]: layers, activations, output heads, initialisation, prediction.
 //! - [`train`]: losses, optimisers, schedules, early stopping, gradient checks.
+//! - [`model_file`]: saving and loading fitted models, reading new rows by column name.
 //! - [`error`]: the [`Error`] type with file, line, column and fix.
 //! - [`rng`]: the seeded ChaCha8 generator and portable draws.
 #![warn(missing_docs)]
@@ -22,6 +23,7 @@ pub mod chart;
 pub mod data;
 pub mod error;
 pub mod fit;
+pub mod model_file;
 pub mod network;
 pub mod prelude;
 pub mod rng;
@@ -32,5 +34,6 @@ pub use error::{Error, ErrorKind, Result};
 pub use rng::seeded_rng;
 
 pub use fit::{fit, fit_with_seed, FitOptions, Fitted, Model, Provenance};
+pub use model_file::{load as load_model, save as save_model};
 pub use ndarray;
 pub use rand;
