@@ -40,7 +40,7 @@ pub enum TargetColumn {
 /// # let text = "a,b,y\n0,0,n\n0,1,y\n1,0,y\n1,1,y\n";
 /// # let data = CsvOptions::new("y").read_str(text, "or.csv")?;
 /// # let options = FitOptions::default().hidden(&[]).validation_fraction(0.0)
-/// #     .early_stopping(None).epochs(5);
+/// #     .early_stopping(None).epochs(5).batch_size(4);
 /// # let model = fit(&data, &options, &mut seeded_rng(1))?.model;
 /// // Columns in another order, the target column present, a note column.
 /// let new_rows = "note,y,b,a\nfirst,n,0,0\nsecond,y,1,1\n";
@@ -273,17 +273,19 @@ impl FeatureOptions {
                     let cell = &record[*index];
                     match classes.get(cell.trim()) {
                         Some(&k) => labels.push(k),
-                        None => return Err(Error::new(ErrorKind::BadValue {
-                            path: path.to_path_buf(),
-                            line,
-                            column: column.to_string(),
-                            index: *index,
-                            value: cell.to_string(),
-                            reason: format!(
+                        None => {
+                            return Err(Error::new(ErrorKind::BadValue {
+                                path: path.to_path_buf(),
+                                line,
+                                column: column.to_string(),
+                                index: *index,
+                                value: cell.to_string(),
+                                reason: format!(
                                 "the model knows only the classes {}; a new class cannot be scored",
                                 list(&model.target_names)
                             ),
-                        })),
+                            }))
+                        }
                     }
                 }
                 Some(TargetPlan::Values { columns }) => {

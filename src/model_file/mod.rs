@@ -11,6 +11,7 @@
 //! let model = Model::load("parts-model.json")?;
 //! let rows = FeatureOptions::default().read(&model, "new-parts.csv")?;
 //! let classes = model.predict_classes(rows.x())?;
+//! println!("{classes:?}");
 //! # Ok::<(), stratanet::Error>(())
 //! ```
 //!
@@ -374,14 +375,16 @@ fn check_format(header: &FormatProbe) -> std::result::Result<(), String> {
             ))
         }
     }
-    let supported = format!("this library reads format version {FORMAT_VERSION}");
+    let supported = format!(
+        "stratanet {} reads format version {FORMAT_VERSION}",
+        env!("CARGO_PKG_VERSION")
+    );
     match &header.format_version {
         None | Some(Value::Null) => Err(format!("no \"format_version\" ({supported})")),
         Some(Value::Number(n)) => match n.as_u64() {
             Some(v) if v == u64::from(FORMAT_VERSION) => Ok(()),
             Some(v) if v > u64::from(FORMAT_VERSION) => Err(format!(
-                "format_version {v} is newer than this library reads ({supported}: stratanet {}); load it with a newer stratanet",
-                env!("CARGO_PKG_VERSION")
+                "format_version {v} is newer than this library knows ({supported}); load the file with a newer stratanet"
             )),
             Some(v) => Err(format!(
                 "format_version {v} is not a known version ({supported})"

@@ -7,5 +7,6 @@ mod csv_errors;
 mod determinism;
 mod gradients;
 mod iris;
+mod model_files;
 mod support;
 mod worked_examples;
