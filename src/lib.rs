@@ -12,15 +12,18 @@
 //! - [`data`]: tables from CSV or arrays, scaling, splits and folds.
 //! - [`network`]: layers, activations, output heads, initialisation, prediction.
 //! - [`train`]: losses, optimisers, schedules, early stopping, gradient checks.
+//! - [`model_file`]: saving and loading fitted models, reading new rows by column name.
 //! - [`error`]: the [`Error`] type with file, line, column and fix.
 //! - [`rng`]: the seeded ChaCha8 generator and portable draws.
 #![warn(missing_docs)]
 #![doc(test(attr(deny(warnings))))]
 
+mod atomic;
 pub mod chart;
 pub mod data;
 pub mod error;
 pub mod fit;
+pub mod model_file;
 pub mod network;
 pub mod notebook;
 pub mod prelude;
@@ -32,5 +35,6 @@ pub use error::{Error, ErrorKind, Result};
 pub use rng::seeded_rng;
 
 pub use fit::{fit, fit_with_seed, FitOptions, Fitted, Model, Provenance};
+pub use model_file::{load as load_model, save as save_model};
 pub use ndarray;
 pub use rand;

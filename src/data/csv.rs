@@ -232,15 +232,9 @@ fn csv_error(path: &Path, e: csv::Error) -> Error {
     })
 }
 
-/// Checks the header and resolves which columns are used.
-/// Returns (header names, used column indices: target first).
-pub(crate) fn resolve_header(
-    record: &csv::StringRecord,
-    path: &Path,
-    target: Option<&str>,
-    features: Option<&[String]>,
-    drop: &[String],
-) -> Result<(Vec<String>, Vec<usize>)> {
+/// The header's names, trimmed, a leading byte-order mark removed, checked
+/// (at most [`MAX_COLUMNS`], none empty, none repeated).
+pub(crate) fn header_names(record: &csv::StringRecord, path: &Path) -> Result<Vec<String>> {
     let mut names: Vec<String> = record.iter().map(|s| s.trim().to_string()).collect();
     if let Some(first) = names.first_mut() {
         if let Some(stripped) = first.strip_prefix('\u{feff}') {
@@ -277,6 +271,106 @@ pub(crate) fn resolve_header(
         }
         seen.insert(n, i);
     }
+    Ok(names)
+}
+
+/// A CSV reader with stratanet's settings: the header is read as a record
+/// (see [`read_header_record`]) and rows may be ragged (so that
+/// [`next_row`] can report them by line).
+pub(crate) fn csv_reader<R: Read>(reader: R, delimiter: u8) -> csv::Reader<R> {
+    csv::ReaderBuilder::new()
+        .has_headers(false)
+        .flexible(true)
+        .delimiter(delimiter)
+        .from_reader(reader)
+}
+
+/// Reads the header record into `record`; an empty file is an error.
+pub(crate) fn read_header_record<R: Read>(
+    rdr: &mut csv::Reader<R>,
+    record: &mut csv::StringRecord,
+    path: &Path,
+) -> Result<()> {
+    let got = rdr.read_record(record).map_err(|e| csv_error(path, e))?;
+    if !got || (record.len() == 1 && record[0].trim().trim_start_matches('\u{feff}').is_empty()) {
+        return Err(Error::new(ErrorKind::EmptyFile {
+            path: path.to_path_buf(),
+        }));
+    }
+    Ok(())
+}
+
+/// Reads the next data row into `record`, skipping blank lines, and returns
+/// its 1-based line (`None` at the end of the file). A row whose cell count
+/// is not `width` is an error.
+pub(crate) fn next_row<R: Read>(
+    rdr: &mut csv::Reader<R>,
+    record: &mut csv::StringRecord,
+    path: &Path,
+    width: usize,
+) -> Result<Option<u64>> {
+    loop {
+        match rdr.read_record(record) {
+            Ok(true) => {}
+            Ok(false) => return Ok(None),
+            Err(e) => return Err(csv_error(path, e)),
+        }
+        let line = record.position().map_or(0, |p| p.line());
+        // A completely blank line reads as one empty field: skip it.
+        if record.len() == 1 && record[0].trim().is_empty() && width > 1 {
+            continue;
+        }
+        if record.len() != width {
+            return Err(Error::new(ErrorKind::RaggedRow {
+                path: path.to_path_buf(),
+                line,
+                expected: width,
+                found: record.len(),
+            }));
+        }
+        return Ok(Some(line));
+    }
+}
+
+/// Refuses a cell longer than [`MAX_FIELD_BYTES`].
+pub(crate) fn check_cell_size(
+    cell: &str,
+    path: &Path,
+    line: u64,
+    column: &str,
+    index: usize,
+) -> Result<()> {
+    if cell.len() > MAX_FIELD_BYTES {
+        return Err(Error::new(ErrorKind::BadValue {
+            path: path.to_path_buf(),
+            line,
+            column: column.to_string(),
+            index,
+            value: format!("{}...", cell.chars().take(20).collect::<String>()),
+            reason: format!(
+                "the cell holds {} bytes, more than the limit of {MAX_FIELD_BYTES}",
+                cell.len()
+            ),
+        }));
+    }
+    Ok(())
+}
+
+/// Checks the header and resolves which columns are used.
+/// Returns (header names, used column indices: target first).
+pub(crate) fn resolve_header(
+    record: &csv::StringRecord,
+    path: &Path,
+    target: Option<&str>,
+    features: Option<&[String]>,
+    drop: &[String],
+) -> Result<(Vec<String>, Vec<usize>)> {
+    let names = header_names(record, path)?;
+    let seen: HashMap<&str, usize> = names
+        .iter()
+        .enumerate()
+        .map(|(i, n)| (n.as_str(), i))
+        .collect();
     let find = |name: &str| -> Result<usize> {
         seen.get(name).copied().ok_or_else(|| {
             Error::new(ErrorKind::MissingColumn {
@@ -336,20 +430,9 @@ pub(crate) fn resolve_header(
 /// Reads the used columns of a CSV stream, row by row (the whole file is
 /// never held as text).
 pub(crate) fn read_columns<R: Read>(reader: R, path: &Path, opts: &CsvOptions) -> Result<RawTable> {
-    let mut rdr = csv::ReaderBuilder::new()
-        .has_headers(false)
-        .flexible(true)
-        .delimiter(opts.delimiter)
-        .from_reader(reader);
+    let mut rdr = csv_reader(reader, opts.delimiter);
     let mut record = csv::StringRecord::new();
-    let got = rdr
-        .read_record(&mut record)
-        .map_err(|e| csv_error(path, e))?;
-    if !got || (record.len() == 1 && record[0].trim().trim_start_matches('\u{feff}').is_empty()) {
-        return Err(Error::new(ErrorKind::EmptyFile {
-            path: path.to_path_buf(),
-        }));
-    }
+    read_header_record(&mut rdr, &mut record, path)?;
     let (names, used) = resolve_header(
         &record,
         path,
@@ -391,43 +474,13 @@ pub(crate) fn read_columns<R: Read>(reader: R, path: &Path, opts: &CsvOptions) -
         .collect();
     let mut rows = 0usize;
     let mut dropped = 0usize;
-    loop {
-        match rdr.read_record(&mut record) {
-            Ok(true) => {}
-            Ok(false) => break,
-            Err(e) => return Err(csv_error(path, e)),
-        }
-        let line = record.position().map_or(0, |p| p.line());
-        // A completely blank line reads as one empty field: skip it.
-        if record.len() == 1 && record[0].trim().is_empty() && width > 1 {
-            continue;
-        }
-        if record.len() != width {
-            return Err(Error::new(ErrorKind::RaggedRow {
-                path: path.to_path_buf(),
-                line,
-                expected: width,
-                found: record.len(),
-            }));
-        }
+    while let Some(line) = next_row(&mut rdr, &mut record, path, width)? {
         // First pass over the used cells: check sizes and missing cells, so a
         // dropped row leaves no partial values behind.
         let mut missing_here = None;
         for col in &columns {
             let cell = &record[col.index];
-            if cell.len() > MAX_FIELD_BYTES {
-                return Err(Error::new(ErrorKind::BadValue {
-                    path: path.to_path_buf(),
-                    line,
-                    column: col.name.clone(),
-                    index: col.index,
-                    value: format!("{}...", cell.chars().take(20).collect::<String>()),
-                    reason: format!(
-                        "the cell holds {} bytes, more than the limit of {MAX_FIELD_BYTES}",
-                        cell.len()
-                    ),
-                }));
-            }
+            check_cell_size(cell, path, line, &col.name, col.index)?;
             if is_missing(cell) {
                 missing_here = Some(col);
                 break;

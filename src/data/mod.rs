@@ -6,7 +6,7 @@
 //! encoded from the source columns, and a [`Target`]: class labels for a
 //! classifier or numeric values for regression.
 
-mod csv;
+pub(crate) mod csv;
 pub mod scale;
 pub mod split;
 

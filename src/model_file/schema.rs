@@ -1,0 +1,637 @@
+//! The version-1 file schema: structs owned by this module, separate from
+//! the in-memory [`Model`] (whose own serde form may change with the
+//! library), and the conversions both ways with every consistency check.
+//!
+//! Only `training_options` reuses an in-memory type's serde form
+//! ([`FitOptions`]); it is informational (the network, scaler and encoding
+//! hold everything prediction needs) and defaults any field it lacks.
+
+use crate::data::{ColumnEncoding, Scaler, Scaling};
+use crate::fit::{FitOptions, Model, Provenance};
+use crate::network::{Activation, Head, Layer, Network, Precision, MAX_PARAMETERS};
+use ndarray::{Array1, Array2};
+use serde::{Deserialize, Serialize};
+use std::collections::HashSet;
+
+/// The value of the `"format"` field.
+pub const FORMAT_NAME: &str = "stratanet-model";
+/// The format version this library writes and reads.
+pub const FORMAT_VERSION: u32 = 1;
+
+/// A whole model file.
+#[derive(Debug, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(super) struct FileV1 {
+    pub format: String,
+    pub format_version: u32,
+    pub target: TargetV1,
+    pub columns: Vec<ColumnV1>,
+    pub feature_names: Vec<String>,
+    pub scaler: ScalerV1,
+    pub training_options: FitOptions,
+    pub seed: u64,
+    pub provenance: ProvenanceV1,
+    pub network: NetworkV1,
+}
+
+#[derive(Debug, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(super) struct TargetV1 {
+    pub name: String,
+    pub is_classifier: bool,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub classes: Option<Vec<String>>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub outputs: Option<Vec<String>>,
+}
+
+#[derive(Debug, Serialize, Deserialize)]
+#[serde(tag = "encoding", rename_all = "snake_case", deny_unknown_fields)]
+pub(super) enum ColumnV1 {
+    Numeric { name: String },
+    OneHot { name: String, levels: Vec<String> },
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub(super) enum ScalingV1 {
+    None,
+    Standardise,
+    MinMax,
+}
+
+#[derive(Debug, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(super) struct ScalerV1 {
+    pub kind: ScalingV1,
+    pub offset: Vec<f64>,
+    pub scale: Vec<f64>,
+}
+
+#[derive(Debug, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(super) struct ProvenanceV1 {
+    pub library_version: String,
+    pub table_fingerprint: String,
+    pub table_source: String,
+    pub table_rows: usize,
+    pub training_rows: usize,
+    pub validation_rows: usize,
+    pub epochs_run: usize,
+    pub best_epoch: usize,
+    pub best_validation_loss: Option<f64>,
+    pub stopped_early: bool,
+    pub final_training_loss: f64,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub(super) enum ActivationV1 {
+    Identity,
+    Sigmoid,
+    Tanh,
+    Relu,
+    LeakyRelu,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub(super) enum HeadV1 {
+    Logistic,
+    Softmax,
+    Identity,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub(super) enum PrecisionV1 {
+    F64,
+    F32,
+}
+
+#[derive(Debug, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(super) struct NetworkV1 {
+    pub layer_sizes: Vec<usize>,
+    pub hidden_activation: ActivationV1,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub leaky_relu_slope: Option<f64>,
+    pub head: HeadV1,
+    pub precision: PrecisionV1,
+    pub layers: Vec<LayerV1>,
+}
+
+#[derive(Debug, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(super) struct LayerV1 {
+    /// One row per input unit, one number per output unit.
+    pub weights: Vec<Vec<f64>>,
+    /// One per output unit.
+    pub biases: Vec<f64>,
+}
+
+/// Weights and biases of a network with these layer sizes (saturating, so
+/// any claim, however absurd, gives a number to compare with the limit).
+pub(super) fn parameter_count(sizes: &[u64]) -> u128 {
+    sizes
+        .windows(2)
+        .map(|p| (u128::from(p[0]) + 1).saturating_mul(u128::from(p[1])))
+        .fold(0u128, u128::saturating_add)
+}
+
+/// Checks layer sizes before anything is allocated for them.
+pub(super) fn check_layer_sizes(sizes: &[u64]) -> Result<(), String> {
+    let shown = || show_sizes(sizes);
+    if sizes.len() < 2 {
+        return Err(format!(
+            "network: \"layer_sizes\" is {}; a network needs at least an input size and an output size",
+            shown()
+        ));
+    }
+    if let Some(i) = sizes.iter().position(|&s| s == 0) {
+        return Err(format!(
+            "network: \"layer_sizes\" {}: size {i} is 0; every layer needs at least one unit",
+            shown()
+        ));
+    }
+    let params = parameter_count(sizes);
+    if params > MAX_PARAMETERS as u128 {
+        return Err(format!(
+            "network: \"layer_sizes\" {} give {params} weights and biases, more than the limit of {MAX_PARAMETERS}; the file is damaged or not meant for stratanet",
+            shown()
+        ));
+    }
+    Ok(())
+}
+
+fn show_sizes(sizes: &[u64]) -> String {
+    const MAX: usize = 12;
+    let mut parts: Vec<String> = sizes.iter().take(MAX).map(u64::to_string).collect();
+    if sizes.len() > MAX {
+        parts.push(format!("... ({} sizes)", sizes.len()));
+    }
+    format!("[{}]", parts.join(", "))
+}
+
+/// The first non-finite number, as "entry i" (1-based) of a list.
+fn first_non_finite<'a>(values: impl IntoIterator<Item = &'a f64>) -> Option<usize> {
+    values
+        .into_iter()
+        .position(|v| !v.is_finite())
+        .map(|i| i + 1)
+}
+
+fn first_repeat(names: &[String]) -> Option<&str> {
+    let mut seen = HashSet::new();
+    names
+        .iter()
+        .find(|n| !seen.insert(n.as_str()))
+        .map(String::as_str)
+}
+
+impl FileV1 {
+    /// The file form of a model (no checks; see [`FileV1::check`]).
+    pub fn from_model(model: &Model) -> FileV1 {
+        let net = &model.network;
+        let (hidden_activation, leaky_relu_slope) = match net.activation() {
+            Activation::Identity => (ActivationV1::Identity, None),
+            Activation::Sigmoid => (ActivationV1::Sigmoid, None),
+            Activation::Tanh => (ActivationV1::Tanh, None),
+            Activation::Relu => (ActivationV1::Relu, None),
+            Activation::LeakyRelu(s) => (ActivationV1::LeakyRelu, Some(s)),
+        };
+        let network = NetworkV1 {
+            layer_sizes: net.sizes(),
+            hidden_activation,
+            leaky_relu_slope,
+            head: match net.head() {
+                Head::Logistic => HeadV1::Logistic,
+                Head::Softmax => HeadV1::Softmax,
+                Head::Identity => HeadV1::Identity,
+            },
+            precision: match net.precision() {
+                Precision::F64 => PrecisionV1::F64,
+                Precision::F32 => PrecisionV1::F32,
+            },
+            layers: net
+                .layers()
+                .iter()
+                .map(|l| LayerV1 {
+                    weights: l.weights.rows().into_iter().map(|r| r.to_vec()).collect(),
+                    biases: l.biases.to_vec(),
+                })
+                .collect(),
+        };
+        let names = model.target_names.clone();
+        let p = &model.provenance;
+        FileV1 {
+            format: FORMAT_NAME.to_string(),
+            format_version: FORMAT_VERSION,
+            target: TargetV1 {
+                name: model.target_name.clone(),
+                is_classifier: model.is_classifier,
+                classes: model.is_classifier.then(|| names.clone()),
+                outputs: (!model.is_classifier).then_some(names),
+            },
+            columns: model
+                .columns
+                .iter()
+                .map(|c| match c {
+                    ColumnEncoding::Numeric { name } => ColumnV1::Numeric { name: name.clone() },
+                    ColumnEncoding::OneHot { name, levels } => ColumnV1::OneHot {
+                        name: name.clone(),
+                        levels: levels.clone(),
+                    },
+                })
+                .collect(),
+            feature_names: model.feature_names.clone(),
+            scaler: ScalerV1 {
+                kind: match model.scaler.kind {
+                    Scaling::None => ScalingV1::None,
+                    Scaling::Standardise => ScalingV1::Standardise,
+                    Scaling::MinMax => ScalingV1::MinMax,
+                },
+                offset: model.scaler.offset.clone(),
+                scale: model.scaler.scale.clone(),
+            },
+            training_options: model.options.clone(),
+            seed: model.seed,
+            provenance: ProvenanceV1 {
+                library_version: p.library_version.clone(),
+                table_fingerprint: p.table_fingerprint.clone(),
+                table_source: p.table_source.clone(),
+                table_rows: p.table_rows,
+                training_rows: p.rows_used.0,
+                validation_rows: p.rows_used.1,
+                epochs_run: p.epochs_run,
+                best_epoch: p.best_epoch,
+                best_validation_loss: p.best_validation_loss,
+                stopped_early: p.stopped_early,
+                final_training_loss: p.final_training_loss,
+            },
+            network,
+        }
+    }
+
+    /// Every consistency check; the reason names the field.
+    pub fn check(&self) -> Result<(), String> {
+        if self.format != FORMAT_NAME {
+            return Err(format!(
+                "\"format\" is \"{}\", not \"{FORMAT_NAME}\"",
+                self.format
+            ));
+        }
+        if self.format_version != FORMAT_VERSION {
+            return Err(format!(
+                "\"format_version\" is {}, but this library writes and reads {FORMAT_VERSION}",
+                self.format_version
+            ));
+        }
+        self.check_network()?;
+        self.check_columns()?;
+        self.check_scaler()?;
+        self.check_target()?;
+        self.check_provenance()
+    }
+
+    fn check_network(&self) -> Result<(), String> {
+        let net = &self.network;
+        let sizes = &net.layer_sizes;
+        let sizes64: Vec<u64> = sizes.iter().map(|&s| s as u64).collect();
+        check_layer_sizes(&sizes64)?;
+        let shown = show_sizes(&sizes64);
+        if net.layers.len() != sizes.len() - 1 {
+            return Err(format!(
+                "network: \"layer_sizes\" {shown} call for {} layers, but \"layers\" holds {}",
+                sizes.len() - 1,
+                net.layers.len()
+            ));
+        }
+        for (k, layer) in net.layers.iter().enumerate() {
+            let (n_in, n_out) = (sizes[k], sizes[k + 1]);
+            let at = format!("network: layer {}", k + 1);
+            if layer.weights.len() != n_in {
+                return Err(format!(
+                    "{at}: \"weights\" has {} rows, but \"layer_sizes\" {shown} call for {n_in} (one row per input unit)",
+                    layer.weights.len()
+                ));
+            }
+            for (r, row) in layer.weights.iter().enumerate() {
+                if row.len() != n_out {
+                    return Err(format!(
+                        "{at}: \"weights\" row {} holds {} numbers, but \"layer_sizes\" {shown} call for {n_out} (one per output unit)",
+                        r + 1,
+                        row.len()
+                    ));
+                }
+                if let Some(c) = first_non_finite(row) {
+                    return Err(format!(
+                        "{at}: \"weights\" row {}, entry {c} is not a finite number",
+                        r + 1
+                    ));
+                }
+            }
+            if layer.biases.len() != n_out {
+                return Err(format!(
+                    "{at}: \"biases\" holds {} numbers, but \"layer_sizes\" {shown} call for {n_out} (one per output unit)",
+                    layer.biases.len()
+                ));
+            }
+            if let Some(c) = first_non_finite(&layer.biases) {
+                return Err(format!("{at}: \"biases\" entry {c} is not a finite number"));
+            }
+        }
+        match (net.hidden_activation, net.leaky_relu_slope) {
+            (ActivationV1::LeakyRelu, Some(s)) if s > 0.0 && s < 1.0 => {}
+            (ActivationV1::LeakyRelu, Some(s)) => {
+                return Err(format!(
+                    "network: \"leaky_relu_slope\" is {s}; it must be between 0 and 1"
+                ))
+            }
+            (ActivationV1::LeakyRelu, None) => {
+                return Err(
+                    "network: \"hidden_activation\" is \"leaky_relu\" but there is no \"leaky_relu_slope\""
+                        .into(),
+                )
+            }
+            (other, Some(_)) => {
+                return Err(format!(
+                    "network: \"leaky_relu_slope\" is given, but \"hidden_activation\" is \"{}\", which has no slope",
+                    activation_name(other)
+                ))
+            }
+            (_, None) => {}
+        }
+        if net.head == HeadV1::Softmax && sizes[sizes.len() - 1] < 2 {
+            return Err(
+                "network: the softmax head needs at least two outputs (one per class)".into(),
+            );
+        }
+        Ok(())
+    }
+
+    fn check_columns(&self) -> Result<(), String> {
+        let mut names = Vec::with_capacity(self.columns.len());
+        for c in &self.columns {
+            if let ColumnV1::OneHot { name, levels } = c {
+                if levels.is_empty() {
+                    return Err(format!(
+                        "\"columns\": the one_hot column \"{name}\" has no levels"
+                    ));
+                }
+                if let Some(l) = first_repeat(levels) {
+                    return Err(format!(
+                        "\"columns\": level \"{l}\" appears twice in column \"{name}\""
+                    ));
+                }
+            }
+            names.push(column_name(c).to_string());
+        }
+        if let Some(n) = first_repeat(&names) {
+            return Err(format!("\"columns\": column \"{n}\" appears twice"));
+        }
+        let encoded: Vec<String> = self
+            .columns
+            .iter()
+            .flat_map(|c| to_encoding(c).feature_names())
+            .collect();
+        if encoded.len() != self.feature_names.len() {
+            return Err(format!(
+                "\"columns\" encode {} features, but \"feature_names\" lists {}",
+                encoded.len(),
+                self.feature_names.len()
+            ));
+        }
+        if let Some(i) = (0..encoded.len()).find(|&i| encoded[i] != self.feature_names[i]) {
+            return Err(format!(
+                "\"feature_names\" entry {} is \"{}\", but \"columns\" make it \"{}\"",
+                i + 1,
+                self.feature_names[i],
+                encoded[i]
+            ));
+        }
+        if let Some(n) = first_repeat(&self.feature_names) {
+            return Err(format!("\"feature_names\": \"{n}\" appears twice"));
+        }
+        let inputs = self.network.layer_sizes[0];
+        if self.feature_names.len() != inputs {
+            return Err(format!(
+                "\"feature_names\" lists {} features, but the network has {inputs} inputs",
+                self.feature_names.len()
+            ));
+        }
+        Ok(())
+    }
+
+    fn check_scaler(&self) -> Result<(), String> {
+        let s = &self.scaler;
+        let n = self.feature_names.len();
+        if s.offset.len() != n || s.scale.len() != n {
+            return Err(format!(
+                "\"scaler\" has {} offsets and {} scales, but the model has {n} features",
+                s.offset.len(),
+                s.scale.len()
+            ));
+        }
+        if let Some(i) = first_non_finite(&s.offset) {
+            return Err(format!("\"scaler\": offset {i} is not a finite number"));
+        }
+        if let Some(i) = s.scale.iter().position(|v| !v.is_finite() || *v == 0.0) {
+            return Err(format!(
+                "\"scaler\": scale {} is {}; every scale must be a finite number other than 0",
+                i + 1,
+                s.scale[i]
+            ));
+        }
+        Ok(())
+    }
+
+    fn check_target(&self) -> Result<(), String> {
+        let t = &self.target;
+        let outputs = *self.network.layer_sizes.last().expect("checked: two sizes");
+        let head = self.network.head;
+        if t.is_classifier {
+            if t.outputs.is_some() {
+                return Err(
+                    "\"target\" is a classifier (\"is_classifier\": true) but lists \"outputs\"; a classifier lists \"classes\""
+                        .into(),
+                );
+            }
+            let Some(classes) = &t.classes else {
+                return Err(
+                    "\"target\" is a classifier (\"is_classifier\": true) but has no \"classes\""
+                        .into(),
+                );
+            };
+            if classes.len() < 2 {
+                return Err(format!(
+                    "\"target\" lists {} class(es); a classifier needs at least two",
+                    classes.len()
+                ));
+            }
+            if let Some(c) = first_repeat(classes) {
+                return Err(format!("\"target\": class \"{c}\" appears twice"));
+            }
+            let k = classes.len();
+            match head {
+                HeadV1::Softmax if outputs != k => Err(format!(
+                    "\"target\" lists {k} classes, but the softmax head has {outputs} outputs (it needs one output per class)"
+                )),
+                HeadV1::Logistic if k != 2 => Err(format!(
+                    "\"target\" lists {k} classes, but the logistic head serves exactly two classes"
+                )),
+                HeadV1::Logistic if outputs != 1 => Err(format!(
+                    "the logistic head of a two-class model needs one output, but the network has {outputs}"
+                )),
+                HeadV1::Identity => Err(
+                    "\"target\" is a classifier, but the head is \"identity\"; a classifier needs a logistic or softmax head"
+                        .into(),
+                ),
+                _ => Ok(()),
+            }
+        } else {
+            if t.classes.is_some() {
+                return Err(
+                    "\"target\" is not a classifier (\"is_classifier\": false) but lists \"classes\"; a regression model lists \"outputs\""
+                        .into(),
+                );
+            }
+            let Some(names) = &t.outputs else {
+                return Err(
+                    "\"target\" is not a classifier (\"is_classifier\": false) but has no \"outputs\""
+                        .into(),
+                );
+            };
+            if names.len() != outputs {
+                return Err(format!(
+                    "\"target\" lists {} outputs, but the network has {outputs}",
+                    names.len()
+                ));
+            }
+            if let Some(c) = first_repeat(names) {
+                return Err(format!("\"target\": output \"{c}\" appears twice"));
+            }
+            Ok(())
+        }
+    }
+
+    fn check_provenance(&self) -> Result<(), String> {
+        let p = &self.provenance;
+        if !p.final_training_loss.is_finite() {
+            return Err(format!(
+                "\"provenance\": \"final_training_loss\" is {}, which JSON cannot hold (it has no NaN or infinity)",
+                p.final_training_loss
+            ));
+        }
+        if let Some(v) = p.best_validation_loss.filter(|v| !v.is_finite()) {
+            return Err(format!(
+                "\"provenance\": \"best_validation_loss\" is {v}, which JSON cannot hold (it has no NaN or infinity)"
+            ));
+        }
+        Ok(())
+    }
+
+    /// The in-memory model, after [`FileV1::check`].
+    pub fn into_model(self) -> Result<Model, String> {
+        self.check()?;
+        let net = self.network;
+        let activation = match net.hidden_activation {
+            ActivationV1::Identity => Activation::Identity,
+            ActivationV1::Sigmoid => Activation::Sigmoid,
+            ActivationV1::Tanh => Activation::Tanh,
+            ActivationV1::Relu => Activation::Relu,
+            ActivationV1::LeakyRelu => {
+                Activation::LeakyRelu(net.leaky_relu_slope.expect("checked"))
+            }
+        };
+        let head = match net.head {
+            HeadV1::Logistic => Head::Logistic,
+            HeadV1::Softmax => Head::Softmax,
+            HeadV1::Identity => Head::Identity,
+        };
+        let precision = match net.precision {
+            PrecisionV1::F64 => Precision::F64,
+            PrecisionV1::F32 => Precision::F32,
+        };
+        let layers = net
+            .layers
+            .into_iter()
+            .map(|l| {
+                let (rows, cols) = (l.weights.len(), l.biases.len());
+                let flat: Vec<f64> = l.weights.into_iter().flatten().collect();
+                Layer {
+                    weights: Array2::from_shape_vec((rows, cols), flat).expect("checked shape"),
+                    biases: Array1::from(l.biases),
+                }
+            })
+            .collect();
+        // Everything from_layers checks was checked above with the file's
+        // field names; a refusal here would be a gap in those checks.
+        let network = Network::from_layers(layers, activation, head)
+            .map_err(|e| format!("network: {e}"))?
+            .with_precision(precision);
+        let t = self.target;
+        let p = self.provenance;
+        Ok(Model {
+            network,
+            scaler: Scaler {
+                kind: match self.scaler.kind {
+                    ScalingV1::None => Scaling::None,
+                    ScalingV1::Standardise => Scaling::Standardise,
+                    ScalingV1::MinMax => Scaling::MinMax,
+                },
+                offset: self.scaler.offset,
+                scale: self.scaler.scale,
+            },
+            columns: self.columns.iter().map(to_encoding).collect(),
+            feature_names: self.feature_names,
+            target_name: t.name,
+            target_names: if t.is_classifier {
+                t.classes.expect("checked")
+            } else {
+                t.outputs.expect("checked")
+            },
+            is_classifier: t.is_classifier,
+            options: self.training_options,
+            seed: self.seed,
+            provenance: Provenance {
+                library_version: p.library_version,
+                table_fingerprint: p.table_fingerprint,
+                table_rows: p.table_rows,
+                table_source: p.table_source,
+                rows_used: (p.training_rows, p.validation_rows),
+                epochs_run: p.epochs_run,
+                best_epoch: p.best_epoch,
+                best_validation_loss: p.best_validation_loss,
+                stopped_early: p.stopped_early,
+                final_training_loss: p.final_training_loss,
+            },
+        })
+    }
+}
+
+fn column_name(c: &ColumnV1) -> &str {
+    match c {
+        ColumnV1::Numeric { name } | ColumnV1::OneHot { name, .. } => name,
+    }
+}
+
+fn to_encoding(c: &ColumnV1) -> ColumnEncoding {
+    match c {
+        ColumnV1::Numeric { name } => ColumnEncoding::Numeric { name: name.clone() },
+        ColumnV1::OneHot { name, levels } => ColumnEncoding::OneHot {
+            name: name.clone(),
+            levels: levels.clone(),
+        },
+    }
+}
+
+fn activation_name(a: ActivationV1) -> &'static str {
+    match a {
+        ActivationV1::Identity => "identity",
+        ActivationV1::Sigmoid => "sigmoid",
+        ActivationV1::Tanh => "tanh",
+        ActivationV1::Relu => "relu",
+        ActivationV1::LeakyRelu => "leaky_relu",
+    }
+}
