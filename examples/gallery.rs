@@ -5,11 +5,11 @@
 //! cargo run --release --example gallery -- [FOLDER]
 //! ```
 
+use std::path::{Path, PathBuf};
 use stratanet::chart::{self, HiddenView};
 use stratanet::data::CsvOptions;
 use stratanet::prelude::*;
 use stratanet::validate::{compare_configurations, CvOptions, Metric, Scores};
-use std::path::{Path, PathBuf};
 
 fn png(svg_path: &Path) {
     let svg = std::fs::read(svg_path).expect("svg");
@@ -19,22 +19,41 @@ fn png(svg_path: &Path) {
     let tree = resvg::usvg::Tree::from_data(&svg, &options).expect("parse svg");
     let size = tree.size().to_int_size();
     let mut pixmap = resvg::tiny_skia::Pixmap::new(size.width(), size.height()).expect("pixmap");
-    resvg::render(&tree, resvg::tiny_skia::Transform::default(), &mut pixmap.as_mut());
-    pixmap.save_png(svg_path.with_extension("png")).expect("png");
+    resvg::render(
+        &tree,
+        resvg::tiny_skia::Transform::default(),
+        &mut pixmap.as_mut(),
+    );
+    pixmap
+        .save_png(svg_path.with_extension("png"))
+        .expect("png");
 }
 
 fn main() -> stratanet::Result<()> {
-    let out: PathBuf = std::env::args().nth(1).unwrap_or_else(|| "target/gallery".into()).into();
+    let out: PathBuf = std::env::args()
+        .nth(1)
+        .unwrap_or_else(|| "target/gallery".into())
+        .into();
     std::fs::create_dir_all(&out).map_err(|e| Error::io(&out, "creating", e))?;
     let root = Path::new(env!("CARGO_MANIFEST_DIR"));
-    let parts = CsvOptions::new("verdict").drop(&["part_id"]).read(root.join("demo-data/parts.csv"))?;
+    let parts = CsvOptions::new("verdict")
+        .drop(&["part_id"])
+        .read(root.join("demo-data/parts.csv"))?;
     let options = FitOptions::default().hidden(&[12]).epochs(400).restarts(4);
     let fitted = fit(&parts, &options, &mut seeded_rng(42))?;
     let model = &fitted.model;
     let (scores, _) = Scores::of(model, &parts)?;
-    let Scores::Classification(metrics) = &scores else { unreachable!("a classifier") };
-    let two = CsvOptions::new("verdict").features(&["bore_dev_um", "roundness_um"]).read(root.join("demo-data/parts.csv"))?;
-    let fitted_two = fit(&two, &FitOptions::default().hidden(&[8]).epochs(400), &mut seeded_rng(7))?;
+    let Scores::Classification(metrics) = &scores else {
+        unreachable!("a classifier")
+    };
+    let two = CsvOptions::new("verdict")
+        .features(&["bore_dev_um", "roundness_um"])
+        .read(root.join("demo-data/parts.csv"))?;
+    let fitted_two = fit(
+        &two,
+        &FitOptions::default().hidden(&[8]).epochs(400),
+        &mut seeded_rng(7),
+    )?;
     let comparison = compare_configurations(
         &parts,
         &FitOptions::default().hidden(&[]).epochs(200),
@@ -45,14 +64,35 @@ fn main() -> stratanet::Result<()> {
     )?;
     let charts = vec![
         ("learning-curves", chart::training_curves(&fitted)?),
-        ("decision-map", chart::decision_boundary(model, &parts, "bore_dev_um", "roundness_um")?),
-        ("decision-map-two-features", chart::decision_boundary(&fitted_two.model, &two, "bore_dev_um", "roundness_um")?),
-        ("decision-map-components", chart::decision_boundary_principal(model, &parts)?),
-        ("hidden-layer", chart::hidden_layer_view(model, &parts, 1, HiddenView::PrincipalComponents)?),
+        (
+            "decision-map",
+            chart::decision_boundary(model, &parts, "bore_dev_um", "roundness_um")?,
+        ),
+        (
+            "decision-map-two-features",
+            chart::decision_boundary(&fitted_two.model, &two, "bore_dev_um", "roundness_um")?,
+        ),
+        (
+            "decision-map-components",
+            chart::decision_boundary_principal(model, &parts)?,
+        ),
+        (
+            "hidden-layer",
+            chart::hidden_layer_view(model, &parts, 1, HiddenView::PrincipalComponents)?,
+        ),
         ("confusion-matrix", chart::confusion(metrics)?),
         ("roc", chart::roc(model, &parts)?),
         ("precision-recall", chart::precision_recall(model, &parts)?),
-        ("cv-comparison", chart::cv_comparison(&[("no hidden layer", &comparison.a), ("hidden 12", &comparison.b)], Metric::Accuracy)?),
+        (
+            "cv-comparison",
+            chart::cv_comparison(
+                &[
+                    ("no hidden layer", &comparison.a),
+                    ("hidden 12", &comparison.b),
+                ],
+                Metric::Accuracy,
+            )?,
+        ),
         ("network", chart::network(model)?),
     ];
     for (name, c) in charts {

@@ -20,6 +20,7 @@
 
 mod atomic;
 pub mod chart;
+pub mod cli;
 pub mod data;
 pub mod error;
 pub mod fit;
@@ -27,6 +28,7 @@ pub mod model_file;
 pub mod network;
 pub mod notebook;
 pub mod prelude;
+pub mod report;
 pub mod rng;
 pub mod train;
 pub mod validate;

@@ -1,1 +1,5 @@
-fn main() {}
+//! The `stratanet` command line; see `stratanet --help` and the README.
+
+fn main() {
+    std::process::exit(stratanet::cli::main());
+}

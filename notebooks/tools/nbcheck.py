@@ -42,12 +42,15 @@ from __future__ import annotations
 
 import argparse
 import asyncio
+import atexit
 import fcntl
+import hashlib
 import json
 import os
 import re
 import shutil
 import sys
+import tempfile
 import time
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -57,8 +60,15 @@ from nbclient import NotebookClient
 from nbclient.exceptions import CellTimeoutError, DeadKernelError
 
 ROOT = Path(__file__).resolve().parents[2]
-BUILD_DIR = ROOT / "target" / "nbcheck" / "evcxr"
-LOCK_FILE = ROOT / "target" / "nbcheck" / "lock"
+# evcxr's build folder (EVCXR_TMPDIR). Not inside the repo: cargo parses every
+# Cargo.toml above a package while looking for a workspace (a repo manifest
+# with a [workspace] table, or a broken one, would break evcxr's build) and
+# applies every .cargo/config.toml above the build folder.
+BUILD_DIR = Path(
+    os.environ.get("NBCHECK_BUILD_DIR")
+    or Path(tempfile.gettempdir()) / f"nbcheck-evcxr-{hashlib.sha256(str(ROOT).encode()).hexdigest()[:12]}"
+).resolve()
+LOCK_FILE = BUILD_DIR.with_name(BUILD_DIR.name + ".lock")
 KERNEL_LOG = ROOT / "target" / "nbcheck" / "kernel.log"
 
 MIME_TAGS = {
@@ -334,13 +344,14 @@ async def run_notebook(path: Path, args) -> Run:
     run.cold = prepare_build_dir(args.fresh)
     t_nb = time.monotonic()
     code_cells = [(i, c) for i, c in enumerate(nb.cells) if c.cell_type == "code" and c.source.strip()]
-    for i, c in enumerate(nb.cells):
-        if c.cell_type == "code" and not c.source.strip():
+    for c in nb.cells:  # a cell that is not reached must not keep its old outputs
+        if c.cell_type == "code":
             c.outputs = []
     KERNEL_LOG.parent.mkdir(parents=True, exist_ok=True)
     log = open(KERNEL_LOG, "a", encoding="utf-8")
     log.write(f"==== {time.strftime('%Y-%m-%d %H:%M:%S')} {rel(path)}\n")
     log.flush()
+    log_start = log.tell()
     try:
         # The kernel's own stdout/stderr (not the cells') go to the log.
         async with client.async_setup_kernel(cwd=str(path.parent), env=env, stdout=log, stderr=log):
@@ -371,6 +382,14 @@ async def run_notebook(path: Path, args) -> Run:
             run.fatal = f"{type(exc).__name__}: {exc} (kernel log: {rel(KERNEL_LOG)})"
     finally:
         log.close()
+        atexit.unregister(client._cleanup_kernel)  # nbclient's, noisy once the kernel is gone
+    if run.fatal:
+        with open(KERNEL_LOG, encoding="utf-8", errors="replace") as f:
+            f.seek(log_start)
+            tail = [l.rstrip() for l in f.read().splitlines() if l.strip()]
+        picked = [l for l in tail if not l.lstrip()[:1].isdigit() and not l.strip().startswith("at ")]
+        if picked:
+            run.fatal += "\n    kernel said: " + "\n    kernel said: ".join(short(l, 160) for l in picked[:8])
     for index, cell in code_cells:
         if not any(r.index == index for r in run.cells):
             run.cells.append(CellResult(index=index, source=cell.source, failures=["not run"]))
@@ -618,7 +637,7 @@ def main(argv=None) -> int:
                        help=f"fail (not just warn) on stderr output in a cell not tagged {STDERR_TAG} "
                             "(or set NBCHECK_STRICT_STDERR=1)")
         p.add_argument("--fresh", action="store_true",
-                       help=f"delete the evcxr build folder ({BUILD_DIR.relative_to(ROOT)}) first: a cold :dep compile")
+                       help=f"delete evcxr's build folder ({BUILD_DIR}, or $NBCHECK_BUILD_DIR) first: a cold :dep compile")
 
     p = sub.add_parser("execute", help="run notebooks and check their outputs")
     common(p)

@@ -80,8 +80,9 @@ pub use learning::{learning_curves, LearningCurveOptions, TrainingHistory, YScal
 pub use network::{network_diagram, NetworkWeights, MAX_NODES_PER_LAYER};
 pub use pca::{principal_components_2, PrincipalComponents};
 pub use results::{
-    confusion, cv_comparison, decision_boundary, decision_boundary_principal, decision_boundary_with, hidden_layer_view, network,
-    precision_recall, roc, training_curves, training_curves_with,
+    confusion, cv_comparison, decision_boundary, decision_boundary_principal,
+    decision_boundary_with, hidden_layer_view, network, precision_recall, roc, training_curves,
+    training_curves_with,
 };
 
 /// Scatter charts draw at most this many points; above it they draw every

@@ -4,10 +4,10 @@
 //! [`ChartOptions`] to the `_with` forms to change size, title or labels).
 
 use super::{
-    confusion_matrix, cross_validation_comparison, decision_map, hidden_layer, learning_curves, network_diagram,
-    precision_recall_curves, principal_components_2, roc_curves, Chart, ChartOptions, ClassPoints,
-    ConfigurationScores, Curve, DecisionMapOptions, HiddenView, LearningCurveOptions, NetworkWeights,
-    TrainingHistory,
+    confusion_matrix, cross_validation_comparison, decision_map, hidden_layer, learning_curves,
+    network_diagram, precision_recall_curves, principal_components_2, roc_curves, Chart,
+    ChartOptions, ClassPoints, ConfigurationScores, Curve, DecisionMapOptions, HiddenView,
+    LearningCurveOptions, NetworkWeights, TrainingHistory,
 };
 use crate::data::Dataset;
 use crate::error::{Error, Result};
@@ -19,7 +19,11 @@ use ndarray::{Array2, ArrayView2, Axis};
 
 fn history(r: &TrainingReport) -> TrainingHistory {
     let val: Vec<f64> = r.history.iter().filter_map(|e| e.validation_loss).collect();
-    let acc: Vec<f64> = r.history.iter().filter_map(|e| e.validation_accuracy).collect();
+    let acc: Vec<f64> = r
+        .history
+        .iter()
+        .filter_map(|e| e.validation_accuracy)
+        .collect();
     TrainingHistory {
         training_loss: r.training_losses(),
         validation_loss: (!val.is_empty()).then_some(val),
@@ -41,7 +45,10 @@ pub fn training_curves(fitted: &Fitted) -> Result<Chart> {
 ///
 /// # Errors
 /// As [`learning_curves`].
-pub fn training_curves_with(reports: &[TrainingReport], options: &LearningCurveOptions) -> Result<Chart> {
+pub fn training_curves_with(
+    reports: &[TrainingReport],
+    options: &LearningCurveOptions,
+) -> Result<Chart> {
     let runs: Vec<TrainingHistory> = reports.iter().map(history).collect();
     let mut options = options.clone();
     if options.chart.title.is_none() {
@@ -59,16 +66,32 @@ pub fn training_curves_with(reports: &[TrainingReport], options: &LearningCurveO
     learning_curves(&runs, &options)
 }
 
-fn class_points(model: &Model, data: &Dataset, xy: &Array2<f64>, x_name: &str, y_name: &str) -> Result<ClassPoints> {
+fn class_points(
+    model: &Model,
+    data: &Dataset,
+    xy: &Array2<f64>,
+    x_name: &str,
+    y_name: &str,
+) -> Result<ClassPoints> {
     let labels = data
         .labels()
         .ok_or_else(|| Error::input("decision map", "needs a table with class labels"))?;
     let class_names = model
         .class_names()
-        .ok_or_else(|| Error::input("decision map", "needs a classifier; this model predicts numbers"))?
+        .ok_or_else(|| {
+            Error::input(
+                "decision map",
+                "needs a classifier; this model predicts numbers",
+            )
+        })?
         .to_vec();
     Ok(ClassPoints {
-        points: xy.rows().into_iter().zip(labels).map(|(r, &l)| (r[0], r[1], l)).collect(),
+        points: xy
+            .rows()
+            .into_iter()
+            .zip(labels)
+            .map(|(r, &l)| (r[0], r[1], l))
+            .collect(),
         class_names,
         x_name: x_name.to_string(),
         y_name: y_name.to_string(),
@@ -95,8 +118,19 @@ fn medians(x: ArrayView2<'_, f64>) -> Vec<f64> {
 ///
 /// # Errors
 /// Unknown feature names (listed), a regression model, mismatched tables.
-pub fn decision_boundary(model: &Model, data: &Dataset, x_feature: &str, y_feature: &str) -> Result<Chart> {
-    decision_boundary_with(model, data, x_feature, y_feature, &DecisionMapOptions::default())
+pub fn decision_boundary(
+    model: &Model,
+    data: &Dataset,
+    x_feature: &str,
+    y_feature: &str,
+) -> Result<Chart> {
+    decision_boundary_with(
+        model,
+        data,
+        x_feature,
+        y_feature,
+        &DecisionMapOptions::default(),
+    )
 }
 
 /// [`decision_boundary`] with options.
@@ -111,9 +145,16 @@ pub fn decision_boundary_with(
     options: &DecisionMapOptions,
 ) -> Result<Chart> {
     model.check_features(data)?;
-    let (i, j) = (data.feature_index(x_feature)?, data.feature_index(y_feature)?);
+    let (i, j) = (
+        data.feature_index(x_feature)?,
+        data.feature_index(y_feature)?,
+    );
     if i == j {
-        return Err(Error::option("decision map features", x_feature, "the two features must differ"));
+        return Err(Error::option(
+            "decision map features",
+            x_feature,
+            "the two features must differ",
+        ));
     }
     let base = medians(data.x());
     let xy = data.features.select(Axis(1), &[i, j]);
@@ -131,7 +172,10 @@ pub fn decision_boundary_with(
         options.chart.title = Some(format!("Decision map over {x_feature} and {y_feature}"));
     }
     if base.len() > 2 {
-        options.notes.push(format!("the other {} features are held at their medians", base.len() - 2));
+        options.notes.push(format!(
+            "the other {} features are held at their medians",
+            base.len() - 2
+        ));
     }
     decision_map(&predict, &points, &options)
 }
@@ -154,7 +198,8 @@ pub fn decision_boundary_principal(model: &Model, data: &Dataset) -> Result<Char
         let mut rows = Array2::zeros((grid.nrows(), pcs.means.len()));
         for (r, g) in grid.rows().into_iter().enumerate() {
             for c in 0..pcs.means.len() {
-                rows[[r, c]] = pcs.means[c] + g[0] * pcs.components[[0, c]] + g[1] * pcs.components[[1, c]];
+                rows[[r, c]] =
+                    pcs.means[c] + g[0] * pcs.components[[0, c]] + g[1] * pcs.components[[1, c]];
             }
         }
         model.network.predict_probabilities(rows.view())
@@ -172,11 +217,19 @@ pub fn decision_boundary_principal(model: &Model, data: &Dataset) -> Result<Char
 ///
 /// # Errors
 /// No such layer, a table without classes, mismatched tables.
-pub fn hidden_layer_view(model: &Model, data: &Dataset, layer: usize, view: HiddenView) -> Result<Chart> {
+pub fn hidden_layer_view(
+    model: &Model,
+    data: &Dataset,
+    layer: usize,
+    view: HiddenView,
+) -> Result<Chart> {
     model.check_features(data)?;
-    let labels = data
-        .labels()
-        .ok_or_else(|| Error::input("hidden-layer view", "needs a table with class labels to colour the rows"))?;
+    let labels = data.labels().ok_or_else(|| {
+        Error::input(
+            "hidden-layer view",
+            "needs a table with class labels to colour the rows",
+        )
+    })?;
     let names = data.class_names().unwrap_or(&[]).to_vec();
     let a = model.hidden_activations(data.x(), layer)?;
     let options = ChartOptions::titled(format!(
@@ -192,7 +245,11 @@ pub fn hidden_layer_view(model: &Model, data: &Dataset, layer: usize, view: Hidd
 /// # Errors
 /// As [`confusion_matrix`].
 pub fn confusion(metrics: &ClassificationMetrics) -> Result<Chart> {
-    confusion_matrix(metrics.confusion.counts(), &metrics.class_names, &ChartOptions::titled("Confusion matrix"))
+    confusion_matrix(
+        metrics.confusion.counts(),
+        &metrics.class_names,
+        &ChartOptions::titled("Confusion matrix"),
+    )
 }
 
 fn class_curves(
@@ -201,12 +258,19 @@ fn class_curves(
     mut curve: impl FnMut(&[f64], &[bool]) -> Result<(Vec<(f64, f64)>, f64)>,
 ) -> Result<Vec<Curve>> {
     model.check_features(data)?;
-    let labels = data
-        .labels()
-        .ok_or_else(|| Error::input("ROC and precision-recall curves", "need a table with class labels"))?;
+    let labels = data.labels().ok_or_else(|| {
+        Error::input(
+            "ROC and precision-recall curves",
+            "need a table with class labels",
+        )
+    })?;
     let names = data.class_names().unwrap_or(&[]).to_vec();
     let p = model.predict_probabilities(data.x())?;
-    let classes: Vec<usize> = if names.len() == 2 { vec![1] } else { (0..names.len()).collect() };
+    let classes: Vec<usize> = if names.len() == 2 {
+        vec![1]
+    } else {
+        (0..names.len()).collect()
+    };
     classes
         .into_iter()
         .map(|k| {
@@ -214,7 +278,11 @@ fn class_curves(
             let truth: Vec<bool> = labels.iter().map(|&l| l == k).collect();
             let (points, summary) = curve(&scores, &truth)?;
             Ok(Curve {
-                label: if names.len() == 2 { format!("{} vs {}", names[1], names[0]) } else { format!("{} vs rest", names[k]) },
+                label: if names.len() == 2 {
+                    format!("{} vs {}", names[1], names[0])
+                } else {
+                    format!("{} vs rest", names[k])
+                },
                 points,
                 summary: Some(summary),
             })
@@ -230,7 +298,13 @@ fn class_curves(
 pub fn roc(model: &Model, data: &Dataset) -> Result<Chart> {
     let curves = class_curves(model, data, |s, t| {
         let c = roc_curve(s, t)?;
-        Ok((c.points.iter().map(|p| (p.false_positive_rate, p.true_positive_rate)).collect(), c.auc))
+        Ok((
+            c.points
+                .iter()
+                .map(|p| (p.false_positive_rate, p.true_positive_rate))
+                .collect(),
+            c.auc,
+        ))
     })?;
     roc_curves(&curves, &ChartOptions::titled("ROC curves"))
 }
@@ -243,7 +317,10 @@ pub fn roc(model: &Model, data: &Dataset) -> Result<Chart> {
 pub fn precision_recall(model: &Model, data: &Dataset) -> Result<Chart> {
     let curves = class_curves(model, data, |s, t| {
         let c = precision_recall_curve(s, t)?;
-        Ok((c.points.iter().map(|p| (p.recall, p.precision)).collect(), c.average_precision))
+        Ok((
+            c.points.iter().map(|p| (p.recall, p.precision)).collect(),
+            c.average_precision,
+        ))
     })?;
     precision_recall_curves(&curves, &ChartOptions::titled("Precision-recall curves"))
 }
@@ -270,7 +347,10 @@ pub fn cv_comparison(configurations: &[(&str, &CrossValidation)], metric: Metric
         &scores,
         metric.name(),
         metric.higher_is_better(),
-        &ChartOptions::titled(format!("Cross-validated {}", metric.name().replace('_', " "))),
+        &ChartOptions::titled(format!(
+            "Cross-validated {}",
+            metric.name().replace('_', " ")
+        )),
     )
 }
 

@@ -22,25 +22,39 @@ pub struct Cli {
 #[derive(Debug, Subcommand)]
 pub enum Command {
     /// Train a network on a CSV file and save the model.
-    #[command(after_help = "Example:\n  stratanet fit demo-data/parts.csv --target verdict --drop part_id --out parts-model.json")]
+    #[command(
+        after_help = "Example:\n  stratanet fit demo-data/parts.csv --target verdict --drop part_id --out parts-model.json"
+    )]
     Fit(FitArgs),
     /// Score a saved model on labelled rows.
     #[command(after_help = "Example:\n  stratanet check parts-model.json demo-data/parts.csv")]
     Check(CheckArgs),
     /// Write predictions and class probabilities for new rows to CSV.
-    #[command(after_help = "Example:\n  stratanet predict parts-model.json new-parts.csv --out predictions.csv")]
+    #[command(
+        after_help = "Example:\n  stratanet predict parts-model.json new-parts.csv --out predictions.csv"
+    )]
     Predict(PredictArgs),
     /// Cross-validate a configuration (stratified k-fold).
-    #[command(after_help = "Example:\n  stratanet cv demo-data/parts.csv --target verdict --drop part_id --folds 5 --hidden 12")]
+    #[command(
+        after_help = "Example:\n  stratanet cv demo-data/parts.csv --target verdict --drop part_id --folds 5 --hidden 12"
+    )]
     Cv(CvArgs),
     /// Cross-validate a grid of configurations on shared folds.
-    #[command(after_help = "Example:\n  stratanet sweep demo-data/parts.csv --target verdict --drop part_id --grid-hidden 4,8,8-8 --grid-learning-rate 0.01,0.03\n\nRunning trials elsewhere (an array job):\n  stratanet sweep ... --write-plan plan.json      # one JSON line per trial, folds and seeds fixed\n  stratanet sweep-trial plan.json demo-data/parts.csv --trial 7 --out trial-7.json\n  stratanet sweep-merge plan.json trial-*.json")]
+    #[command(
+        after_help = "Example:\n  stratanet sweep demo-data/parts.csv --target verdict --drop part_id --grid-hidden 4,8,8-8 --grid-learning-rate 0.01,0.03\n\nRunning trials elsewhere (an array job):\n  stratanet sweep ... --write-plan plan.json      # one JSON line per trial, folds and seeds fixed\n  stratanet sweep-trial plan.json demo-data/parts.csv --trial 7 --out trial-7.json\n  stratanet sweep-merge plan.json trial-*.json"
+    )]
     Sweep(SweepArgs),
     /// Run one trial of a sweep plan (for array jobs).
-    #[command(name = "sweep-trial", after_help = "Example:\n  stratanet sweep-trial plan.json demo-data/parts.csv --trial 0 --out trial-0.json")]
+    #[command(
+        name = "sweep-trial",
+        after_help = "Example:\n  stratanet sweep-trial plan.json demo-data/parts.csv --trial 0 --out trial-0.json"
+    )]
     SweepTrial(SweepTrialArgs),
     /// Merge trial results into the sweep table.
-    #[command(name = "sweep-merge", after_help = "Example:\n  stratanet sweep-merge plan.json trial-*.json")]
+    #[command(
+        name = "sweep-merge",
+        after_help = "Example:\n  stratanet sweep-merge plan.json trial-*.json"
+    )]
     SweepMerge(SweepMergeArgs),
     /// The whole job on the embedded demo data: fit, cross-validate, compare, chart.
     #[command(after_help = "Example:\n  stratanet demo --out stratanet-demo")]
@@ -348,8 +362,13 @@ pub fn hidden_widths(flag: &str, value: &str) -> Result<Vec<usize>> {
 }
 
 pub(crate) fn activation(flag: &str, value: &str) -> Result<Activation> {
-    Activation::from_name(value)
-        .ok_or_else(|| Error::option(flag, value, "must be one of sigmoid, tanh, relu, leaky_relu, identity"))
+    Activation::from_name(value).ok_or_else(|| {
+        Error::option(
+            flag,
+            value,
+            "must be one of sigmoid, tanh, relu, leaky_relu, identity",
+        )
+    })
 }
 
 fn number(flag: &str, text: &str) -> Result<f64> {
@@ -379,14 +398,26 @@ impl NetArgs {
                 Some(r) => Init::SmallUniform {
                     range: number("--init", r)?,
                 },
-                None => return Err(Error::option("--init", s, "must be auto, glorot, he or small:RANGE (e.g. small:0.5)")),
+                None => {
+                    return Err(Error::option(
+                        "--init",
+                        s,
+                        "must be auto, glorot, he or small:RANGE (e.g. small:0.5)",
+                    ))
+                }
             },
         };
         o.scaling = match self.scaling.as_str() {
             "standardise" | "standardize" => Scaling::Standardise,
             "min-max" | "minmax" => Scaling::MinMax,
             "none" => Scaling::None,
-            s => return Err(Error::option("--scaling", s, "must be standardise, min-max or none")),
+            s => {
+                return Err(Error::option(
+                    "--scaling",
+                    s,
+                    "must be standardise, min-max or none",
+                ))
+            }
         };
         o.precision = match self.precision.as_str() {
             "f64" => Precision::F64,
@@ -402,7 +433,13 @@ impl NetArgs {
             "momentum" => Optimiser::Momentum { mu: self.momentum },
             "nesterov" => Optimiser::Nesterov { mu: self.momentum },
             "adam" => Optimiser::ADAM,
-            s => return Err(Error::option("--optimiser", s, "must be sgd, momentum, nesterov or adam")),
+            s => {
+                return Err(Error::option(
+                    "--optimiser",
+                    s,
+                    "must be sgd, momentum, nesterov or adam",
+                ))
+            }
         };
         t.schedule = schedule(&self.schedule)?;
         t.weight_decay = self.weight_decay;
@@ -450,7 +487,10 @@ fn schedule(value: &str) -> Result<Schedule> {
 
 /// Parses a comma-separated list with `item`.
 pub(crate) fn list<T>(flag: &str, value: &str, item: impl Fn(&str) -> Result<T>) -> Result<Vec<T>> {
-    let items: Vec<T> = value.split(',').map(|s| item(s.trim())).collect::<Result<_>>()?;
+    let items: Vec<T> = value
+        .split(',')
+        .map(|s| item(s.trim()))
+        .collect::<Result<_>>()?;
     if items.is_empty() {
         return Err(Error::option(flag, value, "needs at least one value"));
     }

@@ -1,11 +1,14 @@
 //! The subcommands. Each reads, calls the library, and returns an [`Outcome`].
 
-use super::args::{self, CheckArgs, CvArgs, DemoArgs, FitArgs, PredictArgs, SweepArgs, SweepMergeArgs, SweepTrialArgs};
+use super::args::{
+    self, CheckArgs, CvArgs, DemoArgs, FitArgs, PredictArgs, SweepArgs, SweepMergeArgs,
+    SweepTrialArgs,
+};
 use super::{progress_wanted, Outcome};
 use crate::data::Dataset;
 use crate::error::{Error, Result};
 use crate::fit::{fit as fit_model, FitOptions};
-use crate::model_file;
+use crate::model_file::{self, FeatureOptions, TargetColumn};
 use crate::report;
 use crate::rng::seeded_rng;
 use crate::validate::{
@@ -100,7 +103,7 @@ const CAUTION: &str = "Caution: a model supports, and never replaces, qualified 
 
 pub fn fit(a: FitArgs) -> Result<Outcome> {
     let progress = progress_wanted(&a.output);
-    model_file::refuse_overwrite_input(&a.out, &[&a.data])?;
+    crate::atomic::refuse_overwrite_input(&a.out, &[&a.data])?;
     let data = read_table(&a.data, &a.table)?;
     let options = with_progress(a.net.fit_options()?, progress);
     let fitted = fit_model(&data, &options, &mut seeded_rng(a.net.seed))?;
@@ -132,16 +135,30 @@ pub fn fit(a: FitArgs) -> Result<Outcome> {
         "charts": charts,
     });
     let mut text = String::new();
-    let _ = writeln!(text, "fitted {:?} on {} rows of {}", fitted.model.network.sizes(), data.n_rows(), a.data.display());
+    let _ = writeln!(
+        text,
+        "fitted {:?} on {} rows of {}",
+        fitted.model.network.sizes(),
+        data.n_rows(),
+        a.data.display()
+    );
     if data.dropped_rows > 0 {
-        let _ = writeln!(text, "  dropped {} rows with missing cells", data.dropped_rows);
+        let _ = writeln!(
+            text,
+            "  dropped {} rows with missing cells",
+            data.dropped_rows
+        );
     }
     let _ = writeln!(
         text,
         "  epochs run {} (best {}{}), final training loss {:.5}",
         r.epochs_run,
         r.best_epoch,
-        if r.stopped_early { ", stopped early" } else { "" },
+        if r.stopped_early {
+            ", stopped early"
+        } else {
+            ""
+        },
         r.final_training_loss()
     );
     if let Some(v) = r.best_validation_loss {
@@ -156,7 +173,11 @@ pub fn fit(a: FitArgs) -> Result<Outcome> {
 
 pub fn check(a: CheckArgs) -> Result<Outcome> {
     let model = model_file::load(&a.model)?;
-    let table = model_file::read_for_model(&model, &a.data, a.ignore_extra, args::missing(&a.missing)?, true)?;
+    let table = FeatureOptions::default()
+        .ignore_extra(a.ignore_extra)
+        .missing(args::missing(&a.missing)?)
+        .target(TargetColumn::Require)
+        .read(&model, &a.data)?;
     let data = table.into_dataset(&model)?;
     let (scores, _) = Scores::of(&model, &data)?;
     let mut json = json!({
@@ -171,17 +192,25 @@ pub fn check(a: CheckArgs) -> Result<Outcome> {
         json["confusion"] = json!(m.confusion.counts());
         json["classes"] = json!(m.class_names);
     }
-    let mut text = format!("{} rows of {} scored by {}\n", data.n_rows(), a.data.display(), a.model.display());
+    let mut text = format!(
+        "{} rows of {} scored by {}\n",
+        data.n_rows(),
+        a.data.display(),
+        a.model.display()
+    );
     scores_text(&scores, &mut text);
     let _ = writeln!(text, "{CAUTION}");
     Ok(Outcome { json, text })
 }
 
 pub fn predict(a: PredictArgs) -> Result<Outcome> {
-    model_file::refuse_overwrite_input(&a.out, &[&a.data, &a.model])?;
+    crate::atomic::refuse_overwrite_input(&a.out, &[&a.data, &a.model])?;
     let model = model_file::load(&a.model)?;
-    let table = model_file::read_for_model(&model, &a.data, a.ignore_extra, args::missing(&a.missing)?, false)?;
-    let rows = table.features.nrows();
+    let table = FeatureOptions::default()
+        .ignore_extra(a.ignore_extra)
+        .missing(args::missing(&a.missing)?)
+        .read(&model, &a.data)?;
+    let rows = table.n_rows();
     report::write_predictions(&model, &table, &a.out)?;
     let json = json!({
         "command": "predict",
@@ -191,7 +220,10 @@ pub fn predict(a: PredictArgs) -> Result<Outcome> {
         "out": a.out,
         "columns": report::prediction_columns(&model),
     });
-    let text = format!("wrote predictions for {rows} rows to {}\n{CAUTION}", a.out.display());
+    let text = format!(
+        "wrote predictions for {rows} rows to {}\n{CAUTION}",
+        a.out.display()
+    );
     Ok(Outcome { json, text })
 }
 
@@ -233,10 +265,14 @@ pub fn cv(a: CvArgs) -> Result<Outcome> {
 fn grid(a: &SweepArgs) -> Result<Grid> {
     let mut g = Grid::default();
     if let Some(v) = &a.grid_hidden {
-        g.hidden_layers = args::list("--grid-hidden", v, |s| args::hidden_widths("--grid-hidden", s))?;
+        g.hidden_layers = args::list("--grid-hidden", v, |s| {
+            args::hidden_widths("--grid-hidden", s)
+        })?;
     }
     if let Some(v) = &a.grid_activation {
-        g.activations = args::list("--grid-activation", v, |s| args::activation("--grid-activation", s))?;
+        g.activations = args::list("--grid-activation", v, |s| {
+            args::activation("--grid-activation", s)
+        })?;
     }
     if let Some(v) = &a.grid_learning_rate {
         g.learning_rates = args::numbers("--grid-learning-rate", v)?;
@@ -275,7 +311,14 @@ pub(crate) fn table_json(t: &SweepTable) -> Value {
 }
 
 pub(crate) fn table_text(t: &SweepTable, out: &mut String) {
-    let _ = writeln!(out, "  {:>4}  {:<36} {:>8} {:>8}   95% interval", "rank", "configuration", t.metric.name(), "sd");
+    let _ = writeln!(
+        out,
+        "  {:>4}  {:<36} {:>8} {:>8}   95% interval",
+        "rank",
+        "configuration",
+        t.metric.name(),
+        "sd"
+    );
     for (rank, r) in t.rows.iter().enumerate() {
         let _ = writeln!(
             out,
@@ -305,7 +348,7 @@ pub fn sweep(a: SweepArgs) -> Result<Outcome> {
     let mut rng = seeded_rng(a.net.seed);
     if let Some(path) = &a.write_plan {
         let plan = SweepPlan::new(&data, &base, &g, &cvo, metric, &mut rng)?;
-        report::write_plan(&plan, path)?;
+        report::write_plan(&plan, &a.table.csv_options()?, path)?;
         let trials = plan.trials().len();
         let json = json!({"command": "sweep", "plan": path, "trials": trials, "configurations": plan.configurations.len()});
         let text = format!(
@@ -320,26 +363,42 @@ pub fn sweep(a: SweepArgs) -> Result<Outcome> {
     }
     let result = run_sweep(&data, &base, &g, &cvo, metric, &mut rng)?;
     if let Some(out) = &a.out {
-        model_file::refuse_overwrite_input(out, &[&a.data])?;
+        crate::atomic::refuse_overwrite_input(out, &[&a.data])?;
         model_file::save(&result.best.model, out)?;
     }
     let mut json = table_json(&result.table);
     json["command"] = json!("sweep");
     json["best"] = json!(result.table.rows[0].name);
     json["model"] = json!(a.out);
-    let mut text = format!("sweep of {} configurations on shared folds, sorted by {}\n", result.table.rows.len(), metric.name());
+    let mut text = format!(
+        "sweep of {} configurations on shared folds, sorted by {}\n",
+        result.table.rows.len(),
+        metric.name()
+    );
     table_text(&result.table, &mut text);
     if let Some(out) = &a.out {
-        let _ = writeln!(text, "refitted the best on all rows and saved it to {}", out.display());
+        let _ = writeln!(
+            text,
+            "refitted the best on all rows and saved it to {}",
+            out.display()
+        );
     }
     Ok(Outcome { json, text })
 }
 
 pub fn sweep_trial(a: SweepTrialArgs) -> Result<Outcome> {
     let (plan, table) = report::read_plan(&a.plan)?;
-    let data = table.csv_options()?.read(&a.data)?;
+    crate::atomic::refuse_overwrite_input(&a.out, &[&a.data, &a.plan])?;
+    let data = table.read(&a.data)?;
     let result = plan.run_trial(&data, a.trial)?;
-    report::write_trial(a.trial, &result, &a.out)?;
+    report::write_trial(
+        &plan,
+        a.trial,
+        data.n_rows(),
+        data.class_names().unwrap_or(&[]),
+        &result,
+        &a.out,
+    )?;
     let json = json!({"command": "sweep-trial", "trial": a.trial, "out": a.out});
     Ok(Outcome {
         json,
@@ -355,7 +414,10 @@ pub fn sweep_merge(a: SweepMergeArgs) -> Result<Outcome> {
     for path in &a.results {
         let (index, r, n, c) = report::read_trial(path, &plan)?;
         if results[index].is_some() {
-            return Err(Error::input(path.display().to_string(), format!("trial {index} appears twice")));
+            return Err(Error::input(
+                path.display().to_string(),
+                format!("trial {index} appears twice"),
+            ));
         }
         results[index] = Some(r);
         rows = n;
@@ -368,9 +430,16 @@ pub fn sweep_merge(a: SweepMergeArgs) -> Result<Outcome> {
         .map(|(i, _)| i.to_string())
         .collect();
     if !missing.is_empty() {
-        return Err(Error::input("merging sweep trials", format!("no results for trials {}", missing.join(", "))));
+        return Err(Error::input(
+            "merging sweep trials",
+            format!("no results for trials {}", missing.join(", ")),
+        ));
     }
-    let table = plan.merge(rows, &classes, results.into_iter().map(|r| r.expect("checked")).collect())?;
+    let table = plan.merge(
+        rows,
+        &classes,
+        results.into_iter().map(|r| r.expect("checked")).collect(),
+    )?;
     let mut json = table_json(&table);
     json["command"] = json!("sweep-merge");
     let mut text = format!("merged {} trials\n", a.results.len());

@@ -6,8 +6,13 @@
 //! go to stderr as `stratanet: <message>` with exit code 2; a usage error
 //! from the argument parser also exits 2.
 
+// Flattened clap fields take no doc comments of their own (clap would
+// show them as help text), so this module allows undocumented fields.
+#[allow(missing_docs)]
 pub mod args;
 mod commands;
+
+pub(crate) use commands::cv_json;
 
 use crate::error::Error;
 use args::{Cli, Command, OutputArgs};
@@ -38,8 +43,10 @@ where
     I: IntoIterator<Item = S>,
     S: Into<std::ffi::OsString> + Clone,
 {
-    let argv = std::iter::once(std::ffi::OsString::from("stratanet")).chain(args.into_iter().map(Into::into));
-    let cli = Cli::try_parse_from(argv).map_err(|e| Error::input("usage", e.to_string().trim_end().to_string()))?;
+    let argv = std::iter::once(std::ffi::OsString::from("stratanet"))
+        .chain(args.into_iter().map(Into::into));
+    let cli = Cli::try_parse_from(argv)
+        .map_err(|e| Error::input("usage", e.to_string().trim_end().to_string()))?;
     let json = match &cli.command {
         Command::Fit(a) => a.output.json,
         Command::Check(a) => a.output.json,

@@ -13,8 +13,15 @@ use crate::error::{Error, Result};
 use crate::validate::{FoldResult, SweepPlan};
 use serde::{Deserialize, Serialize};
 use serde_json::json;
-use std::io::Write;
 use std::path::Path;
+
+/// Writes text to `path` atomically.
+pub(crate) fn write_text(path: &Path, text: &str) -> Result<()> {
+    atomic::write_file(path, |w| {
+        w.write_all(text.as_bytes())
+            .map_err(|e| Error::io(path, "writing", e))
+    })
+}
 
 const PLAN_FORMAT: &str = "stratanet-sweep-plan";
 const TRIAL_FORMAT: &str = "stratanet-sweep-trial";
@@ -41,7 +48,10 @@ struct TrialFile {
 fn plan_fingerprint(plan: &SweepPlan) -> String {
     use sha2::{Digest, Sha256};
     let text = serde_json::to_string(plan).expect("plans serialise");
-    Sha256::digest(text.as_bytes()).iter().map(|b| format!("{b:02x}")).collect()
+    Sha256::digest(text.as_bytes())
+        .iter()
+        .map(|b| format!("{b:02x}"))
+        .collect()
 }
 
 /// Writes `plan` (made from a table read with `table`) to `path`, atomically.
@@ -55,16 +65,14 @@ pub fn write_plan(plan: &SweepPlan, table: &CsvOptions, path: &Path) -> Result<(
         plan: plan.clone(),
         table: table.clone(),
     };
-    atomic::write_file(path, |w| {
-        serde_json::to_writer(&mut *w, &header)?;
-        writeln!(w)?;
-        for t in plan.trials() {
-            let (name, _) = &plan.configurations[t.configuration];
-            serde_json::to_writer(&mut *w, &json!({"trial": t.index, "configuration": t.configuration, "fold": t.fold, "name": name}))?;
-            writeln!(w)?;
-        }
-        Ok(())
-    })
+    let mut text = serde_json::to_string(&header).expect("plans serialise");
+    text.push('\n');
+    for t in plan.trials() {
+        let (name, _) = &plan.configurations[t.configuration];
+        text.push_str(&json!({"trial": t.index, "configuration": t.configuration, "fold": t.fold, "name": name}).to_string());
+        text.push('\n');
+    }
+    write_text(path, &text)
 }
 
 /// Reads a plan file: the plan and the CSV options it was made with.
@@ -93,7 +101,14 @@ pub fn read_plan(path: &Path) -> Result<(SweepPlan, CsvOptions)> {
 ///
 /// # Errors
 /// The file cannot be written.
-pub fn write_trial(plan: &SweepPlan, trial: usize, rows: usize, classes: &[String], result: &FoldResult, path: &Path) -> Result<()> {
+pub fn write_trial(
+    plan: &SweepPlan,
+    trial: usize,
+    rows: usize,
+    classes: &[String],
+    result: &FoldResult,
+    path: &Path,
+) -> Result<()> {
     let file = TrialFile {
         format: TRIAL_FORMAT.into(),
         format_version: 1,
@@ -103,24 +118,31 @@ pub fn write_trial(plan: &SweepPlan, trial: usize, rows: usize, classes: &[Strin
         classes: classes.to_vec(),
         result: result.clone(),
     };
-    atomic::write_file(path, |w| {
-        serde_json::to_writer(&mut *w, &file)?;
-        writeln!(w)?;
-        Ok(())
-    })
+    let mut text = serde_json::to_string(&file).expect("trial results serialise");
+    text.push('\n');
+    write_text(path, &text)
 }
 
 /// Reads a trial file made for `plan`: (trial index, result, table rows, class names).
 ///
 /// # Errors
 /// A missing or foreign file, or one made for another plan.
-pub fn read_trial(path: &Path, plan: &SweepPlan) -> Result<(usize, FoldResult, usize, Vec<String>)> {
+pub fn read_trial(
+    path: &Path,
+    plan: &SweepPlan,
+) -> Result<(usize, FoldResult, usize, Vec<String>)> {
     let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, "reading", e))?;
     let file: TrialFile = serde_json::from_str(&text).map_err(|e| {
-        Error::input(path.display().to_string(), format!("not a stratanet sweep trial result ({e})"))
+        Error::input(
+            path.display().to_string(),
+            format!("not a stratanet sweep trial result ({e})"),
+        )
     })?;
     if file.format != TRIAL_FORMAT || file.format_version != 1 {
-        return Err(Error::input(path.display().to_string(), "not a sweep trial result this version reads"));
+        return Err(Error::input(
+            path.display().to_string(),
+            "not a sweep trial result this version reads",
+        ));
     }
     if file.plan_fingerprint != plan_fingerprint(plan) {
         return Err(Error::input(
@@ -129,7 +151,10 @@ pub fn read_trial(path: &Path, plan: &SweepPlan) -> Result<(usize, FoldResult, u
         ));
     }
     if file.trial >= plan.trials().len() {
-        return Err(Error::input(path.display().to_string(), format!("trial {} is not in the plan", file.trial)));
+        return Err(Error::input(
+            path.display().to_string(),
+            format!("trial {} is not in the plan", file.trial),
+        ));
     }
     Ok((file.trial, file.result, file.rows, file.classes))
 }
