@@ -234,7 +234,9 @@ class Run:
 
 
 def build_dir_is_cold() -> bool:
-    return not (BUILD_DIR / "target").is_dir()
+    """Cold: no dependency compiled yet (a notebook without `:dep` builds only
+    evcxr's own cdylib, no .rlib), so a `:dep` cell compiles everything."""
+    return not any((BUILD_DIR / "target").glob("*/debug/deps/*.rlib"))
 
 
 def prepare_build_dir(fresh: bool) -> bool:
@@ -316,6 +318,24 @@ def check_cell(cell, result: CellResult, reply_status: str | None, strict_stderr
                 result.failures.append(f"tagged {tag} but produced no {mime} (got: {shown})")
 
 
+async def collect_late_streams(client, cell, msg_id, settle: float) -> None:
+    """evcxr forwards the cell's stderr from its own thread and does not wait
+    for it before replying, so the last stderr lines (e.g. the Err that `?`
+    returned) can arrive after the cell is "idle": nbclient would drop them,
+    or they would land in the next cell. Wait `settle` seconds for them."""
+    deadline = time.monotonic() + settle
+    while (left := deadline - time.monotonic()) > 0:
+        try:
+            msg = await client.kc.get_iopub_msg(timeout=left)
+        except Exception:  # queue.Empty on timeout
+            return
+        if msg.get("parent_header", {}).get("msg_id") != msg_id:
+            continue
+        if msg.get("msg_type") == "stream":
+            content = msg["content"]
+            cell.outputs.append(nbformat.v4.new_output("stream", name=content["name"], text=content["text"]))
+
+
 async def run_notebook(path: Path, args) -> Run:
     run = Run(path=path)
     nb = nbformat.read(path, as_version=4)
@@ -358,6 +378,14 @@ async def run_notebook(path: Path, args) -> Run:
             info = await client.async_wait_for_reply(client.kc.kernel_info())
             if info and "language_info" in info.get("content", {}):
                 nb.metadata["language_info"] = info["content"]["language_info"]
+            last_request = [None]
+            kc_execute = client.kc.execute
+
+            def execute_and_remember(*a, **k):
+                last_request[0] = kc_execute(*a, **k)
+                return last_request[0]
+
+            client.kc.execute = execute_and_remember
             for n, (index, cell) in enumerate(code_cells):
                 result = CellResult(index=index, source=cell.source)
                 run.cells.append(result)
@@ -369,6 +397,8 @@ async def run_notebook(path: Path, args) -> Run:
                 except DeadKernelError:
                     result.failures.append("the kernel died")
                     run.fatal = f"kernel died in cell {index}; later cells not run"
+                if run.fatal is None:
+                    await collect_late_streams(client, cell, last_request[0], args.settle)
                 result.ran = True
                 result.seconds = time.monotonic() - starts.get(index, time.monotonic())
                 if n == 0:
@@ -387,7 +417,12 @@ async def run_notebook(path: Path, args) -> Run:
         with open(KERNEL_LOG, encoding="utf-8", errors="replace") as f:
             f.seek(log_start)
             tail = [l.rstrip() for l in f.read().splitlines() if l.strip()]
-        picked = [l for l in tail if not l.lstrip()[:1].isdigit() and not l.strip().startswith("at ")]
+        picked = [
+            l for l in tail
+            if not l.lstrip()[:1].isdigit()  # backtrace frames
+            and not l.strip().startswith("at ")
+            and not l.startswith("No configuration file found")  # evcxr's greeting
+        ]
         if picked:
             run.fatal += "\n    kernel said: " + "\n    kernel said: ".join(short(l, 160) for l in picked[:8])
     for index, cell in code_cells:
@@ -424,7 +459,7 @@ def report_run(run: Run, extra_failures: int = 0) -> None:
     checks_bad += extra_failures
     verdict = "PASS" if run.passed and not extra_failures else "FAIL"
     first = (
-        f"{run.first_cell_seconds:.1f} s ({'cold' if run.cold else 'warm'} evcxr build folder)"
+        f"{run.first_cell_seconds:.1f} s ({'cold: no dependency compiled yet' if run.cold else 'warm: dependencies compiled before'})"
         if run.first_cell_seconds is not None
         else "not run"
     )
@@ -539,6 +574,8 @@ def take_lock():
     except BlockingIOError:
         out(f"nbcheck: another nbcheck holds {rel(LOCK_FILE)} (it shares the evcxr build folder); waiting")
         fcntl.flock(handle, fcntl.LOCK_EX)
+    KERNEL_LOG.parent.mkdir(parents=True, exist_ok=True)
+    KERNEL_LOG.write_text("", encoding="utf-8")  # one log per nbcheck run
     return handle
 
 
@@ -631,6 +668,8 @@ def main(argv=None) -> int:
         p.add_argument("--timeout", type=int, default=int(os.environ.get("NBCHECK_TIMEOUT", 1200)),
                        help="seconds per cell (default 1200, or $NBCHECK_TIMEOUT); the first :dep cell compiles the crate")
         p.add_argument("--startup-timeout", type=int, default=120, help="seconds for the kernel to start")
+        p.add_argument("--settle", type=float, default=float(os.environ.get("NBCHECK_SETTLE", 0.5)),
+                       help="seconds to wait after each cell for late stderr lines (default 0.5, or $NBCHECK_SETTLE)")
         p.add_argument("--kernel", default=os.environ.get("NBCHECK_KERNEL", "rust"), help="kernelspec name (default rust)")
         p.add_argument("--strict-stderr", action="store_true",
                        default=os.environ.get("NBCHECK_STRICT_STDERR", "") not in ("", "0"),

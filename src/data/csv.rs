@@ -524,9 +524,7 @@ pub(crate) fn read_columns<R: Read>(reader: R, path: &Path, opts: &CsvOptions) -
                         let reason = if cell.trim().parse::<f64>().is_ok() {
                             "is not a finite number; measurements must be finite (check the exporter's overflow marker)".to_string()
                         } else {
-                            format!(
-                                "cannot read the cell as a number, and the column is numeric (its first value was a number); correct the cell, drop the column, or list it as categorical (`categorical`)"
-                            )
+                            "cannot read the cell as a number, and the column is numeric (its first value was a number); correct the cell, drop the column, or list it as categorical (`categorical`)".to_string()
                         };
                         return Err(Error::new(ErrorKind::BadValue {
                             path: path.to_path_buf(),

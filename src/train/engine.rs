@@ -314,6 +314,7 @@ impl<F: Real> Backprop<F> {
 /// Summed loss over all rows of `x` (targets `y`), evaluated in chunks, and
 /// the number of rows whose predicted class matches the target's (when
 /// `classify`).
+#[allow(clippy::too_many_arguments)]
 pub(crate) fn evaluate<F: Real>(
     params: &Params<F>,
     ws: &mut Forward<F>,

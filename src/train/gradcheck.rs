@@ -125,6 +125,7 @@ pub fn check_gradients(
         (j, pattern(bp) != base_pattern)
     };
     let mut worst = (0.0f64, (1, false, 0));
+    #[allow(clippy::needless_range_loop)] // i indexes the parameters, the gradient and the layout
     for i in 0..params.data.len() {
         let saved = params.data[i];
         let mut crossed = false;

@@ -3,6 +3,7 @@
 //! Every check against an outside source names it beside the check.
 
 mod classic_problems;
+mod cli;
 mod csv_errors;
 mod demo_data;
 mod determinism;

@@ -1,0 +1,369 @@
+//! The built `stratanet` binary, run as a user would.
+
+use crate::support::{data_dir, scratch};
+use serde_json::Value;
+use std::path::Path;
+use std::process::{Command, Output};
+
+fn stratanet(args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_stratanet"))
+        .args(args)
+        .output()
+        .expect("the binary runs")
+}
+
+fn json(out: &Output) -> Value {
+    assert!(
+        out.status.success(),
+        "failed: {}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let text = String::from_utf8(out.stdout.clone()).unwrap();
+    assert_eq!(
+        text.trim_end().lines().count(),
+        1,
+        "--json prints exactly one line: {text}"
+    );
+    serde_json::from_str(&text).expect("stdout is one JSON object")
+}
+
+fn parts() -> String {
+    concat!(env!("CARGO_MANIFEST_DIR"), "/demo-data/parts.csv").to_string()
+}
+
+fn has_keys(v: &Value, keys: &[&str]) {
+    for k in keys {
+        assert!(v.get(k).is_some(), "JSON lacks key {k}: {v}");
+    }
+}
+
+/// The demo table with its columns in another order (and the ids last).
+fn reordered(dir: &Path) -> String {
+    let text = std::fs::read_to_string(parts()).unwrap();
+    let mut out = String::new();
+    for line in text.lines() {
+        let c: Vec<&str> = line.split(',').collect();
+        out.push_str(&[c[4], c[3], c[1], c[2], c[5], c[0]].join(","));
+        out.push('\n');
+    }
+    let path = dir.join("reordered.csv");
+    std::fs::write(&path, out).unwrap();
+    path.display().to_string()
+}
+
+#[test]
+fn fit_then_predict_with_reordered_columns() {
+    let dir = scratch("cli-fit-predict");
+    let model = dir.join("model.json").display().to_string();
+    let fit = json(&stratanet(&[
+        "fit",
+        &parts(),
+        "--target",
+        "verdict",
+        "--drop",
+        "part_id",
+        "--hidden",
+        "6",
+        "--epochs",
+        "60",
+        "--out",
+        &model,
+        "--json",
+    ]));
+    has_keys(
+        &fit,
+        &[
+            "command",
+            "model",
+            "rows",
+            "dropped_rows",
+            "features",
+            "target",
+            "classes",
+            "sizes",
+            "parameters",
+            "epochs_run",
+            "best_epoch",
+            "stopped_early",
+            "best_validation_loss",
+            "final_training_loss",
+            "validation_accuracy",
+            "seed",
+            "table_fingerprint",
+            "charts",
+        ],
+    );
+    assert_eq!(fit["rows"], 600);
+    let plain = dir.join("plain.csv").display().to_string();
+    let moved = dir.join("moved.csv").display().to_string();
+    let p1 = json(&stratanet(&[
+        "predict",
+        &model,
+        &parts(),
+        "--ignore-extra",
+        "--out",
+        &plain,
+        "--json",
+    ]));
+    has_keys(&p1, &["command", "model", "data", "rows", "out", "columns"]);
+    let p2 = json(&stratanet(&[
+        "predict",
+        &model,
+        &reordered(&dir),
+        "--ignore-extra",
+        "--out",
+        &moved,
+        "--json",
+    ]));
+    assert_eq!(p2["rows"], 600);
+    let a = std::fs::read_to_string(&plain).unwrap();
+    let b = std::fs::read_to_string(&moved).unwrap();
+    assert_eq!(a, b, "reordering columns changed the predictions");
+    assert!(
+        a.starts_with("line,predicted,p_accept,p_rework,p_scrap\n2,"),
+        "{}",
+        &a[..60]
+    );
+    let check = json(&stratanet(&[
+        "check",
+        &model,
+        &reordered(&dir),
+        "--ignore-extra",
+        "--json",
+    ]));
+    has_keys(
+        &check,
+        &[
+            "command",
+            "model",
+            "data",
+            "rows",
+            "metrics",
+            "notes",
+            "confusion",
+            "classes",
+        ],
+    );
+    assert!(check["metrics"]["accuracy"].as_f64().unwrap() > 0.7);
+    // Without --ignore-extra the unused id column is refused, by name.
+    let out = stratanet(&["predict", &model, &parts(), "--out", &plain]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(
+        String::from_utf8_lossy(&out.stderr).contains("part_id"),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    // An output path equal to the input is refused and the input survives.
+    let before = std::fs::read(parts()).unwrap();
+    let out = stratanet(&[
+        "predict",
+        &model,
+        &parts(),
+        "--ignore-extra",
+        "--out",
+        &parts(),
+    ]);
+    assert_eq!(out.status.code(), Some(2));
+    assert_eq!(std::fs::read(parts()).unwrap(), before);
+}
+
+#[test]
+fn cv_json_has_per_fold_values_and_intervals() {
+    let v = json(&stratanet(&[
+        "cv",
+        &parts(),
+        "--target",
+        "verdict",
+        "--drop",
+        "part_id",
+        "--folds",
+        "3",
+        "--hidden",
+        "4",
+        "--epochs",
+        "30",
+        "--json",
+    ]));
+    has_keys(
+        &v,
+        &[
+            "command", "data", "seed", "folds", "repeats", "rows", "metrics", "notes", "charts",
+        ],
+    );
+    let acc = &v["metrics"]["accuracy"];
+    has_keys(acc, &["folds", "mean", "std_dev", "ci_low", "ci_high"]);
+    assert_eq!(acc["folds"].as_array().unwrap().len(), 3);
+    let (lo, mean, hi) = (
+        acc["ci_low"].as_f64().unwrap(),
+        acc["mean"].as_f64().unwrap(),
+        acc["ci_high"].as_f64().unwrap(),
+    );
+    assert!(lo <= mean && mean <= hi);
+}
+
+#[test]
+fn sweep_plan_trials_and_merge_equal_a_local_sweep() {
+    let dir = scratch("cli-sweep");
+    let common = [
+        "--target",
+        "verdict",
+        "--drop",
+        "part_id",
+        "--folds",
+        "3",
+        "--epochs",
+        "20",
+        "--grid-hidden",
+        "2,6",
+    ];
+    let data = parts();
+    let mut args = vec!["sweep", &data[..]];
+    args.extend(common);
+    args.push("--json");
+    let local = json(&stratanet(&args));
+    has_keys(&local, &["command", "metric", "rows", "best", "model"]);
+    let plan = dir.join("plan.jsonl").display().to_string();
+    let mut args = vec!["sweep", &data[..]];
+    args.extend(common);
+    args.extend(["--write-plan", &plan, "--json"]);
+    let planned = json(&stratanet(&args));
+    assert_eq!(planned["trials"], 6);
+    assert_eq!(
+        std::fs::read_to_string(&plan).unwrap().lines().count(),
+        7,
+        "a header line and one line per trial"
+    );
+    let mut files = Vec::new();
+    for t in 0..6 {
+        let out = dir.join(format!("trial-{t}.json")).display().to_string();
+        json(&stratanet(&[
+            "sweep-trial",
+            &plan,
+            &parts(),
+            "--trial",
+            &t.to_string(),
+            "--out",
+            &out,
+            "--json",
+        ]));
+        files.push(out);
+    }
+    files.reverse();
+    let mut args = vec!["sweep-merge", &plan[..]];
+    args.extend(files.iter().map(String::as_str));
+    args.push("--json");
+    let merged = json(&stratanet(&args));
+    assert_eq!(
+        merged["rows"], local["rows"],
+        "merged trials differ from the local sweep"
+    );
+}
+
+#[test]
+fn malformed_csvs_exit_2_naming_line_and_column() {
+    let bad = data_dir().join("bad");
+    let cases = [
+        ("ragged.csv", "line 3"),
+        ("not_a_number.csv", "line 3, column \"bore_um\""),
+        ("missing.csv", "line 3, column \"roughness_um\""),
+        ("duplicate.csv", "line 1"),
+        ("infinite.csv", "line 2, column \"roughness_um\""),
+        ("empty.csv", "empty"),
+        ("header_only.csv", "no data rows"),
+        ("single_class.csv", "only one class"),
+        ("not_utf8.csv", "line 2"),
+    ];
+    for (file, expected) in cases {
+        let path = bad.join(file).display().to_string();
+        for sub in ["fit", "cv"] {
+            let mut args = vec![sub, &path[..], "--target", "verdict"];
+            if sub == "fit" {
+                args.extend(["--out", "/nonexistent/never-written.json"]);
+            }
+            let out = stratanet(&args);
+            let stderr = String::from_utf8_lossy(&out.stderr);
+            assert_eq!(out.status.code(), Some(2), "{sub} {file}: {stderr}");
+            assert!(stderr.starts_with("stratanet: "), "{stderr}");
+            assert!(stderr.contains(expected), "{sub} {file}: {stderr}");
+            assert!(!stderr.contains("panicked"), "{stderr}");
+        }
+    }
+}
+
+#[test]
+fn usage_errors_exit_2_and_help_exits_0() {
+    for args in [
+        vec!["fit"],
+        vec!["fit", "x.csv"],
+        vec!["frobnicate"],
+        vec!["cv", "x.csv", "--target", "y", "--folds", "many"],
+    ] {
+        let out = stratanet(&args);
+        assert_eq!(
+            out.status.code(),
+            Some(2),
+            "{args:?}: {}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+    }
+    let out = stratanet(&[
+        "fit",
+        &parts(),
+        "--target",
+        "verdict",
+        "--learning-rate=-1",
+        "--out",
+        "/tmp/x.json",
+    ]);
+    assert_eq!(out.status.code(), Some(2));
+    assert_eq!(
+        String::from_utf8_lossy(&out.stderr).trim_end(),
+        "stratanet: option learning_rate = -1: must be a finite number greater than 0"
+    );
+    for sub in [
+        "fit",
+        "check",
+        "predict",
+        "cv",
+        "sweep",
+        "sweep-trial",
+        "sweep-merge",
+        "demo",
+    ] {
+        let out = stratanet(&[sub, "--help"]);
+        assert_eq!(out.status.code(), Some(0), "{sub} --help");
+        assert!(
+            String::from_utf8_lossy(&out.stdout).contains("Example:"),
+            "{sub} --help lacks an example"
+        );
+    }
+}
+
+#[test]
+fn demo_writes_the_charts_and_summary() {
+    let dir = scratch("cli-demo");
+    let out_dir = dir.join("demo").display().to_string();
+    let v = json(&stratanet(&["demo", "--out", &out_dir, "--json"]));
+    has_keys(&v, &["command", "out", "files", "cv", "comparison"]);
+    let summary = std::fs::read_to_string(Path::new(&out_dir).join("summary.html")).unwrap();
+    assert!(summary.contains("Caution."));
+    assert!(
+        summary.matches("<svg").count() >= 8,
+        "the summary embeds the charts"
+    );
+    assert!(v["files"]["charts"].as_array().unwrap().len() >= 8);
+    // A rerun gives the same bytes.
+    let again = dir.join("again").display().to_string();
+    json(&stratanet(&["demo", "--out", &again, "--json"]));
+    for f in [
+        "parts-model.json",
+        "charts/decision-map.svg",
+        "charts/learning-curves.svg",
+    ] {
+        assert_eq!(
+            std::fs::read(Path::new(&out_dir).join(f)).unwrap(),
+            std::fs::read(Path::new(&again).join(f)).unwrap(),
+            "{f} differs between two demo runs"
+        );
+    }
+}
