@@ -34,7 +34,7 @@ fn main() -> stratanet::Result<()> {
         .nth(1)
         .unwrap_or_else(|| "target/gallery".into())
         .into();
-    std::fs::create_dir_all(&out).map_err(|e| Error::io(&out, "creating", e))?;
+    std::fs::create_dir_all(&out).map_err(|e| stratanet::Error::io(&out, "creating", e))?;
     let root = Path::new(env!("CARGO_MANIFEST_DIR"));
     let parts = CsvOptions::new("verdict")
         .drop(&["part_id"])

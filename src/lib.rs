@@ -18,6 +18,7 @@
 #![warn(missing_docs)]
 #![doc(test(attr(deny(warnings))))]
 
+pub mod analysis;
 mod atomic;
 pub mod chart;
 pub mod cli;

@@ -1,8 +1,15 @@
 //! The names a notebook or a script needs: `use stratanet::prelude::*;`.
+//!
+//! Kept small on purpose; everything else is one path away
+//! (`stratanet::network::Init`, `stratanet::train::Optimiser`, ...).
 
-pub use crate::data::{CsvOptions, Dataset, Scaling};
-pub use crate::error::{Error, Result};
-pub use crate::fit::{fit, FitOptions};
-pub use crate::network::{Activation, Head, Init, Network};
+pub use crate::analysis::fit_csv;
+pub use crate::chart;
+pub use crate::data::{CsvOptions, Dataset};
+pub use crate::error::Result;
+pub use crate::fit::{fit, FitOptions, Model};
+pub use crate::network::Activation;
 pub use crate::rng::seeded_rng;
-pub use crate::train::{train, Optimiser, TrainingOptions};
+pub use crate::validate::{
+    compare_configurations, cross_validate, sweep, CvOptions, Grid, HoldOut, Metric,
+};

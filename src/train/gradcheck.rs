@@ -49,6 +49,7 @@ pub struct GradientCheck {
 /// # Example
 /// ```
 /// use stratanet::prelude::*;
+/// use stratanet::network::{Head, Init, Network};
 /// use stratanet::train::{check_gradients, Loss};
 /// use stratanet::ndarray::array;
 /// let mut rng = seeded_rng(5);

@@ -154,6 +154,8 @@ pub fn encode_target(target: &Target, head: Head, outputs: usize) -> Result<Arra
 /// # Example
 /// ```
 /// use stratanet::prelude::*;
+/// use stratanet::network::{Head, Init, Network};
+/// use stratanet::train::{train, Optimiser, TrainingOptions};
 /// use stratanet::ndarray::array;
 /// let x = array![[0.0, 0.0], [0.0, 1.0], [1.0, 0.0], [1.0, 1.0]];
 /// let data = Dataset::classification(x, vec![0, 1, 1, 1], vec!["no".into(), "yes".into()])?;

@@ -5,6 +5,7 @@ use ndarray::{array, Array2};
 use stratanet::network::{Activation, Head, Init, Network};
 use stratanet::prelude::*;
 use stratanet::train::{mean_loss, train_arrays, Loss};
+use stratanet::train::{Optimiser, TrainingOptions};
 
 fn xor() -> (Array2<f64>, Array2<f64>) {
     (

@@ -2,9 +2,11 @@
 
 use crate::support::close;
 use ndarray::{array, Array2};
+use stratanet::data::Scaling;
 use stratanet::network::{Activation, Head, Layer, Network};
 use stratanet::prelude::*;
 use stratanet::train::{mean_loss, train_arrays, Loss};
+use stratanet::train::{Optimiser, TrainingOptions};
 
 /// The 2-2-2 network of M. Mazur, "A Step by Step Backpropagation Example"
 /// (2015): logistic units, E = sum 1/2 (t - o)^2, one example.

@@ -1,0 +1,127 @@
+//! One call from a CSV file to a fitted, validated network and its report:
+//! [`fit_csv`]. The result displays in a notebook as one HTML output with
+//! the tables and the charts embedded (evcxr shows only the last output of
+//! each kind per cell, so a combined report must be a single block).
+
+use crate::chart::{self, Chart};
+use crate::data::{CsvOptions, Dataset};
+use crate::error::Result;
+use crate::fit::{fit_with_seed, FitOptions, Fitted};
+use crate::notebook::{notes, show};
+use crate::validate::Scores;
+use std::path::Path;
+
+/// A fit with its table, validation scores and charts.
+#[derive(Clone, Debug)]
+pub struct Analysis {
+    /// The table as read (all rows).
+    pub data: Dataset,
+    /// The fitted model, its training report and its split.
+    pub fitted: Fitted,
+    /// Scores on the validation rows (none when `validation_fraction` is 0).
+    pub validation: Option<Scores>,
+    /// Learning curves of every restart.
+    pub learning_curves: Chart,
+    /// A decision map over the first two numeric columns (classifiers with
+    /// at least two numeric columns).
+    pub decision_map: Option<Chart>,
+}
+
+/// Reads `path`, predicts `target` (dropping the columns in `drop`), fits
+/// with `options` from `seed`, and scores the validation rows.
+///
+/// # Errors
+/// Any reading, option or training error, naming where.
+///
+/// # Example
+/// ```
+/// use stratanet::prelude::*;
+/// let path = concat!(env!("CARGO_MANIFEST_DIR"), "/demo-data/parts.csv");
+/// let analysis = fit_csv(path, "verdict", &["part_id"], &FitOptions::default().hidden(&[6]).epochs(50), 42)?;
+/// assert!(analysis.to_html().contains("<svg"));
+/// # Ok::<(), stratanet::Error>(())
+/// ```
+pub fn fit_csv(
+    path: impl AsRef<Path>,
+    target: &str,
+    drop: &[&str],
+    options: &FitOptions,
+    seed: u64,
+) -> Result<Analysis> {
+    let data = CsvOptions::new(target).drop(drop).read(path)?;
+    analyse(data, options, seed)
+}
+
+/// [`fit_csv`] for a table already read.
+///
+/// # Errors
+/// As [`fit_csv`].
+pub fn analyse(data: Dataset, options: &FitOptions, seed: u64) -> Result<Analysis> {
+    let fitted = fit_with_seed(&data, options, seed)?;
+    let validation = if fitted.split.validation.is_empty() {
+        None
+    } else {
+        Some(Scores::of(&fitted.model, &data.select(&fitted.split.validation))?.0)
+    };
+    let learning_curves = chart::training_curves(&fitted)?;
+    let numeric: Vec<&str> = data
+        .columns
+        .iter()
+        .filter_map(|c| match c {
+            crate::data::ColumnEncoding::Numeric { name } => Some(name.as_str()),
+            _ => None,
+        })
+        .collect();
+    let decision_map = if fitted.model.is_classifier && numeric.len() >= 2 {
+        let train = data.select(&fitted.split.train);
+        Some(chart::decision_boundary(
+            &fitted.model,
+            &train,
+            numeric[0],
+            numeric[1],
+        )?)
+    } else {
+        None
+    };
+    Ok(Analysis {
+        data,
+        fitted,
+        validation,
+        learning_curves,
+        decision_map,
+    })
+}
+
+impl Analysis {
+    /// The whole report as one HTML fragment with the charts inline.
+    pub fn to_html(&self) -> String {
+        let mut h = self.data.to_html();
+        h.push_str(&self.fitted.report.to_html());
+        if let Some(v) = &self.validation {
+            h.push_str(&format!(
+                "<p style=\"font-family:sans-serif;font-size:13px\">Scores on the {} validation rows (held out from training, used for early stopping):</p>",
+                self.fitted.split.validation.len()
+            ));
+            h.push_str(&v.to_html());
+        }
+        h.push_str("<div>");
+        h.push_str(self.learning_curves.as_svg());
+        h.push_str("</div>");
+        if let Some(m) = &self.decision_map {
+            h.push_str("<div>");
+            h.push_str(m.as_svg());
+            h.push_str("</div>");
+        }
+        h.push_str(&self.fitted.model.network.to_html());
+        h.push_str(&notes(&[format!(
+            "Seed {}: a rerun gives the same numbers and charts.",
+            self.fitted.model.seed
+        )]));
+        h
+    }
+
+    /// Shows the report in a notebook.
+    pub fn evcxr_display(&self) {
+        show("text/html", &self.to_html());
+    }
+}
