@@ -219,3 +219,34 @@ fn identity_encoder_8_3_8() {
         }
     }
 }
+
+// A learning rate far too large makes the loss overflow: training stops with
+// an error naming the epoch and suggesting a smaller rate, and no model is
+// returned (common practice, no source).
+#[test]
+fn divergence_is_an_error_naming_the_epoch() {
+    let x = Array2::from_shape_fn((40, 2), |(i, j)| (i * (j + 3)) as f64 * 100.0);
+    let y = Array2::from_shape_fn((40, 1), |(i, _)| i as f64 * 1e3);
+    let mut rng = seeded_rng(1);
+    let mut net = Network::new(
+        &[2, 4, 1],
+        Activation::Relu,
+        Head::Identity,
+        Init::Auto,
+        &mut rng,
+    )
+    .unwrap();
+    let options = TrainingOptions {
+        epochs: 100,
+        batch_size: 8,
+        learning_rate: 10.0,
+        optimiser: Optimiser::Sgd,
+        early_stopping: None,
+        ..Default::default()
+    };
+    let e = train_arrays(&mut net, x.view(), y.view(), None, &options, &mut rng).unwrap_err();
+    let text = e.to_string();
+    assert!(text.starts_with("training diverged at epoch "), "{text}");
+    assert!(text.contains("try a smaller learning_rate"), "{text}");
+    assert!(matches!(e.kind(), stratanet::ErrorKind::Diverged { .. }));
+}

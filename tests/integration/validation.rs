@@ -251,3 +251,43 @@ fn the_hold_out_set_counts_its_scorings() {
     assert_eq!(second.times_scored, 2);
     assert!(second.caution().contains("scored 2 times"));
 }
+
+// McNemar's test on two fitted classifiers over one shared test set
+// (McNemar 1947; Dietterich, Neural Computation 10, 1998): the discordant
+// counts must match a direct count of where exactly one model is right.
+#[test]
+fn mcnemar_on_two_fitted_models() {
+    let data = parts();
+    let (development, held) = HoldOut::split(&data, 0.3, &mut seeded_rng(21)).unwrap();
+    let a = fit(
+        &development,
+        &FitOptions::default().hidden(&[12]).epochs(80),
+        &mut seeded_rng(1),
+    )
+    .unwrap();
+    let b = fit(
+        &development,
+        &FitOptions::default().hidden(&[]).epochs(80),
+        &mut seeded_rng(1),
+    )
+    .unwrap();
+    let test = data.select(held.row_indices());
+    let m = stratanet::validate::compare_models(&a.model, &b.model, &test).unwrap();
+    let (pa, pb) = (
+        a.model.predict_classes(test.x()).unwrap(),
+        b.model.predict_classes(test.x()).unwrap(),
+    );
+    let truth = test.labels().unwrap();
+    let only_a = (0..truth.len())
+        .filter(|&i| pa[i] == truth[i] && pb[i] != truth[i])
+        .count() as u64;
+    let only_b = (0..truth.len())
+        .filter(|&i| pb[i] == truth[i] && pa[i] != truth[i])
+        .count() as u64;
+    assert_eq!(
+        (m.first_only_correct, m.second_only_correct),
+        (only_a, only_b)
+    );
+    assert!((0.0..=1.0).contains(&m.p_value_corrected) && (0.0..=1.0).contains(&m.exact_p_value));
+    assert!(!m.reading.is_empty());
+}
