@@ -74,9 +74,9 @@ pub fn sensors(rows: usize, seed: u64) -> String {
         let fault = uniform01(&mut rng) < 0.04;
         if fault {
             let which = (uniform01(&mut rng) * 6.0) as usize;
-            let spread = [2.0, 1.6, 1.2, 6.0, 3.0, 6.0][which];
+            let spread = [0.9, 0.7, 0.5, 2.5, 1.2, 2.5][which];
             let sign = if uniform01(&mut rng) < 0.5 { -1.0 } else { 1.0 };
-            r[which] += sign * spread * (1.0 + uniform01(&mut rng));
+            r[which] += sign * spread * (0.5 + uniform01(&mut rng));
         }
         out.push_str(&format!(
             "R{:05},{:.3},{:.3},{:.3},{:.2},{:.2},{:.2},{}\n",
