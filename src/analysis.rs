@@ -64,24 +64,12 @@ pub fn analyse(data: Dataset, options: &FitOptions, seed: u64) -> Result<Analysi
         Some(Scores::of(&fitted.model, &data.select(&fitted.split.validation))?.0)
     };
     let learning_curves = chart::training_curves(&fitted)?;
-    let numeric: Vec<&str> = data
-        .columns
-        .iter()
-        .filter_map(|c| match c {
-            crate::data::ColumnEncoding::Numeric { name } => Some(name.as_str()),
-            _ => None,
-        })
-        .collect();
-    let decision_map = if fitted.model.is_classifier && numeric.len() >= 2 {
-        let train = data.select(&fitted.split.train);
-        Some(chart::decision_boundary(
-            &fitted.model,
-            &train,
-            numeric[0],
-            numeric[1],
-        )?)
-    } else {
-        None
+    let decision_map = match (fitted.model.is_classifier, crate::report::map_features(&data)) {
+        (true, Some((x, y))) => {
+            let train = data.select(&fitted.split.train);
+            Some(chart::decision_boundary(&fitted.model, &train, &x, &y)?)
+        }
+        _ => None,
     };
     Ok(Analysis {
         data,

@@ -52,7 +52,7 @@ fn save_all(dir: &Path, charts: Vec<(&str, Result<Chart>)>) -> Result<Vec<PathBu
 }
 
 /// Two features to map: the first two numeric source columns.
-fn map_features(data: &Dataset) -> Option<(String, String)> {
+pub(crate) fn map_features(data: &Dataset) -> Option<(String, String)> {
     let numeric: Vec<&str> = data
         .columns
         .iter()
