@@ -93,13 +93,14 @@ pub fn check_gradients(
     let (act, head) = (network.activation(), network.head());
     let m = x.nrows();
     let mut params = Params::<f64>::from_network(network);
-    let mut bp = Backprop::new(&params, m);
+    let mut bp = Backprop::new(&params, m, super::Arithmetic::Portable);
     let rows: Vec<usize> = (0..m).collect();
-    let xf = x.to_owned();
-    let yf = y.to_owned();
+    let xf: Vec<f64> = x.iter().copied().collect();
+    let yf: Vec<f64> = y.iter().copied().collect();
     bp.gather(&xf, &yf, &rows);
     bp.pass(&params, m, act, head, loss);
     let analytic = bp.grad.clone();
+    let bp_widths: Vec<usize> = params.shapes.iter().map(|&(_, o)| o).collect();
     let rectifier = matches!(act, Activation::Relu | Activation::LeakyRelu(_));
     // Which rectifier units are on, over all rows: a perturbation that
     // changes this pattern straddles a kink, where differences say nothing.
@@ -109,12 +110,8 @@ pub fn check_gradients(
         }
         bp.fwd.acts[..bp.fwd.acts.len() - 1]
             .iter()
-            .flat_map(|a| {
-                a.slice(ndarray::s![..m, ..])
-                    .iter()
-                    .map(|&v| v > 0.0)
-                    .collect::<Vec<_>>()
-            })
+            .zip(&bp_widths)
+            .flat_map(|(a, &w)| a[..m * w].iter().map(|&v| v > 0.0).collect::<Vec<_>>())
             .collect()
     };
     let base_pattern = pattern(&bp);

@@ -15,12 +15,13 @@
 
 pub(crate) mod engine;
 mod gradcheck;
+mod kernels;
 mod loss;
 mod options;
 
 pub use gradcheck::{check_gradients, GradientCheck};
 pub use loss::Loss;
-pub use options::{EarlyStopping, Optimiser, Schedule, TrainingOptions};
+pub use options::{Arithmetic, EarlyStopping, Optimiser, Schedule, TrainingOptions};
 
 use crate::data::{Dataset, Target};
 use crate::error::{Error, ErrorKind, Result};
@@ -28,6 +29,7 @@ use crate::network::{Head, Network, Precision, Real};
 use crate::rng;
 use engine::{evaluate, Backprop, Forward, Params};
 use ndarray::{Array2, ArrayView2};
+
 use rand::RngCore;
 use serde::{Deserialize, Serialize};
 use std::time::Instant;
@@ -271,8 +273,9 @@ fn check_xy(
     Ok(())
 }
 
-fn to_real<F: Real>(a: ArrayView2<'_, f64>) -> Array2<F> {
-    a.mapv(F::from_f64)
+/// The rows of `a` as one row-major vector in `F`.
+fn to_real<F: Real>(a: ArrayView2<'_, f64>) -> Vec<F> {
+    a.iter().map(|&v| F::from_f64(v)).collect()
 }
 
 /// Optimiser state in the flat parameter layout.
@@ -300,11 +303,13 @@ fn run<F: Real, R: RngCore + ?Sized>(
     let yf = to_real::<F>(y);
     let val = validation.map(|(vx, vy)| (to_real::<F>(vx), to_real::<F>(vy)));
     let n = x.nrows();
+    let network_outputs = y.ncols();
     let batch = options.batch_size;
-    let mut bp = Backprop::new(&params, batch);
-    let mut eval_ws = val
-        .as_ref()
-        .map(|(vx, _)| Forward::new(&params, engine::EVAL_CHUNK.min(vx.nrows())));
+    let arithmetic = options.arithmetic;
+    let mut bp = Backprop::new(&params, batch, arithmetic);
+    let mut eval_ws = validation.map(|(vx, _)| {
+        Forward::new(&params, engine::EVAL_CHUNK.min(vx.nrows()), arithmetic)
+    });
     let mut state = State {
         first: vec![F::zero(); params.data.len()],
         second: match options.optimiser {
@@ -351,13 +356,14 @@ fn run<F: Real, R: RngCore + ?Sized>(
             (Some((vx, vy)), Some(ws)) => {
                 let (total, correct) =
                     evaluate(&params, ws, vx, vy, activation, head, loss, classify);
-                let mean = total / vx.nrows() as f64;
+                let val_rows = vy.len() / network_outputs;
+                let mean = total / val_rows as f64;
                 if !mean.is_finite() {
                     return Err(diverged(epoch + 1, rate, mean));
                 }
                 (
                     Some(mean),
-                    classify.then(|| correct as f64 / vx.nrows() as f64),
+                    classify.then(|| correct as f64 / val_rows as f64),
                 )
             }
             _ => (None, None),
@@ -552,7 +558,13 @@ fn mean_loss_in<F: Real>(
     loss: Loss,
 ) -> f64 {
     let params = Params::<F>::from_network(network);
-    let mut ws = Forward::new(&params, engine::EVAL_CHUNK.min(x.nrows()));
+    // The mean loss of a finished network uses the portable kernel, as
+    // predictions do.
+    let mut ws = Forward::new(
+        &params,
+        engine::EVAL_CHUNK.min(x.nrows()),
+        Arithmetic::Portable,
+    );
     let (total, _) = evaluate(
         &params,
         &mut ws,
