@@ -117,7 +117,13 @@ impl Real for f64 {
     fn as_f64(self) -> f64 {
         self
     }
-    real_math!(libm::exp, libm::tanh, libm::log, libm::log1p, matrixmultiply::dgemm);
+    real_math!(
+        libm::exp,
+        libm::tanh,
+        libm::log,
+        libm::log1p,
+        matrixmultiply::dgemm
+    );
 }
 
 impl Real for f32 {
@@ -129,7 +135,13 @@ impl Real for f32 {
     fn as_f64(self) -> f64 {
         self as f64
     }
-    real_math!(libm::expf, libm::tanhf, libm::logf, libm::log1pf, matrixmultiply::sgemm);
+    real_math!(
+        libm::expf,
+        libm::tanhf,
+        libm::logf,
+        libm::log1pf,
+        matrixmultiply::sgemm
+    );
 }
 
 /// The float type a network trains and predicts in.

@@ -200,9 +200,7 @@ fn activate<F: Real>(out: &mut [F], activation: Activation) {
     match activation {
         Activation::Identity => {}
         Activation::Relu => out.iter_mut().for_each(|v| {
-            if !(*v > F::zero()) {
-                *v = F::zero()
-            }
+            *v = if *v > F::zero() { *v } else { F::zero() };
         }),
         Activation::Sigmoid => out.iter_mut().for_each(|v| *v = sigmoid(*v)),
         Activation::Tanh => out.iter_mut().for_each(|v| *v = v.tanh_det()),
@@ -215,9 +213,7 @@ fn times_derivative<F: Real>(d: &mut [F], a: &[F], activation: Activation) {
     match activation {
         Activation::Identity => {}
         Activation::Relu => d.iter_mut().zip(a).for_each(|(d, &av)| {
-            if !(av > F::zero()) {
-                *d = F::zero()
-            }
+            *d = if av > F::zero() { *d } else { F::zero() };
         }),
         Activation::Sigmoid => d
             .iter_mut()
@@ -264,7 +260,10 @@ impl<F: Real> Backprop<F> {
     /// Gathers rows `rows` of `x` and `y` (row-major, already in `F`) into
     /// the buffers.
     pub fn gather(&mut self, x: &[F], y: &[F], rows: &[usize]) {
-        let (d, k) = (self.fwd.input.len() / self.fwd.capacity, self.targets.len() / self.fwd.capacity);
+        let (d, k) = (
+            self.fwd.input.len() / self.fwd.capacity,
+            self.targets.len() / self.fwd.capacity,
+        );
         for (i, &r) in rows.iter().enumerate() {
             self.fwd.input[i * d..(i + 1) * d].copy_from_slice(&x[r * d..(r + 1) * d]);
             self.targets[i * k..(i + 1) * k].copy_from_slice(&y[r * k..(r + 1) * k]);
@@ -382,6 +381,7 @@ impl<F: Real> Backprop<F> {
 /// Summed loss over all rows of `x` (targets `y`), evaluated in chunks, and
 /// the number of rows whose predicted class matches the target's (when
 /// `classify`).
+#[allow(clippy::too_many_arguments)]
 pub(crate) fn evaluate<F: Real>(
     params: &Params<F>,
     ws: &mut Forward<F>,

@@ -122,7 +122,7 @@ pub fn check_gradients(
         (j, pattern(bp) != base_pattern)
     };
     let mut worst = (0.0f64, (1, false, 0));
-    for i in 0..params.data.len() {
+    for (i, &a) in analytic.iter().enumerate() {
         let saved = params.data[i];
         let mut crossed = false;
         let mut at = |step: f64| {
@@ -139,7 +139,6 @@ pub fn check_gradients(
             continue;
         }
         let numeric = (8.0 * near - far) / (12.0 * h);
-        let a = analytic[i];
         let size = a.abs().max(numeric.abs());
         let rel = if size < 1e-10 {
             0.0

@@ -10,7 +10,7 @@
 //! ```text
 //! acc = 0;  for q in 0..p (ascending) { acc = acc + lhs[r][q] * rhs[q][j] };  out[r][j] = acc (+ bias[j])
 //! ```
-//! The loops are tiled (4 rows by 16 columns kept in registers) and
+//! The loops are tiled (up to 8 rows by 16 columns kept in registers) and
 //! vectorised *across columns*, never across `q`, so the order of every sum
 //! is the one above whatever the vector width. Without fused multiply-add
 //! (Rust never fuses `a * b + c` on its own) every operation is a correctly
@@ -28,8 +28,6 @@
 use crate::network::Real;
 use crate::train::Arithmetic;
 
-/// Rows of a register tile.
-const MR: usize = 4;
 /// Columns of a register tile (one AVX-512 register of f32, two of f64).
 const NR: usize = 16;
 
@@ -38,6 +36,9 @@ const NR: usize = 16;
 /// (measured on W2-sized layers, 32 x 30 x 64, where the own kernel was
 /// faster; W3's 128 x 784 x 256 products are far above it).
 pub(crate) const WIDE: usize = 1 << 20;
+
+/// Products with at most this many multiply-adds take the plain loop.
+const TINY: usize = 64;
 
 /// The instruction sets the kernel can be compiled for.
 #[derive(Clone, Copy, PartialEq, Eq)]
@@ -94,6 +95,23 @@ pub(crate) fn product<F: Real>(
     assert!(ops.rhs.len() >= (p - 1) * ops.ldr + n && ops.ldr >= n);
     assert!(bias.is_none_or(|b| b.len() >= n));
     let fast = arithmetic == Arithmetic::Fast;
+    if m * n * p <= TINY {
+        // Tiny products (W1's 2-2-1 network, one row per update): the
+        // naive loop itself, without the tile set-up. Same order, same bits.
+        for r in 0..m {
+            for j in 0..n {
+                let mut acc = F::zero();
+                for q in 0..p {
+                    acc = acc + ops.lhs[r * ops.lrs + q * ops.lcs] * ops.rhs[q * ops.ldr + j];
+                }
+                out[r * n + j] = match bias {
+                    Some(b) => acc + b[j],
+                    None => acc,
+                };
+            }
+        }
+        return;
+    }
     if fast && m * n * p >= WIDE {
         // SAFETY: the strides and lengths were checked above.
         unsafe {
@@ -119,34 +137,47 @@ pub(crate) fn product<F: Real>(
         }
         return;
     }
-    // SAFETY (all three): bounds checked above; the target features are
+    // Row-tile heights that keep 8 to 16 vector accumulators live for each
+    // instruction set and float size (f32 rows of 16 fill one AVX-512
+    // register, f64 rows two), enough to hide the multiply-add latency
+    // without spilling. The height changes no sum.
+    let small = std::mem::size_of::<F>() == 4;
+    // SAFETY (all arms): bounds checked above; the target features are
     // present (detected at run time).
     match isa() {
         #[cfg(target_arch = "x86_64")]
         Isa::Avx512 => unsafe {
-            if fast {
-                kernel_avx512::<F, true>(m, n, p, ops, out, bias)
-            } else {
-                kernel_avx512::<F, false>(m, n, p, ops, out, bias)
+            match (fast, small) {
+                (true, true) => kernel_avx512::<F, 8, true>(m, n, p, ops, out, bias),
+                (true, false) => kernel_avx512::<F, 4, true>(m, n, p, ops, out, bias),
+                (false, true) => kernel_avx512::<F, 8, false>(m, n, p, ops, out, bias),
+                (false, false) => kernel_avx512::<F, 4, false>(m, n, p, ops, out, bias),
             }
         },
         #[cfg(target_arch = "x86_64")]
         Isa::Avx2Fma => unsafe {
-            if fast {
-                kernel_avx2::<F, true>(m, n, p, ops, out, bias)
-            } else {
-                kernel_avx2::<F, false>(m, n, p, ops, out, bias)
+            match (fast, small) {
+                (true, true) => kernel_avx2::<F, 4, true>(m, n, p, ops, out, bias),
+                (true, false) => kernel_avx2::<F, 2, true>(m, n, p, ops, out, bias),
+                (false, true) => kernel_avx2::<F, 4, false>(m, n, p, ops, out, bias),
+                (false, false) => kernel_avx2::<F, 2, false>(m, n, p, ops, out, bias),
             }
         },
         // Without hardware FMA a fused multiply-add is a slow library
         // call, so the base build never fuses.
-        Isa::Base => unsafe { kernel::<F, false>(m, n, p, ops, out, bias) },
+        Isa::Base => unsafe {
+            if small {
+                kernel::<F, 2, false>(m, n, p, ops, out, bias)
+            } else {
+                kernel::<F, 1, false>(m, n, p, ops, out, bias)
+            }
+        },
     }
 }
 
 #[cfg(target_arch = "x86_64")]
 #[target_feature(enable = "avx512f,avx2,fma")]
-unsafe fn kernel_avx512<F: Real, const FMA: bool>(
+unsafe fn kernel_avx512<F: Real, const MR: usize, const FMA: bool>(
     m: usize,
     n: usize,
     p: usize,
@@ -154,12 +185,12 @@ unsafe fn kernel_avx512<F: Real, const FMA: bool>(
     out: &mut [F],
     bias: Option<&[F]>,
 ) {
-    kernel::<F, FMA>(m, n, p, ops, out, bias)
+    kernel::<F, MR, FMA>(m, n, p, ops, out, bias)
 }
 
 #[cfg(target_arch = "x86_64")]
 #[target_feature(enable = "avx2,fma")]
-unsafe fn kernel_avx2<F: Real, const FMA: bool>(
+unsafe fn kernel_avx2<F: Real, const MR: usize, const FMA: bool>(
     m: usize,
     n: usize,
     p: usize,
@@ -167,11 +198,11 @@ unsafe fn kernel_avx2<F: Real, const FMA: bool>(
     out: &mut [F],
     bias: Option<&[F]>,
 ) {
-    kernel::<F, FMA>(m, n, p, ops, out, bias)
+    kernel::<F, MR, FMA>(m, n, p, ops, out, bias)
 }
 
 #[inline(always)]
-unsafe fn kernel<F: Real, const FMA: bool>(
+unsafe fn kernel<F: Real, const MR: usize, const FMA: bool>(
     m: usize,
     n: usize,
     p: usize,
@@ -246,12 +277,19 @@ unsafe fn tile<F: Real, const R: usize, const W: usize, const FMA: bool>(
             }
         }
     } else {
+        // A narrow edge (e.g. a 10-class output layer): the same full-width
+        // tile on a zero-padded copy of the row, so the accumulators stay
+        // in registers; the padded lanes are never written back.
         for q in 0..p {
             let brow = rhs.add(q * ops.ldr + j0);
+            let mut b = [F::zero(); W];
+            for (jj, bj) in b.iter_mut().enumerate().take(width) {
+                *bj = *brow.add(jj);
+            }
             for (r, accr) in acc.iter_mut().enumerate() {
                 let a = *lhs.add((r0 + r) * ops.lrs + q * ops.lcs);
-                for jj in 0..width {
-                    accr[jj] = madd::<F, FMA>(accr[jj], a, *brow.add(jj));
+                for jj in 0..W {
+                    accr[jj] = madd::<F, FMA>(accr[jj], a, b[jj]);
                 }
             }
         }
@@ -300,7 +338,13 @@ mod tests {
     #[test]
     fn portable_kernel_equals_the_naive_loop_bit_for_bit() {
         let mut rng = crate::seeded_rng(4);
-        for &(m, n, p) in &[(1, 1, 1), (3, 17, 5), (9, 33, 40), (4, 16, 3), (130, 70, 31)] {
+        for &(m, n, p) in &[
+            (1, 1, 1),
+            (3, 17, 5),
+            (9, 33, 40),
+            (4, 16, 3),
+            (130, 70, 31),
+        ] {
             let a: Vec<f64> = (0..m * p)
                 .map(|_| crate::rng::uniform(&mut rng, -1.0, 1.0))
                 .collect();

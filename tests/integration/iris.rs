@@ -10,7 +10,7 @@ pub fn iris() -> Dataset {
     let ds = linfa_datasets::iris();
     let records = ds.records();
     let x = Array2::from_shape_fn((records.nrows(), records.ncols()), |(i, j)| records[[i, j]]);
-    let labels: Vec<usize> = ds.targets().iter().map(|&t| t).collect();
+    let labels: Vec<usize> = ds.targets().iter().copied().collect();
     Dataset::classification(
         x,
         labels,

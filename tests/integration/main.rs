@@ -8,6 +8,7 @@ mod demo_data;
 mod determinism;
 mod gradients;
 mod iris;
+mod portable;
 mod support;
 mod validation;
 mod worked_examples;
