@@ -24,9 +24,10 @@ fi
 cargo build -q --release --example bench
 BIN="$T/release/examples/bench"
 DATA="$T/bench-data"
-if [ ! -f "$DATA/big.csv" ]; then
-  mkdir -p "$DATA"
-  "$BIN" prepare "$DATA"
+mkdir -p "$DATA"
+"$BIN" prepare "$DATA"
+if [ -z "${QUICK:-}" ] && [ ! -f "$DATA/big.csv" ]; then
+  "$BIN" prepare-csv "$DATA/big.csv"
 fi
 OUT="$T/bench-results.jsonl"
 : > "$OUT"
