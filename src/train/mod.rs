@@ -264,7 +264,13 @@ fn check_xy(
     if x.nrows() == 0 {
         return Err(Error::input(what, "there are no rows"));
     }
-    if x.iter().chain(y.iter()).any(|v| !v.is_finite()) {
+    // A contiguous table is checked as a slice (vectorised; W3's 47 million
+    // inputs took a tenth of a second through the generic iterator).
+    let finite = |a: ArrayView2<'_, f64>| match a.as_slice() {
+        Some(s) => s.iter().all(|v| v.is_finite()),
+        None => a.iter().all(|v| v.is_finite()),
+    };
+    if !(finite(x) && finite(y)) {
         return Err(Error::input(
             what,
             "inputs and targets must be finite numbers",
@@ -275,7 +281,10 @@ fn check_xy(
 
 /// The rows of `a` as one row-major vector in `F`.
 fn to_real<F: Real>(a: ArrayView2<'_, f64>) -> Vec<F> {
-    a.iter().map(|&v| F::from_f64(v)).collect()
+    match a.as_slice() {
+        Some(s) => s.iter().map(|&v| F::from_f64(v)).collect(),
+        None => a.iter().map(|&v| F::from_f64(v)).collect(),
+    }
 }
 
 /// Optimiser state in the flat parameter layout.
@@ -457,6 +466,14 @@ fn update<F: Real>(
     let decay = F::from_f64(options.weight_decay);
     let l1 = F::from_f64(options.l1_penalty);
     let penalised = options.weight_decay > 0.0 || options.l1_penalty > 0.0;
+    if options.optimiser == Optimiser::Sgd && !penalised && options.train_biases {
+        // The common plain case in one pass over the flat vector (the same
+        // operations as below, `+ 0` included, so the same bits).
+        for (wi, &gi) in params.data.iter_mut().zip(grad) {
+            *wi = *wi - rate * (gi + F::zero());
+        }
+        return;
+    }
     for l in 0..params.n_layers() {
         let (wr, br) = params.ranges(l);
         for (range, is_weight) in [(wr, true), (br, false)] {
