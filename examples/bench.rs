@@ -95,7 +95,7 @@ fn specs() -> Vec<Spec> {
             ..base("W5", 90_000, &[2, 32, 32, 3])
         },
         Spec {
-            epochs: 100,
+            epochs: 300,
             precision: Precision::F64,
             seed: 14,
             ..base("CV-small", 1_000, &[20, 32, 2])
