@@ -64,7 +64,10 @@ pub fn analyse(data: Dataset, options: &FitOptions, seed: u64) -> Result<Analysi
         Some(Scores::of(&fitted.model, &data.select(&fitted.split.validation))?.0)
     };
     let learning_curves = chart::training_curves(&fitted)?;
-    let decision_map = match (fitted.model.is_classifier, crate::report::map_features(&data)) {
+    let decision_map = match (
+        fitted.model.is_classifier,
+        crate::report::map_features(&data),
+    ) {
         (true, Some((x, y))) => {
             let train = data.select(&fitted.split.train);
             Some(chart::decision_boundary(&fitted.model, &train, &x, &y)?)

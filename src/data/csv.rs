@@ -190,10 +190,11 @@ pub(crate) fn parse_number(cell: &str) -> Option<f64> {
     t.parse::<f64>().ok().filter(|v| v.is_finite())
 }
 
-/// One parsed source column.
+/// One parsed source column. Feature values live in [`RawTable::values`].
 pub(crate) enum RawData {
-    Numeric(Vec<f64>),
-    /// Codes into `levels` (levels in order of first appearance).
+    Numeric,
+    /// Levels in order of first appearance; the target keeps its codes
+    /// here, a feature column stores each row's code in `RawTable::values`.
     Text {
         codes: Vec<u32>,
         levels: Vec<String>,
@@ -213,6 +214,12 @@ pub(crate) struct RawColumn {
 pub(crate) struct RawTable {
     /// Used columns: the target first, then the features in chosen order.
     pub columns: Vec<RawColumn>,
+    /// Feature cells, row-major (one slot per feature column): numbers, or
+    /// level codes of text columns. Row-major so that an all-numeric table
+    /// becomes its feature matrix without a copy: the parse then peaks at
+    /// about one f64 matrix (the vector grows by `realloc`, which moves
+    /// large blocks by remapping pages, not by copying).
+    pub values: Vec<f64>,
     pub rows: usize,
     pub dropped: usize,
 }
@@ -474,6 +481,7 @@ pub(crate) fn read_columns<R: Read>(reader: R, path: &Path, opts: &CsvOptions) -
         .collect();
     let mut rows = 0usize;
     let mut dropped = 0usize;
+    let mut values: Vec<f64> = Vec::new();
     while let Some(line) = next_row(&mut rdr, &mut record, path, width)? {
         // First pass over the used cells: check sizes and missing cells, so a
         // dropped row leaves no partial values behind.
@@ -503,13 +511,13 @@ pub(crate) fn read_columns<R: Read>(reader: R, path: &Path, opts: &CsvOptions) -
                 }
             }
         }
-        for col in columns.iter_mut() {
+        for (slot, col) in columns.iter_mut().enumerate() {
             let cell = &record[col.index];
             if let RawData::Undecided = col.data {
                 // Any number, finite or not, makes the column numeric, so that
                 // an overflow marker such as "inf" is reported, not encoded.
                 col.data = match cell.trim().parse::<f64>() {
-                    Ok(_) => RawData::Numeric(Vec::new()),
+                    Ok(_) => RawData::Numeric,
                     Err(_) => RawData::Text {
                         codes: Vec::new(),
                         levels: Vec::new(),
@@ -518,7 +526,7 @@ pub(crate) fn read_columns<R: Read>(reader: R, path: &Path, opts: &CsvOptions) -
                 };
             }
             match &mut col.data {
-                RawData::Numeric(values) => match parse_number(cell) {
+                RawData::Numeric => match parse_number(cell) {
                     Some(v) => values.push(v),
                     None => {
                         let reason = if cell.trim().parse::<f64>().is_ok() {
@@ -551,7 +559,12 @@ pub(crate) fn read_columns<R: Read>(reader: R, path: &Path, opts: &CsvOptions) -
                             c
                         }
                     };
-                    codes.push(code);
+                    if slot == 0 {
+                        codes.push(code);
+                    } else {
+                        // Codes below 2^32 are exact in an f64.
+                        values.push(code as f64);
+                    }
                 }
                 RawData::Undecided => unreachable!("decided above"),
             }
@@ -574,6 +587,7 @@ pub(crate) fn read_columns<R: Read>(reader: R, path: &Path, opts: &CsvOptions) -
     }
     Ok(RawTable {
         columns,
+        values,
         rows,
         dropped,
     })
@@ -680,7 +694,7 @@ fn build_dataset(raw: RawTable, opts: &CsvOptions, path: &Path) -> Result<Datase
     let mut blocks: Vec<(RawData, Vec<u32>)> = Vec::new();
     for col in cols {
         match col.data {
-            RawData::Numeric(_) | RawData::Undecided => {
+            RawData::Numeric | RawData::Undecided => {
                 encodings.push(ColumnEncoding::Numeric { name: col.name });
                 blocks.push((col.data, Vec::new()));
             }
@@ -694,25 +708,35 @@ fn build_dataset(raw: RawTable, opts: &CsvOptions, path: &Path) -> Result<Datase
             }
         }
     }
+    let stride = blocks.len();
     let width: usize = encodings.iter().map(ColumnEncoding::width).sum();
-    let mut features = Array2::<f64>::zeros((n, width));
-    let mut offset = 0;
-    for ((data, remap), enc) in blocks.iter().zip(&encodings) {
-        match data {
-            RawData::Numeric(values) => {
-                features
-                    .column_mut(offset)
-                    .assign(&ndarray::ArrayView1::from(&values[..]));
-            }
-            RawData::Text { codes, .. } => {
-                for (r, &c) in codes.iter().enumerate() {
-                    features[[r, offset + remap[c as usize] as usize]] = 1.0;
+    let features = if width == stride && blocks.iter().all(|(d, _)| matches!(d, RawData::Numeric)) {
+        // Every feature is a number: the parsed cells are the matrix.
+        let mut values = raw.values;
+        values.shrink_to_fit();
+        Array2::from_shape_vec((n, stride), values).expect("one value per cell")
+    } else {
+        let mut features = Array2::<f64>::zeros((n, width));
+        let mut offset = 0;
+        for (slot, ((data, remap), enc)) in blocks.iter().zip(&encodings).enumerate() {
+            let cells = raw.values.iter().skip(slot).step_by(stride.max(1));
+            match data {
+                RawData::Numeric => {
+                    for (r, &v) in cells.enumerate() {
+                        features[[r, offset]] = v;
+                    }
                 }
+                RawData::Text { .. } => {
+                    for (r, &c) in cells.enumerate() {
+                        features[[r, offset + remap[c as usize] as usize]] = 1.0;
+                    }
+                }
+                RawData::Undecided => unreachable!("rows exist, so every column was decided"),
             }
-            RawData::Undecided => unreachable!("rows exist, so every column was decided"),
+            offset += enc.width();
         }
-        offset += enc.width();
-    }
+        features
+    };
     let feature_names = encodings
         .iter()
         .flat_map(ColumnEncoding::feature_names)

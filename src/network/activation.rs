@@ -76,7 +76,7 @@ impl Activation {
         match self {
             Activation::Identity => z,
             Activation::Sigmoid => sigmoid(z),
-            Activation::Tanh => z.tanh(),
+            Activation::Tanh => z.tanh_det(),
             Activation::Relu => {
                 if z > F::zero() {
                     z
@@ -131,9 +131,9 @@ impl Activation {
 #[inline]
 pub fn sigmoid<F: Real>(z: F) -> F {
     if z >= F::zero() {
-        F::one() / (F::one() + (-z).exp())
+        F::one() / (F::one() + (-z).exp_det())
     } else {
-        let e = z.exp();
+        let e = z.exp_det();
         e / (F::one() + e)
     }
 }
@@ -170,7 +170,7 @@ impl Head {
                 let m = z.iter().copied().fold(F::neg_infinity(), F::max);
                 let mut sum = F::zero();
                 for v in z.iter_mut() {
-                    *v = (*v - m).exp();
+                    *v = (*v - m).exp_det();
                     sum = sum + *v;
                 }
                 z.iter_mut().for_each(|v| *v = *v / sum);

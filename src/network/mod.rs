@@ -38,6 +38,74 @@ pub trait Real:
     fn from_f64(v: f64) -> Self;
     /// Converts to `f64` (exact).
     fn as_f64(self) -> f64;
+    /// `e^self` from the pure-Rust `libm` (the same bits on every machine).
+    fn exp_det(self) -> Self;
+    /// `tanh(self)` from `libm`.
+    fn tanh_det(self) -> Self;
+    /// `ln(self)` from `libm`.
+    fn ln_det(self) -> Self;
+    /// `ln(1 + self)` from `libm`.
+    fn ln_1p_det(self) -> Self;
+    /// `c = a b` through `matrixmultiply` (`m x k` times `k x n`, strides in
+    /// elements).
+    ///
+    /// # Safety
+    /// The pointers and strides must address valid `m x k`, `k x n` and
+    /// `m x n` matrices, `c` not overlapping the others.
+    #[allow(clippy::too_many_arguments)]
+    #[doc(hidden)]
+    unsafe fn gemm(
+        m: usize,
+        k: usize,
+        n: usize,
+        a: *const Self,
+        rsa: isize,
+        csa: isize,
+        b: *const Self,
+        rsb: isize,
+        csb: isize,
+        c: *mut Self,
+        rsc: isize,
+        csc: isize,
+    );
+}
+
+macro_rules! real_math {
+    ($exp:path, $tanh:path, $ln:path, $ln1p:path, $gemm:path) => {
+        #[inline]
+        fn exp_det(self) -> Self {
+            $exp(self)
+        }
+        #[inline]
+        fn tanh_det(self) -> Self {
+            $tanh(self)
+        }
+        #[inline]
+        fn ln_det(self) -> Self {
+            $ln(self)
+        }
+        #[inline]
+        fn ln_1p_det(self) -> Self {
+            $ln1p(self)
+        }
+        #[inline]
+        unsafe fn gemm(
+            m: usize,
+            k: usize,
+            n: usize,
+            a: *const Self,
+            rsa: isize,
+            csa: isize,
+            b: *const Self,
+            rsb: isize,
+            csb: isize,
+            c: *mut Self,
+            rsc: isize,
+            csc: isize,
+        ) {
+            $gemm(m, k, n, 1.0, a, rsa, csa, b, rsb, csb, 0.0, c, rsc, csc)
+        }
+    };
 }
 
 impl Real for f64 {
@@ -49,6 +117,13 @@ impl Real for f64 {
     fn as_f64(self) -> f64 {
         self
     }
+    real_math!(
+        libm::exp,
+        libm::tanh,
+        libm::log,
+        libm::log1p,
+        matrixmultiply::dgemm
+    );
 }
 
 impl Real for f32 {
@@ -60,6 +135,13 @@ impl Real for f32 {
     fn as_f64(self) -> f64 {
         self as f64
     }
+    real_math!(
+        libm::expf,
+        libm::tanhf,
+        libm::logf,
+        libm::log1pf,
+        matrixmultiply::sgemm
+    );
 }
 
 /// The float type a network trains and predicts in.

@@ -14,14 +14,16 @@
 //! dJ/dW_l = a_{l-1}^T delta_l,   dJ/db_l = column sums of delta_l
 //! delta_{l-1} = (delta_l W_l^T) * f'(a_{l-1})        (element-wise product)
 //! ```
-//! Every layer's work is a matrix product (`ndarray::linalg::general_mat_mul`);
-//! buffers are sized once for the largest batch and reused, so no memory is
-//! allocated per mini-batch.
+//! Every layer's work is a matrix product (see [`kernels`]: a fixed-order
+//! kernel of our own, or `matrixmultiply` for wide layers in the fast mode);
+//! buffers are plain row-major vectors sized once for the largest batch and
+//! reused, so no memory is allocated per mini-batch, and a tiny network
+//! (W1's 2-2-1, one row per update) pays no dispatch beyond a few slices.
 
-use crate::network::{Activation, Head, Network, Real};
-use crate::train::Loss;
-use ndarray::linalg::general_mat_mul;
-use ndarray::{s, Array2, ArrayView2, ArrayViewMut2};
+use crate::network::{sigmoid, Activation, Head, Network, Real};
+use crate::train::kernels::{self, Operands};
+use crate::train::{Arithmetic, Loss};
+use ndarray::{s, Array2, ArrayView2};
 
 /// A network's parameters as one flat vector in float type `F`.
 #[derive(Clone, Debug)]
@@ -75,30 +77,21 @@ impl<F: Real> Params<F> {
         (w..w + i * o, w + i * o..w + i * o + o)
     }
 
-    pub fn weights(&self, l: usize) -> ArrayView2<'_, F> {
-        let (wr, _) = self.ranges(l);
-        ArrayView2::from_shape(self.shapes[l], &self.data[wr]).expect("layout")
-    }
-
-    pub fn biases(&self, l: usize) -> &[F] {
-        let (_, br) = self.ranges(l);
-        &self.data[br]
-    }
-
-    /// Outputs (after the head) for all rows of `x`, in chunks.
+    /// Outputs (after the head) for all rows of `x`, in chunks. Prediction
+    /// always uses the portable kernel, so a model predicts the same bits on
+    /// every machine.
     pub fn predict(&self, x: ArrayView2<'_, f64>, net: &Network) -> Array2<f64> {
         let n_out = self.shapes.last().expect("layers").1;
         let mut out = Array2::zeros((x.nrows(), n_out));
         let chunk = EVAL_CHUNK.min(x.nrows().max(1));
-        let mut ws = Forward::<F>::new(self, chunk);
+        let mut ws = Forward::<F>::new(self, chunk, Arithmetic::Portable);
         for start in (0..x.nrows()).step_by(chunk) {
             let end = (start + chunk).min(x.nrows());
             let m = end - start;
             ws.load(x.slice(s![start..end, ..]));
             ws.run(self, m, net.activation(), self.n_layers());
             let z = ws.acts.last_mut().expect("layers");
-            for (i, mut row) in z.slice_mut(s![..m, ..]).rows_mut().into_iter().enumerate() {
-                let row = row.as_slice_mut().expect("contiguous");
+            for (i, row) in z[..m * n_out].chunks_exact_mut(n_out).enumerate() {
                 net.head().apply_row(row);
                 for (k, v) in row.iter().enumerate() {
                     out[[start + i, k]] = v.as_f64();
@@ -113,7 +106,7 @@ impl<F: Real> Params<F> {
         let width = self.shapes[layer - 1].1;
         let mut out = Array2::zeros((x.nrows(), width));
         let chunk = EVAL_CHUNK.min(x.nrows().max(1));
-        let mut ws = Forward::<F>::new(self, chunk);
+        let mut ws = Forward::<F>::new(self, chunk, Arithmetic::Portable);
         for start in (0..x.nrows()).step_by(chunk) {
             let end = (start + chunk).min(x.nrows());
             let m = end - start;
@@ -122,7 +115,7 @@ impl<F: Real> Params<F> {
             let a = &ws.acts[layer - 1];
             for i in 0..m {
                 for k in 0..width {
-                    out[[start + i, k]] = a[[i, k]].as_f64();
+                    out[[start + i, k]] = a[i * width + k].as_f64();
                 }
             }
         }
@@ -133,29 +126,37 @@ impl<F: Real> Params<F> {
 /// Rows evaluated at once outside training (bounds memory for big tables).
 pub(crate) const EVAL_CHUNK: usize = 1024;
 
-/// Buffers for forward passes of up to `capacity` rows.
+/// Buffers for forward passes of up to `capacity` rows, each a row-major
+/// `capacity x width` block (only the first `m` rows are used by a pass).
 pub(crate) struct Forward<F: Real> {
-    pub input: Array2<F>,
+    pub input: Vec<F>,
     /// Per layer: output sums, turned into activations in place (the last
     /// layer keeps its sums until the loss or head is applied).
-    pub acts: Vec<Array2<F>>,
+    pub acts: Vec<Vec<F>>,
+    /// Rows the buffers hold.
+    pub capacity: usize,
+    /// Which kernels compute the products.
+    pub arithmetic: Arithmetic,
 }
 
 impl<F: Real> Forward<F> {
-    pub fn new(params: &Params<F>, capacity: usize) -> Forward<F> {
+    pub fn new(params: &Params<F>, capacity: usize, arithmetic: Arithmetic) -> Forward<F> {
         Forward {
-            input: Array2::zeros((capacity, params.shapes[0].0)),
+            input: vec![F::zero(); capacity * params.shapes[0].0],
             acts: params
                 .shapes
                 .iter()
-                .map(|&(_, o)| Array2::zeros((capacity, o)))
+                .map(|&(_, o)| vec![F::zero(); capacity * o])
                 .collect(),
+            capacity,
+            arithmetic,
         }
     }
 
     /// Copies rows of `x` into the input buffer.
     pub fn load(&mut self, x: ArrayView2<'_, f64>) {
-        for (mut dst, src) in self.input.rows_mut().into_iter().zip(x.rows()) {
+        let width = x.ncols();
+        for (dst, src) in self.input.chunks_exact_mut(width).zip(x.rows()) {
             for (d, s) in dst.iter_mut().zip(src) {
                 *d = F::from_f64(*s);
             }
@@ -167,73 +168,105 @@ impl<F: Real> Forward<F> {
     pub fn run(&mut self, params: &Params<F>, m: usize, activation: Activation, upto: usize) {
         let last = params.n_layers() - 1;
         for l in 0..upto {
+            let (n_in, n_out) = params.shapes[l];
             let (done, rest) = self.acts.split_at_mut(l);
-            let input = if l == 0 {
-                self.input.slice(s![..m, ..])
-            } else {
-                done[l - 1].slice(s![..m, ..])
-            };
-            let mut out = rest[0].slice_mut(s![..m, ..]);
-            general_mat_mul(F::one(), &input, &params.weights(l), F::zero(), &mut out);
-            bias_and_activate(
-                &mut out,
-                params.biases(l),
-                if l == last { None } else { Some(activation) },
+            let input: &[F] = if l == 0 { &self.input } else { &done[l - 1] };
+            let out = &mut rest[0][..m * n_out];
+            let (wr, br) = params.ranges(l);
+            // Bias added in the kernel's write-back; the activation follows
+            // in one pass over the block, which is still in cache.
+            kernels::product(
+                self.arithmetic,
+                (m, n_out, n_in),
+                Operands {
+                    lhs: input,
+                    lrs: n_in,
+                    lcs: 1,
+                    rhs: &params.data[wr],
+                    ldr: n_out,
+                },
+                out,
+                Some(&params.data[br]),
             );
+            if l != last {
+                activate(out, activation);
+            }
         }
     }
 }
 
-/// Adds the bias row to every row and applies the activation, in one pass.
-fn bias_and_activate<F: Real>(
-    out: &mut ArrayViewMut2<'_, F>,
-    b: &[F],
-    activation: Option<Activation>,
-) {
-    for mut row in out.rows_mut() {
-        let row = row
-            .as_slice_mut()
-            .expect("rows of a standard-layout buffer are contiguous");
-        match activation {
-            None | Some(Activation::Identity) => {
-                row.iter_mut().zip(b).for_each(|(v, &bk)| *v = *v + bk)
-            }
-            Some(act) => row
-                .iter_mut()
-                .zip(b)
-                .for_each(|(v, &bk)| *v = act.value(*v + bk)),
-        }
+/// Applies a hidden activation in place (the match is outside the loop).
+fn activate<F: Real>(out: &mut [F], activation: Activation) {
+    match activation {
+        Activation::Identity => {}
+        Activation::Relu => out.iter_mut().for_each(|v| {
+            *v = if *v > F::zero() { *v } else { F::zero() };
+        }),
+        Activation::Sigmoid => out.iter_mut().for_each(|v| *v = sigmoid(*v)),
+        Activation::Tanh => out.iter_mut().for_each(|v| *v = v.tanh_det()),
+        act @ Activation::LeakyRelu(_) => out.iter_mut().for_each(|v| *v = act.value(*v)),
+    }
+}
+
+/// Multiplies deltas by the activation's derivative, from the outputs `a`.
+fn times_derivative<F: Real>(d: &mut [F], a: &[F], activation: Activation) {
+    match activation {
+        Activation::Identity => {}
+        Activation::Relu => d.iter_mut().zip(a).for_each(|(d, &av)| {
+            *d = if av > F::zero() { *d } else { F::zero() };
+        }),
+        Activation::Sigmoid => d
+            .iter_mut()
+            .zip(a)
+            .for_each(|(d, &av)| *d = *d * (av * (F::one() - av))),
+        Activation::Tanh => d
+            .iter_mut()
+            .zip(a)
+            .for_each(|(d, &av)| *d = *d * (F::one() - av * av)),
+        act @ Activation::LeakyRelu(_) => d
+            .iter_mut()
+            .zip(a)
+            .for_each(|(d, &av)| *d = *d * act.derivative_from_output(av)),
     }
 }
 
 /// Buffers for training: a forward workspace plus deltas and gradients.
 pub(crate) struct Backprop<F: Real> {
     pub fwd: Forward<F>,
-    pub targets: Array2<F>,
-    pub deltas: Vec<Array2<F>>,
+    pub targets: Vec<F>,
+    pub deltas: Vec<Vec<F>>,
     pub grad: Vec<F>,
+    /// Transposed weights of one layer (for the fixed-order kernel).
+    wt: Vec<F>,
 }
 
 impl<F: Real> Backprop<F> {
-    pub fn new(params: &Params<F>, capacity: usize) -> Backprop<F> {
+    pub fn new(params: &Params<F>, capacity: usize, arithmetic: Arithmetic) -> Backprop<F> {
         let n_out = params.shapes.last().expect("layers").1;
+        let widest = params.shapes.iter().map(|&(i, o)| i * o).max().unwrap_or(0);
         Backprop {
-            fwd: Forward::new(params, capacity),
-            targets: Array2::zeros((capacity, n_out)),
+            fwd: Forward::new(params, capacity, arithmetic),
+            targets: vec![F::zero(); capacity * n_out],
             deltas: params
                 .shapes
                 .iter()
-                .map(|&(_, o)| Array2::zeros((capacity, o)))
+                .map(|&(_, o)| vec![F::zero(); capacity * o])
                 .collect(),
             grad: vec![F::zero(); params.data.len()],
+            wt: vec![F::zero(); widest],
         }
     }
 
-    /// Gathers rows `rows` of `x` and `y` (already in `F`) into the buffers.
-    pub fn gather(&mut self, x: &Array2<F>, y: &Array2<F>, rows: &[usize]) {
+    /// Gathers rows `rows` of `x` and `y` (row-major, already in `F`) into
+    /// the buffers.
+    pub fn gather(&mut self, x: &[F], y: &[F], rows: &[usize]) {
+        let (d, k) = (
+            self.fwd.input.len() / self.fwd.capacity,
+            self.targets.len() / self.fwd.capacity,
+        );
         for (i, &r) in rows.iter().enumerate() {
-            self.fwd.input.row_mut(i).assign(&x.row(r));
-            self.targets.row_mut(i).assign(&y.row(r));
+            self.fwd.input[i * d..(i + 1) * d].copy_from_slice(&x[r * d..(r + 1) * d]);
+            self.targets[i * k..(i + 1) * k].copy_from_slice(&y[r * k..(r + 1) * k]);
         }
     }
 
@@ -249,18 +282,20 @@ impl<F: Real> Backprop<F> {
         loss: Loss,
     ) -> F {
         let n_layers = params.n_layers();
+        let arithmetic = self.fwd.arithmetic;
         self.fwd.run(params, m, activation, n_layers);
         let last = n_layers - 1;
         let scale = F::one() / F::from_f64(m as f64);
         let mut total = F::zero();
         {
-            let z = &mut self.fwd.acts[last];
-            let d = &mut self.deltas[last];
-            for i in 0..m {
-                let zr = z.row_mut(i).into_slice().expect("contiguous");
-                let yr = self.targets.row(i);
-                let yr = yr.as_slice().expect("contiguous");
-                let dr = d.row_mut(i).into_slice().expect("contiguous");
+            let k = params.shapes[last].1;
+            let z = &mut self.fwd.acts[last][..m * k];
+            let d = &mut self.deltas[last][..m * k];
+            for ((zr, yr), dr) in z
+                .chunks_exact_mut(k)
+                .zip(self.targets.chunks_exact(k))
+                .zip(d.chunks_exact_mut(k))
+            {
                 total =
                     total + crate::train::loss::row_loss_delta(head, loss, zr, yr, Some(dr), scale);
             }
@@ -268,43 +303,75 @@ impl<F: Real> Backprop<F> {
         for l in (0..n_layers).rev() {
             let (wr, br) = params.ranges(l);
             let (n_in, n_out) = params.shapes[l];
-            let delta = self.deltas[l].slice(s![..m, ..]);
-            let input = if l == 0 {
-                self.fwd.input.slice(s![..m, ..])
+            let (before, after) = self.deltas.split_at_mut(l);
+            let delta = &after[0][..m * n_out];
+            let input: &[F] = if l == 0 {
+                &self.fwd.input
             } else {
-                self.fwd.acts[l - 1].slice(s![..m, ..])
+                &self.fwd.acts[l - 1]
             };
-            {
-                let mut gw =
-                    ArrayViewMut2::from_shape((n_in, n_out), &mut self.grad[wr]).expect("layout");
-                general_mat_mul(F::one(), &input.t(), &delta, F::zero(), &mut gw);
-            }
+            // dJ/dW = a^T delta: the lhs is the input block read transposed.
+            kernels::product(
+                arithmetic,
+                (n_in, n_out, m),
+                Operands {
+                    lhs: input,
+                    lrs: 1,
+                    lcs: n_in,
+                    rhs: delta,
+                    ldr: n_out,
+                },
+                &mut self.grad[wr.clone()],
+                None,
+            );
             let gb = &mut self.grad[br];
             gb.iter_mut().for_each(|g| *g = F::zero());
-            for row in delta.rows() {
+            for row in delta.chunks_exact(n_out) {
                 for (g, &d) in gb.iter_mut().zip(row) {
                     *g = *g + d;
                 }
             }
             if l > 0 {
-                let (before, after) = self.deltas.split_at_mut(l);
-                let delta = after[0].slice(s![..m, ..]);
-                let mut prev = before[l - 1].slice_mut(s![..m, ..]);
-                general_mat_mul(
-                    F::one(),
-                    &delta,
-                    &params.weights(l).t(),
-                    F::zero(),
-                    &mut prev,
-                );
-                let a = self.fwd.acts[l - 1].slice(s![..m, ..]);
-                match activation {
-                    Activation::Identity => {}
-                    act => prev
-                        .iter_mut()
-                        .zip(a.iter())
-                        .for_each(|(d, &av)| *d = *d * act.derivative_from_output(av)),
+                // delta_{l-1} = delta_l W^T (no input gradient for layer 0).
+                let prev = &mut before[l - 1][..m * n_in];
+                let w = &params.data[wr];
+                if arithmetic == Arithmetic::Fast && m * n_in * n_out >= kernels::WIDE {
+                    // SAFETY: delta is m x n_out, W^T is read through
+                    // strides (n_out x n_in view of the n_in x n_out block),
+                    // prev is m x n_in; all lengths hold by construction.
+                    unsafe {
+                        F::gemm(
+                            m,
+                            n_out,
+                            n_in,
+                            delta.as_ptr(),
+                            n_out as isize,
+                            1,
+                            w.as_ptr(),
+                            1,
+                            n_out as isize,
+                            prev.as_mut_ptr(),
+                            n_in as isize,
+                            1,
+                        );
+                    }
+                } else {
+                    kernels::transpose(w, n_in, n_out, &mut self.wt);
+                    kernels::product(
+                        arithmetic,
+                        (m, n_in, n_out),
+                        Operands {
+                            lhs: delta,
+                            lrs: n_out,
+                            lcs: 1,
+                            rhs: &self.wt,
+                            ldr: n_in,
+                        },
+                        prev,
+                        None,
+                    );
                 }
+                times_derivative(prev, &self.fwd.acts[l - 1][..m * n_in], activation);
             }
         }
         total
@@ -318,30 +385,30 @@ impl<F: Real> Backprop<F> {
 pub(crate) fn evaluate<F: Real>(
     params: &Params<F>,
     ws: &mut Forward<F>,
-    x: &Array2<F>,
-    y: &Array2<F>,
+    x: &[F],
+    y: &[F],
     activation: Activation,
     head: Head,
     loss: Loss,
     classify: bool,
 ) -> (f64, usize) {
-    let capacity = ws.input.nrows();
+    let capacity = ws.capacity;
+    let (d, k) = (params.shapes[0].0, params.shapes.last().expect("layers").1);
+    let rows = x.len() / d;
     let mut total = 0.0;
     let mut correct = 0;
     let n_layers = params.n_layers();
-    for start in (0..x.nrows()).step_by(capacity) {
-        let end = (start + capacity).min(x.nrows());
+    for start in (0..rows).step_by(capacity) {
+        let end = (start + capacity).min(rows);
         let m = end - start;
-        ws.input
-            .slice_mut(s![..m, ..])
-            .assign(&x.slice(s![start..end, ..]));
+        ws.input[..m * d].copy_from_slice(&x[start * d..end * d]);
         ws.run(params, m, activation, n_layers);
         let z = ws.acts.last_mut().expect("layers");
         let mut chunk_total = F::zero();
-        for i in 0..m {
-            let zr = z.row_mut(i).into_slice().expect("contiguous");
-            let yr = y.row(start + i);
-            let yr = yr.as_slice().expect("contiguous");
+        for (zr, yr) in z[..m * k]
+            .chunks_exact_mut(k)
+            .zip(y[start * k..end * k].chunks_exact(k))
+        {
             chunk_total = chunk_total
                 + crate::train::loss::row_loss_delta(head, loss, zr, yr, None, F::one());
             if classify {

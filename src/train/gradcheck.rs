@@ -94,13 +94,14 @@ pub fn check_gradients(
     let (act, head) = (network.activation(), network.head());
     let m = x.nrows();
     let mut params = Params::<f64>::from_network(network);
-    let mut bp = Backprop::new(&params, m);
+    let mut bp = Backprop::new(&params, m, super::Arithmetic::Portable);
     let rows: Vec<usize> = (0..m).collect();
-    let xf = x.to_owned();
-    let yf = y.to_owned();
+    let xf: Vec<f64> = x.iter().copied().collect();
+    let yf: Vec<f64> = y.iter().copied().collect();
     bp.gather(&xf, &yf, &rows);
     bp.pass(&params, m, act, head, loss);
     let analytic = bp.grad.clone();
+    let bp_widths: Vec<usize> = params.shapes.iter().map(|&(_, o)| o).collect();
     let rectifier = matches!(act, Activation::Relu | Activation::LeakyRelu(_));
     // Which rectifier units are on, over all rows: a perturbation that
     // changes this pattern straddles a kink, where differences say nothing.
@@ -110,12 +111,8 @@ pub fn check_gradients(
         }
         bp.fwd.acts[..bp.fwd.acts.len() - 1]
             .iter()
-            .flat_map(|a| {
-                a.slice(ndarray::s![..m, ..])
-                    .iter()
-                    .map(|&v| v > 0.0)
-                    .collect::<Vec<_>>()
-            })
+            .zip(&bp_widths)
+            .flat_map(|(a, &w)| a[..m * w].iter().map(|&v| v > 0.0).collect::<Vec<_>>())
             .collect()
     };
     let base_pattern = pattern(&bp);
@@ -126,8 +123,7 @@ pub fn check_gradients(
         (j, pattern(bp) != base_pattern)
     };
     let mut worst = (0.0f64, (1, false, 0));
-    #[allow(clippy::needless_range_loop)] // i indexes the parameters, the gradient and the layout
-    for i in 0..params.data.len() {
+    for (i, &a) in analytic.iter().enumerate() {
         let saved = params.data[i];
         let mut crossed = false;
         let mut at = |step: f64| {
@@ -144,7 +140,6 @@ pub fn check_gradients(
             continue;
         }
         let numeric = (8.0 * near - far) / (12.0 * h);
-        let a = analytic[i];
         let size = a.abs().max(numeric.abs());
         let rel = if size < 1e-10 {
             0.0

@@ -72,7 +72,7 @@ pub(crate) fn row_loss_delta<F: Real>(
             let mut e = F::zero();
             for (zk, &yk) in z.iter_mut().zip(y) {
                 let v = *zk;
-                e = e + v.max(F::zero()) - v * yk + (-v.abs()).exp().ln_1p();
+                e = e + v.max(F::zero()) - v * yk + (-v.abs()).exp_det().ln_1p_det();
                 *zk = sigmoid(v);
             }
             if let Some(d) = delta {
@@ -86,15 +86,17 @@ pub(crate) fn row_loss_delta<F: Real>(
             let m = z.iter().copied().fold(F::neg_infinity(), F::max);
             let mut sum = F::zero();
             let mut yz = F::zero();
-            for (zk, &yk) in z.iter().zip(y) {
-                sum = sum + (*zk - m).exp();
-                yz = yz + yk * *zk;
-            }
-            let lse = m + sum.ln();
             let mut ysum = F::zero();
+            // One exponential per output: kept in `z`, then normalised.
             for (zk, &yk) in z.iter_mut().zip(y) {
-                *zk = (*zk - m).exp() / sum;
+                yz = yz + yk * *zk;
                 ysum = ysum + yk;
+                *zk = (*zk - m).exp_det();
+                sum = sum + *zk;
+            }
+            let lse = m + sum.ln_det();
+            for zk in z.iter_mut() {
+                *zk = *zk / sum;
             }
             if let Some(d) = delta {
                 for ((dk, &ak), &yk) in d.iter_mut().zip(z.iter()).zip(y) {

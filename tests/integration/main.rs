@@ -10,6 +10,7 @@ mod determinism;
 mod gradients;
 mod iris;
 mod model_files;
+mod portable;
 mod support;
 mod validation;
 mod worked_examples;
