@@ -64,3 +64,4 @@ if [ -z "${QUICK:-}" ]; then
   rs csv "$DATA/big.csv"
 fi
 "$VENV/bin/python" bench/report.py "$OUT" | tee "$T/bench-table.md"
+"$BIN" draw "$DATA/W5" 1 fast | tee -a "$T/bench-table.md"

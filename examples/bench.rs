@@ -6,6 +6,7 @@
 //! bench train DIR THREADS fast|portable  train one workload, print one JSON line
 //! bench predict DIR THREADS fast|portable
 //! bench cv DIR THREADS fast|portable     5-fold cross-validation of a workload's configuration
+//! bench draw DIR 1 fast                  W5 in full: predict the grid and draw the decision map
 //! bench csv FILE                         load a CSV, report peak RSS against the f64 matrix size
 //! ```
 //! Every workload is written from fixed seeds, so the numpy reference
@@ -316,6 +317,45 @@ fn dtype(spec: &Spec) -> &'static str {
     }
 }
 
+/// W5 in full: a 300 x 300 decision map (90,000 predictions) drawn to SVG
+/// with 2,000 data points over it. Printed as its own line (no numpy side:
+/// the drawing is ours alone).
+fn draw(x: &Array2<f64>, y: &Array2<f64>, net: &Network, spec: &Spec) {
+    use stratanet::chart::{decision_map, ClassPoints, DecisionMapOptions};
+    let k = y.ncols();
+    let points = ClassPoints {
+        points: (0..2000)
+            .map(|i| {
+                let r = (i * 45) % x.nrows();
+                (
+                    x[[r, 0]],
+                    x[[r, 1]],
+                    stratanet_argmax(y.row(r).as_slice().unwrap()),
+                )
+            })
+            .collect(),
+        class_names: (0..k).map(|c| format!("class {c}")).collect(),
+        x_name: "x0".into(),
+        y_name: "x1".into(),
+    };
+    let options = DecisionMapOptions {
+        resolution: 300,
+        x_range: Some((-3.0, 3.0)),
+        y_range: Some((-3.0, 3.0)),
+        ..Default::default()
+    };
+    let predict = |g: ndarray::ArrayView2<'_, f64>| net.predict(g);
+    let mut best = f64::INFINITY;
+    let mut bytes = 0;
+    for _ in 0..spec.runs {
+        let t = Instant::now();
+        let chart = decision_map(&predict, &points, &options).unwrap();
+        best = best.min(t.elapsed().as_secs_f64());
+        bytes = chart.as_svg().len();
+    }
+    println!("W5 in full (predict a 300 x 300 grid and draw the decision map with 2,000 points): {best:.3} s, SVG {} KiB, peak RSS {} MiB", bytes / 1024, peak_rss_kb() / 1024);
+}
+
 fn main() {
     let args: Vec<String> = std::env::args().skip(1).collect();
     let cmd = args.first().map(String::as_str).unwrap_or("");
@@ -356,6 +396,10 @@ fn main() {
         .unwrap();
     let spec = spec_of(&dir);
     let (x, y, net) = load(&dir, &spec);
+    if cmd == "draw" {
+        draw(&x, &y, &net, &spec);
+        return;
+    }
     let (seconds, samples, final_loss, last_epoch) = match cmd {
         "train" => {
             let opts = options(&spec, arithmetic);
