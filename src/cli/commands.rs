@@ -99,8 +99,6 @@ pub(crate) fn cv_text(cv: &CrossValidation, out: &mut String) {
     }
 }
 
-const CAUTION: &str = "Caution: a model supports, and never replaces, qualified judgement, the applicable standards and local practice; do not accept or reject parts on its word alone.";
-
 pub fn fit(a: FitArgs) -> Result<Outcome> {
     let progress = progress_wanted(&a.output);
     crate::atomic::refuse_overwrite_input(&a.out, &[&a.data])?;
@@ -199,7 +197,7 @@ pub fn check(a: CheckArgs) -> Result<Outcome> {
         a.model.display()
     );
     scores_text(&scores, &mut text);
-    let _ = writeln!(text, "{CAUTION}");
+    let _ = writeln!(text, "Caution: {}", report::CAUTION);
     Ok(Outcome { json, text })
 }
 
@@ -221,8 +219,9 @@ pub fn predict(a: PredictArgs) -> Result<Outcome> {
         "columns": report::prediction_columns(&model),
     });
     let text = format!(
-        "wrote predictions for {rows} rows to {}\n{CAUTION}",
-        a.out.display()
+        "wrote predictions for {rows} rows to {}\nCaution: {}",
+        a.out.display(),
+        report::CAUTION
     );
     Ok(Outcome { json, text })
 }

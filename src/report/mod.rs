@@ -163,8 +163,11 @@ pub fn write_predictions(model: &Model, table: &FeatureTable, out: &Path) -> Res
     let io = |e: csv::Error| Error::input(out.display().to_string(), e.to_string());
     w.write_record(prediction_columns(model)).map_err(io)?;
     if model.is_classifier {
-        let p = model.predict_probabilities(table.x())?;
-        let classes = model.predict_classes(table.x())?;
+        // One forward pass gives both the classes and the probabilities.
+        let out = model.predict(table.x())?;
+        let head = model.network.head();
+        let classes = crate::network::classes_from_outputs(out.view(), head)?;
+        let p = crate::network::probabilities_from_outputs(out, head)?;
         for (i, row) in p.rows().into_iter().enumerate() {
             let mut rec = vec![
                 table.lines[i].to_string(),
@@ -187,7 +190,9 @@ pub fn write_predictions(model: &Model, table: &FeatureTable, out: &Path) -> Res
     write_text(out, std::str::from_utf8(&bytes).expect("CSV of UTF-8 text"))
 }
 
-const CAUTION: &str = "A model fitted here supports, and never replaces, qualified judgement, the applicable standards and local practice. Do not accept, rework or scrap a part on its output alone.";
+/// The usual caution, printed by every command whose output could drive a
+/// decision about a part.
+pub(crate) const CAUTION: &str = "A model fitted here supports, and never replaces, qualified judgement, the applicable standards and local practice. Do not accept, rework or scrap a part on its output alone.";
 
 /// The whole job on the embedded demo data: hold out a test set, compare two
 /// architectures by cross-validation, fit the better one, score it once on
