@@ -196,7 +196,9 @@ impl FitOptions {
                 "early stopping needs validation rows: set validation_fraction above 0 (0.2 is usual) or turn early stopping off",
             ));
         }
-        Ok(())
+        // Everything but the batch size against the row count, which needs data.
+        self.training
+            .validate(usize::MAX, self.validation_fraction > 0.0)
     }
 }
 

@@ -5,7 +5,7 @@
 mod plan_files;
 
 pub(crate) use plan_files::write_text;
-pub use plan_files::{read_plan, read_trial, write_plan, write_trial};
+pub use plan_files::{parse_plan, parse_trial, read_plan, read_trial, write_plan, write_trial};
 
 use crate::atomic::refuse_overwrite_input;
 use crate::chart::{self, Chart, HiddenView};

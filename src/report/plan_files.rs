@@ -81,6 +81,15 @@ pub fn write_plan(plan: &SweepPlan, table: &CsvOptions, path: &Path) -> Result<(
 /// A missing file, or one that is not a stratanet sweep plan.
 pub fn read_plan(path: &Path) -> Result<(SweepPlan, CsvOptions)> {
     let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, "reading", e))?;
+    parse_plan(&text, path)
+}
+
+/// Parses and checks the text of a plan file; `path` names it in errors.
+///
+/// # Errors
+/// Text that is not a stratanet sweep plan, or a plan that breaks a rule of
+/// [`SweepPlan::check`].
+pub fn parse_plan(text: &str, path: &Path) -> Result<(SweepPlan, CsvOptions)> {
     let first = text.lines().next().unwrap_or("");
     let header: PlanHeader = serde_json::from_str(first).map_err(|e| {
         Error::input(
@@ -94,6 +103,10 @@ pub fn read_plan(path: &Path) -> Result<(SweepPlan, CsvOptions)> {
             format!("format {} version {} is not a sweep plan this version reads ({PLAN_FORMAT} version 1)", header.format, header.format_version),
         ));
     }
+    header
+        .plan
+        .check()
+        .map_err(|e| Error::input(format!("{}: line 1", path.display()), e.to_string()))?;
     Ok((header.plan, header.table))
 }
 
@@ -132,7 +145,19 @@ pub fn read_trial(
     plan: &SweepPlan,
 ) -> Result<(usize, FoldResult, usize, Vec<String>)> {
     let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, "reading", e))?;
-    let file: TrialFile = serde_json::from_str(&text).map_err(|e| {
+    parse_trial(&text, path, plan)
+}
+
+/// Parses the text of a trial file made for `plan`; `path` names it in errors.
+///
+/// # Errors
+/// Text that is not a trial result, or one made for another plan.
+pub fn parse_trial(
+    text: &str,
+    path: &Path,
+    plan: &SweepPlan,
+) -> Result<(usize, FoldResult, usize, Vec<String>)> {
+    let file: TrialFile = serde_json::from_str(text).map_err(|e| {
         Error::input(
             path.display().to_string(),
             format!("not a stratanet sweep trial result ({e})"),
@@ -150,7 +175,11 @@ pub fn read_trial(
             "this trial result was made from a different plan; merge results of one plan only",
         ));
     }
-    if file.trial >= plan.trials().len() {
+    let trials = plan
+        .configurations
+        .len()
+        .saturating_mul(plan.folds.folds.len());
+    if file.trial >= trials {
         return Err(Error::input(
             path.display().to_string(),
             format!("trial {} is not in the plan", file.trial),

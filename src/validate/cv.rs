@@ -45,6 +45,36 @@ pub struct CvOptions {
     pub progress: bool,
 }
 
+/// The most fits one cross-validation may ask for (folds x repeats).
+pub const MAX_FOLD_FITS: usize = 10_000;
+
+impl CvOptions {
+    /// Checks the counts without looking at data (the data-dependent check,
+    /// folds against the smallest class, happens when folds are drawn).
+    ///
+    /// # Errors
+    /// `folds < 2`, `repeats == 0`, or more than [`MAX_FOLD_FITS`] fits.
+    pub fn validate(&self) -> Result<()> {
+        if self.folds < 2 {
+            return Err(Error::option("folds", self.folds, "must be at least 2"));
+        }
+        if self.repeats == 0 {
+            return Err(Error::option("repeats", 0, "must be at least 1"));
+        }
+        if self.folds.saturating_mul(self.repeats) > MAX_FOLD_FITS {
+            return Err(Error::option(
+                "repeats",
+                self.repeats,
+                format!(
+                    "asks for {} x {} fits, above the limit of {MAX_FOLD_FITS}; use fewer folds or repeats",
+                    self.folds, self.repeats
+                ),
+            ));
+        }
+        Ok(())
+    }
+}
+
 impl Default for CvOptions {
     fn default() -> Self {
         CvOptions {
@@ -242,9 +272,7 @@ impl FoldPlan {
         cv: &CvOptions,
         rng: &mut R,
     ) -> Result<FoldPlan> {
-        if cv.repeats == 0 {
-            return Err(Error::option("repeats", 0, "must be at least 1"));
-        }
+        cv.validate()?;
         let folds = match data.labels() {
             Some(labels) => repeated_stratified_folds(labels, cv.folds, cv.repeats, rng)?,
             None => {
@@ -257,6 +285,60 @@ impl FoldPlan {
         };
         let seeds = folds.iter().map(|_| rng::child_seed(rng)).collect();
         Ok(FoldPlan { folds, seeds })
+    }
+
+    /// Checks a plan read from a file against a table of `rows` rows: one
+    /// seed per fold, and in each fold sorted, distinct, in-range row
+    /// indices with no row both fitted on and held out, and neither side
+    /// empty. A plan drawn by [`FoldPlan::draw`] always passes.
+    ///
+    /// # Errors
+    /// The first fold that breaks a rule, named.
+    pub fn check(&self, rows: usize) -> Result<()> {
+        if self.seeds.len() != self.folds.len() {
+            return Err(Error::input(
+                "fold plan",
+                format!(
+                    "has {} folds but {} seeds; write the plan again",
+                    self.folds.len(),
+                    self.seeds.len()
+                ),
+            ));
+        }
+        for (i, fold) in self.folds.iter().enumerate() {
+            let bad = |why: &str| {
+                Err(Error::input(
+                    format!("fold plan, fold {i}"),
+                    format!("{why}; write the plan again from the same table"),
+                ))
+            };
+            for (side, list) in [("fitting", &fold.train), ("held-out", &fold.test)] {
+                if list.is_empty() {
+                    return bad(&format!("the {side} rows are empty"));
+                }
+                if list.windows(2).any(|w| w[0] >= w[1]) {
+                    return bad(&format!("the {side} rows are not sorted and distinct"));
+                }
+                if list.last().is_some_and(|&r| r >= rows) {
+                    return bad(&format!("a {side} row is beyond the table's {rows} rows"));
+                }
+            }
+            let (mut a, mut b) = (fold.train.iter().peekable(), fold.test.iter().peekable());
+            while let (Some(&&x), Some(&&y)) = (a.peek(), b.peek()) {
+                match x.cmp(&y) {
+                    std::cmp::Ordering::Less => {
+                        a.next();
+                    }
+                    std::cmp::Ordering::Greater => {
+                        b.next();
+                    }
+                    std::cmp::Ordering::Equal => {
+                        return bad(&format!("row {x} is both fitted on and held out"));
+                    }
+                }
+            }
+        }
+        Ok(())
     }
 }
 

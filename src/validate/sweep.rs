@@ -150,6 +150,9 @@ pub struct Trial {
     pub fold: usize,
 }
 
+/// The most trials (configurations x folds) one sweep plan may hold.
+pub const MAX_TRIALS: usize = 1_000_000;
+
 /// Everything fixed before a sweep runs.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct SweepPlan {
@@ -216,6 +219,46 @@ impl SweepPlan {
         })
     }
 
+    /// Checks a plan read from a file before anything runs: at least one
+    /// configuration, every configuration's options valid, the CV counts
+    /// valid, at most [`MAX_TRIALS`] trials, and one fold seed per fold.
+    /// (The folds' rows are checked against the table by
+    /// [`FoldPlan::check`] when a trial runs.)
+    ///
+    /// # Errors
+    /// The first rule broken, named.
+    pub fn check(&self) -> Result<()> {
+        if self.configurations.is_empty() {
+            return Err(Error::input(
+                "sweep plan",
+                "holds no configurations; write the plan again",
+            ));
+        }
+        self.cv.validate()?;
+        for (name, options) in &self.configurations {
+            options.validate().map_err(|e| {
+                Error::input(format!("sweep plan, configuration {name}"), e.to_string())
+            })?;
+        }
+        let trials = self
+            .configurations
+            .len()
+            .saturating_mul(self.folds.folds.len());
+        if trials > MAX_TRIALS {
+            return Err(Error::input(
+                "sweep plan",
+                format!("asks for {trials} trials, above the limit of {MAX_TRIALS}"),
+            ));
+        }
+        if self.folds.seeds.len() != self.folds.folds.len() || self.folds.folds.is_empty() {
+            return Err(Error::input(
+                "sweep plan",
+                "its fold plan is empty or has a seed count unlike its fold count; write the plan again",
+            ));
+        }
+        Ok(())
+    }
+
     /// Every trial, configuration-major.
     pub fn trials(&self) -> Vec<Trial> {
         let k = self.folds.folds.len();
@@ -247,6 +290,8 @@ impl SweepPlan {
                 "the table's fingerprint differs from the one in the plan; run every trial on the same file the plan was made from",
             ));
         }
+        self.check()?;
+        self.folds.check(data.n_rows())?;
         let trial = self.trials()[index];
         let (_, options) = &self.configurations[trial.configuration];
         run_fold(data, options, &self.folds, trial.fold, false)
