@@ -230,12 +230,7 @@ pub fn cv(a: CvArgs) -> Result<Outcome> {
     let progress = progress_wanted(&a.output);
     let data = read_table(&a.data, &a.table)?;
     let options = a.net.fit_options()?;
-    let cvo = CvOptions {
-        folds: a.folds,
-        repeats: a.repeats,
-        progress,
-        ..Default::default()
-    };
+    let cvo = cv_options(a.folds, a.repeats, progress);
     let result = cross_validate(&data, &options, &cvo, &mut seeded_rng(a.net.seed))?;
     let mut charts = Vec::new();
     if let Some(dir) = &a.charts {
@@ -261,7 +256,17 @@ pub fn cv(a: CvArgs) -> Result<Outcome> {
     Ok(Outcome { json, text })
 }
 
-fn grid(a: &SweepArgs) -> Result<Grid> {
+/// The cross-validation options of `cv` and `sweep`.
+pub(crate) fn cv_options(folds: usize, repeats: usize, progress: bool) -> CvOptions {
+    CvOptions {
+        folds,
+        repeats,
+        progress,
+        ..Default::default()
+    }
+}
+
+pub(crate) fn grid(a: &SweepArgs) -> Result<Grid> {
     let mut g = Grid::default();
     if let Some(v) = &a.grid_hidden {
         g.hidden_layers = args::list("--grid-hidden", v, |s| {
@@ -338,12 +343,7 @@ pub fn sweep(a: SweepArgs) -> Result<Outcome> {
     let base = a.net.fit_options()?;
     let g = grid(&a)?;
     let metric = Metric::from_name(&a.metric)?;
-    let cvo = CvOptions {
-        folds: a.folds,
-        repeats: a.repeats,
-        progress,
-        ..Default::default()
-    };
+    let cvo = cv_options(a.folds, a.repeats, progress);
     let mut rng = seeded_rng(a.net.seed);
     if let Some(path) = &a.write_plan {
         let plan = SweepPlan::new(&data, &base, &g, &cvo, metric, &mut rng)?;

@@ -70,6 +70,51 @@ where
     Ok((outcome, json))
 }
 
+/// Parses `args` (without the program name) and builds every option the
+/// subcommand would use, reading and writing no file: the usage check that
+/// the fuzzer drives (`fuzz/fuzz_targets/cli_args.rs`), and a cheap way to
+/// validate a command line before a long run.
+///
+/// # Errors
+/// The error [`run`] would give for the same arguments before it opens any
+/// file: a usage error, or an option error naming the flag.
+pub fn check_arguments<I, S>(args: I) -> Result<(), Error>
+where
+    I: IntoIterator<Item = S>,
+    S: Into<std::ffi::OsString> + Clone,
+{
+    let argv = std::iter::once(std::ffi::OsString::from("stratanet"))
+        .chain(args.into_iter().map(Into::into));
+    let cli = Cli::try_parse_from(argv)
+        .map_err(|e| Error::input("usage", e.to_string().trim_end().to_string()))?;
+    match &cli.command {
+        Command::Fit(a) => {
+            a.table.csv_options()?;
+            a.net.fit_options()?.validate()?;
+        }
+        Command::Check(a) => {
+            args::missing(&a.missing)?;
+        }
+        Command::Predict(a) => {
+            args::missing(&a.missing)?;
+        }
+        Command::Cv(a) => {
+            a.table.csv_options()?;
+            a.net.fit_options()?.validate()?;
+            commands::cv_options(a.folds, a.repeats, false).validate()?;
+        }
+        Command::Sweep(a) => {
+            a.table.csv_options()?;
+            a.net.fit_options()?.validate()?;
+            commands::grid(a)?;
+            crate::validate::metrics::Metric::from_name(&a.metric)?;
+            commands::cv_options(a.folds, a.repeats, false).validate()?;
+        }
+        Command::SweepTrial(_) | Command::SweepMerge(_) | Command::Demo(_) => {}
+    }
+    Ok(())
+}
+
 /// The binary's entry point: runs, prints, and returns the exit code
 /// (0 on success, 2 on bad input or usage).
 pub fn main() -> i32 {
