@@ -1,0 +1,330 @@
+//! What each fuzz target feeds to stratanet and what it checks.
+//!
+//! Every reader of outside input must either return a value that keeps its
+//! invariants or return an error with a message; it must never panic, loop,
+//! or allocate without bound. A panic anywhere here is a finding. The same
+//! functions replay the seed corpora and every saved crash in `cargo test`
+//! (tests/integration/fuzz_replay.rs), so a fixed crash stays fixed.
+//!
+//! Option choices come from the first bytes of the input, so one corpus
+//! explores the reader's options as well as its text.
+
+use ndarray::Array2;
+use std::path::Path;
+use std::sync::OnceLock;
+use stratanet::data::{CsvOptions, Dataset, Missing, Scaler, Scaling, Target, TargetKind};
+use stratanet::fit::{fit_with_seed, FitOptions, Model};
+use stratanet::model_file::{self, FeatureOptions, TargetColumn};
+use stratanet::validate::{metrics::Metric, CvOptions, Grid, SweepPlan};
+
+const DELIMITERS: [u8; 4] = [b',', b';', b'\t', b'|'];
+
+/// An error must say something, and say where.
+fn check_error(e: &stratanet::Error, name: &str) {
+    let text = e.to_string();
+    assert!(!text.trim().is_empty(), "an empty error message");
+    assert!(
+        !text.contains("NaN"),
+        "an error message shows NaN without saying why: {text}"
+    );
+    let _ = name;
+}
+
+/// The columns of the first line, split loosely (for choosing names).
+fn header_names(text: &str, delimiter: u8) -> Vec<String> {
+    let first = text.lines().next().unwrap_or("");
+    first
+        .split(delimiter as char)
+        .map(|s| {
+            s.trim_matches(|c: char| c == '"' || c.is_whitespace())
+                .to_string()
+        })
+        .collect()
+}
+
+fn pick(names: &[String], byte: u8) -> String {
+    if names.is_empty() {
+        "y".to_string()
+    } else {
+        names[byte as usize % names.len()].clone()
+    }
+}
+
+/// Invariants of a table that was read without error.
+fn check_dataset(d: &Dataset) {
+    let (rows, cols) = d.features.dim();
+    assert!(rows > 0, "a table with no rows was accepted");
+    assert_eq!(
+        d.feature_names.len(),
+        cols,
+        "feature names and columns differ"
+    );
+    assert_eq!(
+        d.columns.iter().map(|c| c.width()).sum::<usize>(),
+        cols,
+        "column encodings and feature width differ"
+    );
+    assert!(
+        d.features.iter().all(|v| v.is_finite()),
+        "a non-finite feature was accepted"
+    );
+    assert_eq!(d.target.len(), rows, "target and features differ in rows");
+    match &d.target {
+        Target::Classes { labels, names } => {
+            assert!(names.len() >= 2, "fewer than two classes were accepted");
+            assert!(
+                labels.iter().all(|&l| l < names.len()),
+                "a label out of range"
+            );
+            assert_eq!(d.class_counts().iter().sum::<usize>(), rows);
+        }
+        Target::Values { values, .. } => {
+            assert!(values.iter().all(|v| v.is_finite()), "a non-finite target");
+        }
+    }
+    let _ = d.fingerprint();
+    for kind in [Scaling::Standardise, Scaling::MinMax] {
+        let s = Scaler::fit(kind, d.x(), None).expect("a finite table scales");
+        let t = s.transform(d.x()).expect("the same width transforms");
+        assert!(
+            t.iter().all(|v| v.is_finite()),
+            "scaling made a non-finite value"
+        );
+    }
+}
+
+/// The CSV table reader, with the target, the missing-cell policy, the
+/// target kind, the delimiter, a categorical column, a dropped column and
+/// an explicit feature list chosen by the first four bytes.
+pub fn csv_table(data: &[u8]) {
+    if data.len() < 4 {
+        return;
+    }
+    let (head, body) = data.split_at(4);
+    let flags = head[1];
+    let delimiter = DELIMITERS[((flags >> 3) & 3) as usize];
+    let lossy = String::from_utf8_lossy(body);
+    let names = header_names(&lossy, delimiter);
+    let target = pick(&names, head[0]);
+    let mut o = CsvOptions::new(&target);
+    o.delimiter = delimiter;
+    if flags & 1 != 0 {
+        o = o.missing(Missing::Drop);
+    }
+    o = o.target_kind(match (flags >> 1) & 3 {
+        1 => TargetKind::Classes,
+        2 => TargetKind::Values,
+        _ => TargetKind::Auto,
+    });
+    if flags & 0x20 != 0 {
+        o = o.categorical(&[&pick(&names, head[2])]);
+    }
+    if flags & 0x40 != 0 {
+        o = o.drop(&[&pick(&names, head[3])]);
+    }
+    if flags & 0x80 != 0 {
+        let chosen: Vec<&str> = names
+            .iter()
+            .filter(|n| **n != target)
+            .take(1 + head[2] as usize % 4)
+            .map(String::as_str)
+            .collect();
+        o = o.features(&chosen);
+    }
+    match o.read_from(body, Path::new("fuzz.csv")) {
+        Ok(d) => check_dataset(&d),
+        Err(e) => check_error(&e, "fuzz.csv"),
+    }
+}
+
+/// A small classifier with a numeric and a text column, fitted once.
+fn fixed_model() -> &'static Model {
+    static MODEL: OnceLock<Model> = OnceLock::new();
+    MODEL.get_or_init(|| {
+        let mut text = String::from("length,colour,width,grade\n");
+        for i in 0..40 {
+            let colour = ["red", "blue", "green"][i % 3];
+            let grade = if i % 2 == 0 { "pass" } else { "fail" };
+            text.push_str(&format!(
+                "{},{colour},{},{grade}\n",
+                i as f64 * 0.25,
+                (i % 7) as f64
+            ));
+        }
+        let data = CsvOptions::new("grade")
+            .read_str(&text, "fixed.csv")
+            .expect("the fixed table reads");
+        let options = FitOptions::default().hidden(&[3]).epochs(5).batch_size(8);
+        fit_with_seed(&data, &options, 7)
+            .expect("the fixed model fits")
+            .model
+    })
+}
+
+/// The prediction-table reader (a CSV read against a saved model's columns),
+/// with `ignore_extra`, the target-column rule, the missing-cell policy and
+/// the delimiter chosen by the first byte; predictions of what it accepts
+/// must be finite.
+pub fn feature_table(data: &[u8]) {
+    let Some((&flags, body)) = data.split_first() else {
+        return;
+    };
+    let model = fixed_model();
+    let options = FeatureOptions::default()
+        .ignore_extra(flags & 1 != 0)
+        .target(match (flags >> 1) & 3 {
+            1 => TargetColumn::IfPresent,
+            2 => TargetColumn::Require,
+            _ => TargetColumn::Skip,
+        })
+        .missing(if flags & 8 != 0 {
+            Missing::Drop
+        } else {
+            Missing::Error
+        })
+        .delimiter(DELIMITERS[((flags >> 4) & 3) as usize]);
+    match options.read_from(model, body, Path::new("fuzz.csv")) {
+        Ok(t) => {
+            assert_eq!(t.features.ncols(), model.network.sizes()[0]);
+            assert_eq!(t.lines.len(), t.n_rows());
+            assert!(t.features.iter().all(|v| v.is_finite()));
+            let p = model
+                .predict_probabilities(t.x())
+                .expect("accepted rows predict");
+            assert!(p.iter().all(|v| v.is_finite() && (0.0..=1.0).contains(v)));
+        }
+        Err(e) => check_error(&e, "fuzz.csv"),
+    }
+}
+
+/// The model-file loader: whatever it accepts must predict finite numbers
+/// on a few rows of zeros, and write back to text that loads to the same
+/// model and writes the same text again.
+pub fn model_file(data: &[u8]) {
+    let Ok(text) = std::str::from_utf8(data) else {
+        return;
+    };
+    match model_file::from_json(text, "fuzz.json") {
+        Ok(m) => {
+            let inputs = m.network.sizes()[0];
+            let x = Array2::<f64>::zeros((3, inputs));
+            if let Ok(out) = m.predict(x.view()) {
+                assert!(
+                    out.iter().all(|v| v.is_finite()),
+                    "a loaded model predicts non-finite"
+                );
+            }
+            let again = model_file::to_json(&m).expect("a loaded model writes");
+            let back = model_file::from_json(&again, "again.json").expect("written text loads");
+            assert_eq!(model_file::to_json(&back).expect("writes"), again);
+        }
+        Err(e) => check_error(&e, "fuzz.json"),
+    }
+}
+
+/// A table and a two-configuration plan on it, made once, for the trial
+/// files to be checked against.
+fn fixed_plan() -> &'static (Dataset, SweepPlan) {
+    static PLAN: OnceLock<(Dataset, SweepPlan)> = OnceLock::new();
+    PLAN.get_or_init(|| {
+        let mut text = String::from("a,b,class\n");
+        for i in 0..30 {
+            text.push_str(&format!(
+                "{},{},{}\n",
+                i % 5,
+                (i * 7) % 11,
+                ["x", "y", "z"][i % 3]
+            ));
+        }
+        let data = CsvOptions::new("class")
+            .read_str(&text, "plan.csv")
+            .expect("reads");
+        let base = FitOptions::default().hidden(&[2]).epochs(2).batch_size(4);
+        let grid = Grid {
+            learning_rates: vec![0.1, 0.2],
+            ..Grid::default()
+        };
+        let cv = CvOptions {
+            folds: 3,
+            ..CvOptions::default()
+        };
+        let mut rng = stratanet::rng::seeded_rng(11);
+        let plan = SweepPlan::new(&data, &base, &grid, &cv, Metric::Accuracy, &mut rng)
+            .expect("the fixed plan draws");
+        (data, plan)
+    })
+}
+
+/// The sweep files: the first byte chooses a plan file (read, checked, and
+/// its folds checked against a table of its claimed size) or a trial file
+/// (read against a fixed plan, then merged as if every trial had returned
+/// it).
+pub fn sweep_files(data: &[u8]) {
+    let Some((&mode, body)) = data.split_first() else {
+        return;
+    };
+    let Ok(text) = std::str::from_utf8(body) else {
+        return;
+    };
+    if mode & 1 == 0 {
+        match stratanet::report::parse_plan(text, Path::new("fuzz.plan")) {
+            Ok((plan, _table)) => {
+                let rows = plan
+                    .folds
+                    .folds
+                    .iter()
+                    .flat_map(|f| f.train.iter().chain(&f.test))
+                    .max()
+                    .map_or(0, |&m| m + 1);
+                if plan.folds.check(rows).is_ok() {
+                    assert!(!plan.trials().is_empty());
+                }
+            }
+            Err(e) => check_error(&e, "fuzz.plan"),
+        }
+    } else {
+        let (data, plan) = fixed_plan();
+        match stratanet::report::parse_trial(text, Path::new("fuzz.trial"), plan) {
+            Ok((index, result, rows, classes)) => {
+                assert!(index < plan.trials().len());
+                let all = vec![result; plan.trials().len()];
+                match plan.merge(rows, &classes, all) {
+                    Ok(table) => assert_eq!(table.rows.len(), plan.configurations.len()),
+                    Err(e) => check_error(&e, "fuzz.trial"),
+                }
+                let _ = data;
+            }
+            Err(e) => check_error(&e, "fuzz.trial"),
+        }
+    }
+}
+
+/// The command-line parser and option checks: NUL-separated arguments,
+/// parsed and turned into every option the subcommand would use, with no
+/// file read or written.
+pub fn cli_args(data: &[u8]) {
+    let args: Vec<std::ffi::OsString> = data
+        .split(|&b| b == 0)
+        .map(|a| {
+            #[cfg(unix)]
+            {
+                use std::os::unix::ffi::OsStrExt;
+                std::ffi::OsStr::from_bytes(a).to_os_string()
+            }
+            #[cfg(not(unix))]
+            {
+                String::from_utf8_lossy(a).into_owned().into()
+            }
+        })
+        .collect();
+    if let Err(e) = stratanet::cli::check_arguments(args) {
+        check_error(&e, "arguments");
+    }
+}
+
+/// The fixed table and plan that trial files are checked against (for
+/// writing seed trial files that carry the right plan fingerprint).
+pub fn fixed_plan_parts() -> (Dataset, SweepPlan) {
+    let (data, plan) = fixed_plan();
+    (data.clone(), plan.clone())
+}
