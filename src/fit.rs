@@ -267,7 +267,26 @@ impl Model {
                 x.dim(),
             ));
         }
-        self.scaler.transform(x)
+        let z = self.scaler.transform(x)?;
+        if let Some(i) = z.iter().position(|v| !v.is_finite()) {
+            let (row, col) = (i / z.ncols(), i % z.ncols());
+            let value = x[[row, col]];
+            return Err(Error::input(
+                format!(
+                    "predicting row {} (counting from 1), feature {}",
+                    row + 1,
+                    self.feature_names[col]
+                ),
+                if value.is_finite() {
+                    format!("the value {value:e} is so far outside the range the model was fitted on that scaling overflows; check the row's values and units")
+                } else {
+                    format!(
+                        "the value {value} is not a finite number; remove or fill the row first"
+                    )
+                },
+            ));
+        }
+        Ok(z)
     }
 
     /// Network outputs for raw (unscaled) feature rows.

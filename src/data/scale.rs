@@ -40,6 +40,17 @@ pub struct Scaler {
     pub scale: Vec<f64>,
 }
 
+/// The mean and population standard deviation of `n` values given by
+/// `each`, in two passes (mean, then squared deviations).
+fn mean_and_sd(n: usize, each: impl Fn(&mut dyn FnMut(f64))) -> (f64, f64) {
+    let mut sum = 0.0;
+    each(&mut |v| sum += v);
+    let mean = sum / n as f64;
+    let mut ss = 0.0;
+    each(&mut |v| ss += (v - mean) * (v - mean));
+    (mean, (ss / n as f64).sqrt())
+}
+
 impl Scaler {
     /// Fits a scaler of `kind` on the given rows of `x` (all rows when `rows` is `None`).
     ///
@@ -75,8 +86,32 @@ impl Scaler {
                         .for_each(|((s, v), m)| *s += (v - m) * (v - m))
                 });
                 for j in 0..d {
-                    let sd = (ss[j] / n as f64).sqrt();
-                    offset[j] = mean[j];
+                    let (mut m, mut sd) = (mean[j], (ss[j] / n as f64).sqrt());
+                    // Near the limits of f64 the sums overflow (values near
+                    // 1e308) or the squares underflow (subnormal spreads):
+                    // redo that column on values divided by its largest
+                    // magnitude, which lie in [-1, 1], and scale back.
+                    // Ordinary columns never take this path, so their
+                    // numbers are unchanged.
+                    let varies = || {
+                        let (mut lo, mut hi) = (f64::INFINITY, f64::NEG_INFINITY);
+                        each_row(&mut |row| {
+                            lo = lo.min(row[j]);
+                            hi = hi.max(row[j]);
+                        });
+                        lo < hi
+                    };
+                    if !m.is_finite() || !sd.is_finite() || (sd == 0.0 && varies()) {
+                        let mut big = 0.0f64;
+                        each_row(&mut |row| big = big.max(row[j].abs()));
+                        if big > 0.0 && big.is_finite() {
+                            let (ms, sds) =
+                                mean_and_sd(n, |f| each_row(&mut |row| f(row[j] / big)));
+                            m = ms * big;
+                            sd = sds * big;
+                        }
+                    }
+                    offset[j] = m;
                     scale[j] = if sd > 0.0 && sd.is_finite() { sd } else { 1.0 };
                 }
             }
@@ -91,6 +126,15 @@ impl Scaler {
                 });
                 for j in 0..d {
                     let range = hi[j] - lo[j];
+                    if range.is_infinite() {
+                        return Err(Error::input(
+                            format!("min-max scaling of feature column {}", j + 1),
+                            format!(
+                                "its values span {:e} to {:e}, a range beyond the largest double; divide the column by a power of ten first, or use standardise",
+                                lo[j], hi[j]
+                            ),
+                        ));
+                    }
                     offset[j] = lo[j];
                     scale[j] = if range > 0.0 && range.is_finite() {
                         range
@@ -123,7 +167,14 @@ impl Scaler {
         }
         for mut row in x.axis_iter_mut(Axis(0)) {
             for ((v, o), s) in row.iter_mut().zip(&self.offset).zip(&self.scale) {
-                *v = (*v - o) / s;
+                let scaled = (*v - o) / s;
+                // `v - o` overflows only for values near the limits of f64;
+                // dividing first keeps them finite.
+                *v = if scaled.is_finite() {
+                    scaled
+                } else {
+                    *v / s - o / s
+                };
             }
         }
         Ok(())

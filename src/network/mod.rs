@@ -379,14 +379,35 @@ impl Network {
     /// When `x` has the wrong number of columns.
     pub fn predict(&self, x: ArrayView2<'_, f64>) -> Result<Array2<f64>> {
         self.check_inputs(x)?;
-        Ok(match self.precision {
+        let out = match self.precision {
             Precision::F64 => {
                 crate::train::engine::Params::<f64>::from_network(self).predict(x, self)
             }
             Precision::F32 => {
                 crate::train::engine::Params::<f32>::from_network(self).predict(x, self)
             }
-        })
+        };
+        // A finite input can still overflow a layer (a value far outside
+        // the training range): say so rather than return NaN or infinity.
+        if let Some((row, _)) = out
+            .rows()
+            .into_iter()
+            .enumerate()
+            .find(|(_, r)| r.iter().any(|v| !v.is_finite()))
+        {
+            let largest = x.row(row).iter().fold(0.0f64, |m, v| m.max(v.abs()));
+            return Err(Error::input(
+                format!("predicting row {} (counting from 1)", row + 1),
+                format!(
+                    "the network's output overflowed ({precision} arithmetic); the row's largest input in magnitude is {largest:e} after scaling, far outside the range the model was fitted on; check the row's values and units",
+                    precision = match self.precision {
+                        Precision::F64 => "f64",
+                        Precision::F32 => "f32",
+                    }
+                ),
+            ));
+        }
+        Ok(out)
     }
 
     /// The predicted class of each row: the arg-max output for softmax, and
@@ -442,6 +463,16 @@ impl Network {
                 "network inputs",
                 (x.nrows(), self.n_inputs()),
                 x.dim(),
+            ));
+        }
+        if let Some(i) = x.iter().position(|v| !v.is_finite()) {
+            let (row, col) = (i / x.ncols().max(1), i % x.ncols().max(1));
+            return Err(Error::input(
+                format!("network inputs, row {} column {}", row + 1, col + 1),
+                format!(
+                    "the value {} is not a finite number; remove or fill the row first",
+                    x[[row, col]]
+                ),
             ));
         }
         Ok(())

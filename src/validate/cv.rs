@@ -381,6 +381,7 @@ pub fn cross_validate_with_plan(
     plan: &FoldPlan,
 ) -> Result<CrossValidation> {
     options.validate()?;
+    plan.check(data.n_rows())?;
     let run = |k: usize| -> Result<FoldResult> { run_fold(data, options, plan, k, cv.progress) };
     let results: Vec<Result<FoldResult>> = if cv.parallel {
         (0..plan.folds.len()).into_par_iter().map(run).collect()

@@ -9,6 +9,7 @@ mod demo_data;
 mod determinism;
 mod fuzz_replay;
 mod gradients;
+mod hostile;
 mod iris;
 mod model_files;
 mod portable;

@@ -1,0 +1,306 @@
+//! Hostile numbers and hostile files: each case either works correctly or
+//! stops with an error that says what is wrong and what would fix it; no
+//! metric is NaN without a reason (RELIABILITY.md lists them with figures).
+//!
+//! The limits of f64 are from IEEE 754-2019 (binary64: largest finite
+//! 1.7976931348623157e308, smallest normal 2.2250738585072014e-308,
+//! smallest subnormal 4.9e-324).
+
+use ndarray::Array2;
+use stratanet::data::{CsvOptions, Dataset, Scaler, Scaling};
+use stratanet::fit::{fit_with_seed, FitOptions};
+use stratanet::rng::{seeded_rng, uniform};
+use stratanet::validate::{cross_validate, CvOptions, Metric, Scores};
+use stratanet::ErrorKind;
+
+/// A two-class table whose class is `x0 + x1 > 0`, with extra columns.
+fn table_with(extra: &[(&str, fn(usize, f64) -> f64)], rows: usize, seed: u64) -> String {
+    let mut rng = seeded_rng(seed);
+    let mut text = String::from("x0,x1");
+    for (name, _) in extra {
+        text.push(',');
+        text.push_str(name);
+    }
+    text.push_str(",class\n");
+    for i in 0..rows {
+        let a = uniform(&mut rng, -1.0, 1.0);
+        let b = uniform(&mut rng, -1.0, 1.0);
+        text.push_str(&format!("{a},{b}"));
+        for (_, f) in extra {
+            text.push_str(&format!(",{:e}", f(i, uniform(&mut rng, -1.0, 1.0))));
+        }
+        text.push_str(if a + b > 0.0 { ",high\n" } else { ",low\n" });
+    }
+    text
+}
+
+fn quick() -> FitOptions {
+    FitOptions::default()
+        .hidden(&[6])
+        .epochs(60)
+        .learning_rate(0.05)
+        .batch_size(16)
+}
+
+fn all_finite(v: &Array2<f64>) -> bool {
+    v.iter().all(|x| x.is_finite())
+}
+
+#[test]
+fn values_near_the_limits_of_f64_are_scaled_and_fitted() {
+    let text = table_with(
+        &[
+            ("huge", |_, u| 1.7e308 * u),
+            ("tiny", |_, u| 2.3e-308 * u),
+            ("subnormal", |i, _| (i % 7) as f64 * 4.9e-324),
+            ("constant", |_, _| 1.0e300),
+        ],
+        300,
+        1,
+    );
+    let data = CsvOptions::new("class")
+        .read_str(&text, "limits.csv")
+        .unwrap();
+    // Every column scales to finite values of ordinary size.
+    let s = Scaler::fit(Scaling::Standardise, data.x(), None).unwrap();
+    let z = s.transform(data.x()).unwrap();
+    assert!(all_finite(&z));
+    for (j, name) in data.feature_names.iter().enumerate() {
+        let col = z.column(j);
+        let big = col.iter().fold(0.0f64, |m, v| m.max(v.abs()));
+        if name == "constant" {
+            assert_eq!(big, 0.0, "a constant column becomes zeros");
+        } else {
+            assert!(big > 0.5 && big < 10.0, "{name}: largest |z| = {big}");
+        }
+    }
+    let fitted = fit_with_seed(&data, &quick(), 3).unwrap();
+    let p = fitted.model.predict_probabilities(data.x()).unwrap();
+    assert!(all_finite(&p));
+    let accuracy = Scores::of(&fitted.model, &data)
+        .unwrap()
+        .0
+        .value(Metric::Accuracy)
+        .unwrap();
+    assert!(
+        accuracy > 0.9,
+        "accuracy {accuracy} with the signal columns intact"
+    );
+}
+
+#[test]
+fn min_max_scaling_beyond_the_range_of_f64_is_refused_by_name() {
+    let x = ndarray::array![[1.0, 1.7e308], [2.0, -1.7e308]];
+    let err = Scaler::fit(Scaling::MinMax, x.view(), None).unwrap_err();
+    assert_eq!(
+        err.to_string(),
+        "min-max scaling of feature column 2: its values span -1.7e308 to 1.7e308, a range beyond the largest double; divide the column by a power of ten first, or use standardise"
+    );
+}
+
+#[test]
+fn values_that_overflow_f64_are_refused_with_line_and_column() {
+    let err = CsvOptions::new("class")
+        .read_str("x,class\n1,a\n1e309,b\n", "overflow.csv")
+        .unwrap_err();
+    let text = err.to_string();
+    assert!(
+        text.contains("overflow.csv") && text.contains("line 3") && text.contains("1e309"),
+        "{text}"
+    );
+}
+
+#[test]
+fn one_positive_in_ten_thousand_fits_and_says_what_is_undefined() {
+    let mut text = String::from("x0,x1,class\n");
+    let mut rng = seeded_rng(5);
+    for i in 0..10_000 {
+        let (a, b) = (uniform(&mut rng, -1.0, 1.0), uniform(&mut rng, -1.0, 1.0));
+        let class = if i == 4321 { "defect" } else { "good" };
+        text.push_str(&format!("{a},{b},{class}\n"));
+    }
+    let data = CsvOptions::new("class")
+        .read_str(&text, "rare.csv")
+        .unwrap();
+    assert_eq!(data.class_counts(), [1, 9999]);
+    // The one positive goes to the training rows; fitting works.
+    let options = quick().epochs(5).batch_size(256);
+    let fitted = fit_with_seed(&data, &options, 9).unwrap();
+    let (scores, _) = Scores::of(&fitted.model, &data).unwrap();
+    for metric in scores.metrics() {
+        let v = scores.value(metric).unwrap();
+        assert!(v.is_finite(), "{} is {v}", metric.name());
+    }
+    // Precision of the rare class is undefined when it is never predicted:
+    // the score says so rather than showing NaN.
+    let notes = scores.notes().join("\n");
+    assert!(!notes.contains("NaN"), "{notes}");
+    // Five folds cannot each hold out a row of a class of one.
+    let err =
+        cross_validate(&data, &options, &CvOptions::default(), &mut seeded_rng(1)).unwrap_err();
+    let text = err.to_string();
+    assert!(
+        matches!(err.kind(), ErrorKind::InvalidOption { .. })
+            && text.contains("folds")
+            && text.contains('1'),
+        "{text}"
+    );
+}
+
+#[test]
+fn a_diverging_learning_rate_stops_with_the_epoch_and_the_rate() {
+    let text = table_with(&[], 200, 2);
+    let data = CsvOptions::new("class")
+        .read_str(&text, "diverge.csv")
+        .unwrap();
+    let options = FitOptions::default()
+        .hidden(&[8])
+        .activation(stratanet::network::Activation::Relu)
+        .learning_rate(1e12)
+        .optimiser(stratanet::train::Optimiser::Sgd)
+        .early_stopping(None)
+        .validation_fraction(0.0)
+        .epochs(50);
+    let err = fit_with_seed(&data, &options, 4).unwrap_err();
+    let text = err.to_string();
+    assert!(
+        matches!(err.kind(), ErrorKind::Diverged { .. }),
+        "expected divergence, got {text}"
+    );
+    assert!(
+        text.starts_with("training diverged at epoch ")
+            && text.contains("learning_rate 1000000000000"),
+        "{text}"
+    );
+}
+
+#[test]
+fn five_hundred_classes_fit_predict_and_cross_validate() {
+    let classes = 500;
+    let rows = classes * 4;
+    let mut rng = seeded_rng(8);
+    let x = Array2::from_shape_fn((rows, 3), |_| uniform(&mut rng, -1.0, 1.0));
+    let labels: Vec<usize> = (0..rows).map(|i| i % classes).collect();
+    let names: Vec<String> = (0..classes).map(|c| format!("type-{c:03}")).collect();
+    let data = Dataset::classification(x, labels, names).unwrap();
+    let options = FitOptions::default()
+        .hidden(&[16])
+        .epochs(3)
+        .batch_size(64)
+        .validation_fraction(0.0)
+        .early_stopping(None);
+    let fitted = fit_with_seed(&data, &options, 2).unwrap();
+    assert_eq!(fitted.model.network.sizes(), [3, 16, 500]);
+    let p = fitted.model.predict_probabilities(data.x()).unwrap();
+    assert_eq!(p.ncols(), 500);
+    for row in p.rows() {
+        let sum: f64 = row.sum();
+        assert!((sum - 1.0).abs() < 1e-12 && row.iter().all(|v| v.is_finite()));
+    }
+    let cv = CvOptions {
+        folds: 2,
+        ..CvOptions::default()
+    };
+    let result = cross_validate(&data, &options, &cv, &mut seeded_rng(3)).unwrap();
+    for s in &result.summary {
+        assert!(s.summary.mean.is_finite(), "{}", s.metric.name());
+    }
+}
+
+#[test]
+fn an_input_far_outside_the_training_range_is_an_error_not_nan() {
+    let text = table_with(&[], 200, 6);
+    let data = CsvOptions::new("class")
+        .read_str(&text, "train.csv")
+        .unwrap();
+    let options = quick().activation(stratanet::network::Activation::Relu);
+    let model = fit_with_seed(&data, &options, 1).unwrap().model;
+    let far = ndarray::array![[0.5, 0.5], [1.7e308, -1.7e308]];
+    match model.predict_probabilities(far.view()) {
+        Ok(p) => assert!(all_finite(&p), "{p:?}"),
+        Err(e) => {
+            let text = e.to_string();
+            assert_eq!(
+                text,
+                "predicting row 2 (counting from 1), feature x0: the value 1.7e308 is so far outside the range the model was fitted on that scaling overflows; check the row's values and units"
+            );
+        }
+    }
+    // Finite after scaling, yet large enough to overflow a rectifier layer.
+    let overflow = ndarray::array![[1e306, 1e306]];
+    match model.predict(overflow.view()) {
+        Ok(p) => assert!(all_finite(&p), "{p:?}"),
+        Err(e) => assert!(
+            e.to_string()
+                .starts_with("predicting row 1 (counting from 1): the network's output overflowed (f64 arithmetic)"),
+            "{e}"
+        ),
+    }
+    let nan = ndarray::array![[f64::NAN, 0.0]];
+    let err = model.predict(nan.view()).unwrap_err();
+    assert!(
+        err.to_string()
+            == "predicting row 1 (counting from 1), feature x0: the value NaN is not a finite number; remove or fill the row first",
+        "{err}"
+    );
+}
+
+/// Hostile sweep plans: a hand-edited plan whose folds name rows beyond
+/// the table, or that asks for an absurd number of trials, is refused
+/// before anything runs.
+#[test]
+fn edited_sweep_plans_are_refused_before_any_trial_runs() {
+    use stratanet::validate::{Grid, SweepPlan};
+    let text = table_with(&[], 60, 7);
+    let data = CsvOptions::new("class")
+        .read_str(&text, "plan.csv")
+        .unwrap();
+    let grid = Grid {
+        learning_rates: vec![0.01, 0.1],
+        ..Grid::default()
+    };
+    let cv = CvOptions {
+        folds: 3,
+        ..CvOptions::default()
+    };
+    let plan = SweepPlan::new(
+        &data,
+        &quick(),
+        &grid,
+        &cv,
+        Metric::Accuracy,
+        &mut seeded_rng(1),
+    )
+    .unwrap();
+    plan.check().unwrap();
+    plan.folds.check(data.n_rows()).unwrap();
+
+    let mut beyond = plan.clone();
+    beyond.folds.folds[1].test.push(60);
+    let err = beyond.run_trial(&data, 1).unwrap_err();
+    assert_eq!(
+        err.to_string(),
+        "fold plan, fold 1: a held-out row is beyond the table's 60 rows; write the plan again from the same table"
+    );
+    let mut overlap = plan.clone();
+    let row = overlap.folds.folds[0].test[0];
+    overlap.folds.folds[0].train.push(row);
+    overlap.folds.folds[0].train.sort_unstable();
+    assert!(overlap
+        .folds
+        .check(60)
+        .unwrap_err()
+        .to_string()
+        .contains(&format!("row {row} is both fitted on and held out")));
+
+    let mut huge = plan.clone();
+    let fold = huge.folds.folds[0].clone();
+    huge.folds.folds = vec![fold; 1001];
+    huge.folds.seeds = vec![1; 1001];
+    huge.configurations = vec![huge.configurations[0].clone(); 1000];
+    assert!(huge
+        .check()
+        .unwrap_err()
+        .to_string()
+        .contains("asks for 1001000 trials, above the limit of 1000000"));
+}
