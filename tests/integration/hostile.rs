@@ -14,7 +14,10 @@ use stratanet::validate::{cross_validate, CvOptions, Metric, Scores};
 use stratanet::ErrorKind;
 
 /// A two-class table whose class is `x0 + x1 > 0`, with extra columns.
-fn table_with(extra: &[(&str, fn(usize, f64) -> f64)], rows: usize, seed: u64) -> String {
+/// An extra column: its name and its value from the row index and a uniform draw.
+type Column = (&'static str, fn(usize, f64) -> f64);
+
+fn table_with(extra: &[Column], rows: usize, seed: u64) -> String {
     let mut rng = seeded_rng(seed);
     let mut text = String::from("x0,x1");
     for (name, _) in extra {
