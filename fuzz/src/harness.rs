@@ -23,10 +23,8 @@ const DELIMITERS: [u8; 4] = [b',', b';', b'\t', b'|'];
 fn check_error(e: &stratanet::Error, name: &str) {
     let text = e.to_string();
     assert!(!text.trim().is_empty(), "an empty error message");
-    assert!(
-        !text.contains("NaN"),
-        "an error message shows NaN without saying why: {text}"
-    );
+    // (Messages echo the input, so they may hold any text, "NaN" included:
+    // an early version of this check flagged a column named "NaNacc".)
     let _ = name;
 }
 

@@ -281,24 +281,74 @@ pub(crate) fn header_names(record: &csv::StringRecord, path: &Path) -> Result<Ve
     Ok(names)
 }
 
+/// The most bytes one record (the header or a row, quoted newlines
+/// included) may take: 64 MiB. The CSV parser buffers a whole record before
+/// its cells can be checked, so without this bound a file with one endless
+/// line (or one endless quoted cell) would be read into memory whole.
+pub const MAX_RECORD_BYTES: u64 = 64 << 20;
+
+/// A reader that refuses to go more than [`MAX_RECORD_BYTES`] past the end
+/// of the last complete record; [`next_row`] and [`read_header_record`]
+/// mark each record's end.
+pub(crate) struct Guarded<R> {
+    inner: R,
+    read: u64,
+    record_end: std::cell::Cell<(u64, u64)>,
+}
+
+impl<R> Guarded<R> {
+    fn mark(&self, byte: u64, line: u64) {
+        self.record_end.set((byte, line));
+    }
+}
+
+impl<R: Read> Read for Guarded<R> {
+    fn read(&mut self, buf: &mut [u8]) -> std::io::Result<usize> {
+        let (end, line) = self.record_end.get();
+        if self.read.saturating_sub(end) > MAX_RECORD_BYTES {
+            return Err(std::io::Error::new(
+                std::io::ErrorKind::InvalidData,
+                format!(
+                    "the record starting on line {line} runs past {} MiB without ending (the limit for one row); the file is not a table of rows, or a quote is never closed",
+                    MAX_RECORD_BYTES >> 20
+                ),
+            ));
+        }
+        let n = self.inner.read(buf)?;
+        self.read += n as u64;
+        Ok(n)
+    }
+}
+
+/// Notes where the record just read ends.
+fn mark_record<R: Read>(rdr: &csv::Reader<Guarded<R>>) {
+    let p = rdr.position();
+    rdr.get_ref().mark(p.byte(), p.line());
+}
+
 /// A CSV reader with stratanet's settings: the header is read as a record
-/// (see [`read_header_record`]) and rows may be ragged (so that
-/// [`next_row`] can report them by line).
-pub(crate) fn csv_reader<R: Read>(reader: R, delimiter: u8) -> csv::Reader<R> {
+/// (see [`read_header_record`]), rows may be ragged (so that [`next_row`]
+/// can report them by line), and no record may exceed [`MAX_RECORD_BYTES`].
+pub(crate) fn csv_reader<R: Read>(reader: R, delimiter: u8) -> csv::Reader<Guarded<R>> {
     csv::ReaderBuilder::new()
         .has_headers(false)
         .flexible(true)
         .delimiter(delimiter)
-        .from_reader(reader)
+        .from_reader(Guarded {
+            inner: reader,
+            read: 0,
+            record_end: std::cell::Cell::new((0, 0)),
+        })
 }
 
 /// Reads the header record into `record`; an empty file is an error.
 pub(crate) fn read_header_record<R: Read>(
-    rdr: &mut csv::Reader<R>,
+    rdr: &mut csv::Reader<Guarded<R>>,
     record: &mut csv::StringRecord,
     path: &Path,
 ) -> Result<()> {
     let got = rdr.read_record(record).map_err(|e| csv_error(path, e))?;
+    mark_record(rdr);
     if !got || (record.len() == 1 && record[0].trim().trim_start_matches('\u{feff}').is_empty()) {
         return Err(Error::new(ErrorKind::EmptyFile {
             path: path.to_path_buf(),
@@ -311,13 +361,15 @@ pub(crate) fn read_header_record<R: Read>(
 /// its 1-based line (`None` at the end of the file). A row whose cell count
 /// is not `width` is an error.
 pub(crate) fn next_row<R: Read>(
-    rdr: &mut csv::Reader<R>,
+    rdr: &mut csv::Reader<Guarded<R>>,
     record: &mut csv::StringRecord,
     path: &Path,
     width: usize,
 ) -> Result<Option<u64>> {
     loop {
-        match rdr.read_record(record) {
+        let got = rdr.read_record(record);
+        mark_record(rdr);
+        match got {
             Ok(true) => {}
             Ok(false) => return Ok(None),
             Err(e) => return Err(csv_error(path, e)),

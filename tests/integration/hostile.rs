@@ -307,3 +307,56 @@ fn edited_sweep_plans_are_refused_before_any_trial_runs() {
         .to_string()
         .contains("asks for 1001000 trials, above the limit of 1000000"));
 }
+
+// ------------------------------------------------------------- huge inputs
+
+#[test]
+fn a_ten_megabyte_cell_is_refused_by_line_and_column() {
+    let mut text = String::from("x,class\n1,a\n");
+    text.push_str(&"7".repeat(10_000_000));
+    text.push_str(",b\n");
+    let err = CsvOptions::new("class")
+        .read_str(&text, "wide-cell.csv")
+        .unwrap_err();
+    let msg = err.to_string();
+    assert!(
+        msg.contains("wide-cell.csv") && msg.contains("line 3") && msg.contains("10000000 bytes"),
+        "{msg}"
+    );
+}
+
+#[test]
+fn a_header_of_one_hundred_thousand_columns_is_refused() {
+    let header: Vec<String> = (0..100_000).map(|i| format!("c{i}")).collect();
+    let text = format!("{},class\n", header.join(","));
+    let err = CsvOptions::new("class")
+        .read_str(&text, "many-columns.csv")
+        .unwrap_err();
+    assert_eq!(
+        err.to_string(),
+        "many-columns.csv: line 1: the header has 100001 columns, more than the limit of 10000; select the columns you need before reading"
+    );
+}
+
+/// One endless line (200 MiB of a digit, never a newline) or an endless
+/// quoted cell is refused after at most the record limit of 64 MiB has been
+/// buffered, not read into memory whole.
+#[test]
+fn an_endless_record_is_refused_at_the_record_limit() {
+    use std::io::Read;
+    let endless_line = b"x,class\n1,a\n"
+        .chain(std::io::repeat(b'7').take(200 << 20))
+        .chain(&b",b\n"[..]);
+    let err = CsvOptions::new("class")
+        .read_from(endless_line, std::path::Path::new("endless.csv"))
+        .unwrap_err();
+    assert_eq!(
+        err.to_string(),
+        "endless.csv: reading failed: the record starting on line 3 runs past 64 MiB without ending (the limit for one row); the file is not a table of rows, or a quote is never closed"
+    );
+    let endless_quote = b"x,class\n\"".chain(std::io::repeat(b'\n').take(200 << 20));
+    let err = CsvOptions::new("class")
+        .read_from(endless_quote, std::path::Path::new("quote.csv"))
+        .unwrap_err();
+    assert!(err.to_string().contains("runs past 64 MiB"), "{err}");
+}
