@@ -47,10 +47,7 @@
 //!   what was left out.
 
 use std::fmt;
-use std::fs;
-use std::io::Write as _;
 use std::path::Path;
-use std::sync::atomic::{AtomicU64, Ordering};
 
 use crate::{Error, Result};
 
@@ -160,40 +157,12 @@ impl Chart {
     /// # Ok::<(), stratanet::Error>(())
     /// ```
     pub fn save(&self, path: impl AsRef<Path>) -> Result<()> {
-        // One temporary name per call, so two threads saving to the same
-        // folder never share a temporary file.
-        static COUNTER: AtomicU64 = AtomicU64::new(0);
+        // The crate's one atomic writer: a temporary file in the same
+        // folder, synced, then renamed over `path`.
         let path = path.as_ref();
-        let file_name = path
-            .file_name()
-            .ok_or_else(|| {
-                Error::io(
-                    path,
-                    "writing the chart",
-                    std::io::Error::new(std::io::ErrorKind::InvalidInput, "the path names no file"),
-                )
-            })?
-            .to_string_lossy()
-            .into_owned();
-        let folder = match path.parent() {
-            Some(parent) if !parent.as_os_str().is_empty() => parent.to_path_buf(),
-            _ => Path::new(".").to_path_buf(),
-        };
-        let temporary = folder.join(format!(
-            ".{file_name}.{}.{}.tmp",
-            std::process::id(),
-            COUNTER.fetch_add(1, Ordering::Relaxed)
-        ));
-        let written = (|| {
-            let mut file = fs::File::create(&temporary)?;
-            file.write_all(self.svg.as_bytes())?;
-            file.sync_all()?;
-            drop(file);
-            fs::rename(&temporary, path)
-        })();
-        written.map_err(|source| {
-            let _ = fs::remove_file(&temporary);
-            Error::io(path, "writing the chart", source)
+        crate::atomic::write_file(path, |w| {
+            w.write_all(self.svg.as_bytes())
+                .map_err(|e| Error::io(path, "writing the chart", e))
         })
     }
 
@@ -413,6 +382,7 @@ pub(crate) fn class_names<S: AsRef<str>>(what: &str, names: &[S]) -> Result<Vec<
 #[cfg(test)]
 mod tests {
     use super::*;
+    use std::fs;
 
     #[test]
     fn axis_labels_show_units() {

@@ -12,6 +12,7 @@ mod gradients;
 mod hostile;
 mod iris;
 mod model_files;
+mod nothing_lost;
 mod portable;
 mod properties;
 mod support;
