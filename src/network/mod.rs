@@ -38,6 +38,8 @@ pub trait Real:
     fn from_f64(v: f64) -> Self;
     /// Converts to `f64` (exact).
     fn as_f64(self) -> f64;
+    /// The same slice, when `Self` is `f64` (no copy needed); `None` otherwise.
+    fn borrow_f64(s: &[f64]) -> Option<&[Self]>;
     /// `e^self` from the pure-Rust `libm` (the same bits on every machine).
     fn exp_det(self) -> Self;
     /// `tanh(self)` from `libm`.
@@ -114,6 +116,10 @@ impl Real for f64 {
         v
     }
     #[inline]
+    fn borrow_f64(s: &[f64]) -> Option<&[Self]> {
+        Some(s)
+    }
+    #[inline]
     fn as_f64(self) -> f64 {
         self
     }
@@ -130,6 +136,10 @@ impl Real for f32 {
     #[inline]
     fn from_f64(v: f64) -> Self {
         v as f32
+    }
+    #[inline]
+    fn borrow_f64(_: &[f64]) -> Option<&[Self]> {
+        None
     }
     #[inline]
     fn as_f64(self) -> f64 {

@@ -282,10 +282,16 @@ fn check_xy(
 }
 
 /// The rows of `a` as one row-major vector in `F`.
-fn to_real<F: Real>(a: ArrayView2<'_, f64>) -> Vec<F> {
-    match a.as_slice() {
-        Some(s) => s.iter().map(|&v| F::from_f64(v)).collect(),
-        None => a.iter().map(|&v| F::from_f64(v)).collect(),
+/// The matrix as a row-major slice of `F`: borrowed when it already is
+/// one (f64 in standard layout), so a large table is not copied again.
+fn to_real<'a, F: Real>(a: ArrayView2<'a, f64>) -> std::borrow::Cow<'a, [F]> {
+    use std::borrow::Cow;
+    match a.to_slice() {
+        Some(s) => match F::borrow_f64(s) {
+            Some(same) => Cow::Borrowed(same),
+            None => Cow::Owned(s.iter().map(|&v| F::from_f64(v)).collect()),
+        },
+        None => Cow::Owned(a.iter().map(|&v| F::from_f64(v)).collect()),
     }
 }
 

@@ -23,7 +23,7 @@ use super::metrics::{ClassificationMetrics, Metric, RegressionMetrics};
 use super::stats::Summary;
 use crate::data::{kfold, repeated_stratified_folds, Dataset, Fold, Target};
 use crate::error::{Error, Result};
-use crate::fit::{fit_with_seed, FitOptions, Model};
+use crate::fit::{FitOptions, Model};
 use crate::rng;
 use crate::train::TrainingReport;
 use ndarray::Array2;
@@ -426,7 +426,7 @@ pub(crate) fn run_fold(
             ));
         }
     }
-    let fitted = fit_with_seed(&train, options, plan.seeds[k])
+    let fitted = crate::fit::fit_owned(train, options, plan.seeds[k])
         .map_err(|e| Error::input(format!("cross-validation fold {}", k + 1), e.to_string()))?;
     let (scores, predictions) = Scores::of(&fitted.model, &test)?;
     if progress {
