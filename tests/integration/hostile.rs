@@ -360,3 +360,53 @@ fn an_endless_record_is_refused_at_the_record_limit() {
         .unwrap_err();
     assert!(err.to_string().contains("runs past 64 MiB"), "{err}");
 }
+
+// ------------------------------------------------------------- hostile names
+
+/// Names come from the table and travel in model files, charts and pages,
+/// but never become paths: the chart files have fixed names, and markup or
+/// path tricks in a column or class name are shown as text.
+#[test]
+fn path_tricks_and_markup_in_names_stay_text() {
+    let hostile_class = "</text><script>alert(1)</script>";
+    let mut text = String::from("\"<b>width</b>\",../../etc/passwd,class\n");
+    let mut rng = seeded_rng(12);
+    for i in 0..120 {
+        let (a, b) = (uniform(&mut rng, -1.0, 1.0), uniform(&mut rng, -1.0, 1.0));
+        let class = if a > 0.0 {
+            hostile_class
+        } else {
+            "..\\..\\boot.ini"
+        };
+        text.push_str(&format!("{a},{b},\"{class}\"\n"));
+        let _ = i;
+    }
+    let data = CsvOptions::new("class")
+        .read_str(&text, "names.csv")
+        .unwrap();
+    let fitted = fit_with_seed(&data, &quick(), 1).unwrap();
+    let dir = crate::support::scratch("hostile-names");
+    let written = stratanet::report::fit_charts(&data, &fitted, &dir).unwrap();
+    assert!(!written.is_empty());
+    for path in &written {
+        assert_eq!(path.parent(), Some(dir.as_path()), "{}", path.display());
+        let svg = std::fs::read_to_string(path).unwrap();
+        let doc = roxmltree::Document::parse(&svg)
+            .unwrap_or_else(|e| panic!("{} is not well-formed XML: {e}", path.display()));
+        assert!(
+            doc.descendants().all(|n| n.tag_name().name() != "script"),
+            "{} gained a script element",
+            path.display()
+        );
+    }
+    let html = fitted.to_html();
+    assert!(
+        !html.contains("<script>") && !html.contains("<b>width"),
+        "{html}"
+    );
+    // The names survive a model file unchanged, as data.
+    let json = stratanet::model_file::to_json(&fitted.model).unwrap();
+    let back = stratanet::model_file::from_json(&json, "names.json").unwrap();
+    assert_eq!(back.target_names, fitted.model.target_names);
+    assert_eq!(back.feature_names, ["<b>width</b>", "../../etc/passwd"]);
+}
