@@ -5,7 +5,7 @@
 //! generator: the fold plan (stratified k-fold for classes, repeated when
 //! asked; plain k-fold for numbers), then one seed per fold. Each fold then
 //! depends only on its rows and its seed, so folds can run on any number of
-//! threads in any order and give the same numbers. Inside a fold, [`fit`]
+//! threads in any order and give the same numbers. Inside a fold, [`fit`](crate::fit::fit)
 //! sees only the fold's training rows: the validation split, the scaler and
 //! early stopping are all fitted there, and the held-out rows are touched
 //! only to be scored. (The one-hot level set is read from the whole table
