@@ -10,7 +10,9 @@ pub(crate) mod csv;
 pub mod scale;
 pub mod split;
 
-pub use self::csv::{CsvOptions, Missing, TargetKind, MAX_COLUMNS, MAX_FIELD_BYTES, MAX_RECORD_BYTES};
+pub use self::csv::{
+    CsvOptions, Missing, TargetKind, MAX_COLUMNS, MAX_FIELD_BYTES, MAX_RECORD_BYTES,
+};
 pub use scale::{Scaler, Scaling};
 pub use split::{
     kfold, random_split, repeated_stratified_folds, stratified_folds, stratified_split, Fold, Split,

@@ -181,6 +181,19 @@ fn first_non_finite<'a>(values: impl IntoIterator<Item = &'a f64>) -> Option<usi
         .map(|i| i + 1)
 }
 
+/// The first (1-based) value that is not finite in the network's float
+/// type: an f32 network rounds its weights to f32 on loading, so a finite
+/// f64 beyond f32's range would become infinite.
+fn first_unstorable<'a>(
+    values: impl IntoIterator<Item = &'a f64>,
+    f32_network: bool,
+) -> Option<usize> {
+    values
+        .into_iter()
+        .position(|&v| !v.is_finite() || (f32_network && !(v as f32).is_finite()))
+        .map(|i| i + 1)
+}
+
 fn first_repeat(names: &[String]) -> Option<&str> {
     let mut seen = HashSet::new();
     names
@@ -307,6 +320,7 @@ impl FileV1 {
                 net.layers.len()
             ));
         }
+        let f32_network = matches!(net.precision, PrecisionV1::F32);
         for (k, layer) in net.layers.iter().enumerate() {
             let (n_in, n_out) = (sizes[k], sizes[k + 1]);
             let at = format!("network: layer {}", k + 1);
@@ -324,10 +338,15 @@ impl FileV1 {
                         row.len()
                     ));
                 }
-                if let Some(c) = first_non_finite(row) {
+                if let Some(c) = first_unstorable(row, f32_network) {
                     return Err(format!(
-                        "{at}: \"weights\" row {}, entry {c} is not a finite number",
-                        r + 1
+                        "{at}: \"weights\" row {}, entry {c} is not a finite number{}",
+                        r + 1,
+                        if f32_network {
+                            " in f32 (the network's precision)"
+                        } else {
+                            ""
+                        }
                     ));
                 }
             }
@@ -337,8 +356,15 @@ impl FileV1 {
                     layer.biases.len()
                 ));
             }
-            if let Some(c) = first_non_finite(&layer.biases) {
-                return Err(format!("{at}: \"biases\" entry {c} is not a finite number"));
+            if let Some(c) = first_unstorable(&layer.biases, f32_network) {
+                return Err(format!(
+                    "{at}: \"biases\" entry {c} is not a finite number{}",
+                    if f32_network {
+                        " in f32 (the network's precision)"
+                    } else {
+                        ""
+                    }
+                ));
             }
         }
         match (net.hidden_activation, net.leaky_relu_slope) {
