@@ -34,6 +34,18 @@ pub(crate) fn progress_wanted(o: &OutputArgs) -> bool {
     !o.quiet && (o.progress || std::io::stderr().is_terminal())
 }
 
+/// Parses `args` (without the program name); a usage error carries clap's text.
+fn parse<I, S>(args: I) -> Result<Cli, Error>
+where
+    I: IntoIterator<Item = S>,
+    S: Into<std::ffi::OsString> + Clone,
+{
+    let argv = std::iter::once(std::ffi::OsString::from("stratanet"))
+        .chain(args.into_iter().map(Into::into));
+    Cli::try_parse_from(argv)
+        .map_err(|e| Error::input("usage", e.to_string().trim_end().to_string()))
+}
+
 /// Parses `args` (without the program name) and runs the subcommand.
 ///
 /// # Errors
@@ -43,10 +55,7 @@ where
     I: IntoIterator<Item = S>,
     S: Into<std::ffi::OsString> + Clone,
 {
-    let argv = std::iter::once(std::ffi::OsString::from("stratanet"))
-        .chain(args.into_iter().map(Into::into));
-    let cli = Cli::try_parse_from(argv)
-        .map_err(|e| Error::input("usage", e.to_string().trim_end().to_string()))?;
+    let cli = parse(args)?;
     let json = match &cli.command {
         Command::Fit(a) => a.output.json,
         Command::Check(a) => a.output.json,
@@ -83,10 +92,7 @@ where
     I: IntoIterator<Item = S>,
     S: Into<std::ffi::OsString> + Clone,
 {
-    let argv = std::iter::once(std::ffi::OsString::from("stratanet"))
-        .chain(args.into_iter().map(Into::into));
-    let cli = Cli::try_parse_from(argv)
-        .map_err(|e| Error::input("usage", e.to_string().trim_end().to_string()))?;
+    let cli = parse(args)?;
     match &cli.command {
         Command::Fit(a) => {
             a.table.csv_options()?;

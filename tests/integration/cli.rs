@@ -367,3 +367,19 @@ fn demo_writes_the_charts_and_summary() {
         );
     }
 }
+
+/// The usage check builds every option without touching a file: the
+/// README's command lines pass, a bad option is named (the file named in
+/// them need not exist).
+#[test]
+fn check_arguments_validates_without_reading_files() {
+    let ok = |line: &str| stratanet::cli::check_arguments(line.split(' '));
+    ok("fit absent.csv --target verdict --drop part_id --hidden 12 --out m.json").unwrap();
+    ok("sweep absent.csv --target y --grid-hidden 8,16,32 --grid-learning-rate 0.003,0.01")
+        .unwrap();
+    let err = ok("fit absent.csv --target y --learning-rate 0").unwrap_err();
+    assert!(err.to_string().contains("learning_rate"), "{err}");
+    let err = ok("cv absent.csv --target y --folds 1").unwrap_err();
+    assert!(err.to_string().contains("folds"), "{err}");
+    assert!(ok("fit").unwrap_err().to_string().starts_with("usage: "));
+}
