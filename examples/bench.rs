@@ -19,9 +19,10 @@ use std::io::Write;
 use std::path::{Path, PathBuf};
 use std::time::Instant;
 use stratanet::data::Dataset;
+use stratanet::network::Arithmetic;
 use stratanet::network::{Activation, Head, Init, Layer, Network, Precision};
 use stratanet::rng::{seeded_rng, shuffle, uniform, uniform01, ChaCha8Rng};
-use stratanet::train::{mean_loss, train_arrays, Arithmetic, Loss, Optimiser, TrainingOptions};
+use stratanet::train::{mean_loss, train_arrays, Loss, Optimiser, TrainingOptions};
 use stratanet::validate::{cross_validate, CvOptions};
 use stratanet::FitOptions;
 

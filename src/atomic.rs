@@ -100,6 +100,14 @@ fn sync_folder(path: &Path) {
     let _ = path;
 }
 
+/// Writes text to `path` atomically.
+pub(crate) fn write_text(path: &Path, text: &str) -> Result<()> {
+    write_file(path, |w| {
+        w.write_all(text.as_bytes())
+            .map_err(|e| Error::io(path, "writing", e))
+    })
+}
+
 /// Refuses to write `output` when it is the same file as one of `inputs`
 /// (compared by canonical path, and on Unix also by device and inode, so
 /// that hard links are caught). Inputs that do not exist are skipped; an

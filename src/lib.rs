@@ -18,7 +18,6 @@
 #![warn(missing_docs)]
 #![doc(test(attr(deny(warnings))))]
 
-pub mod analysis;
 mod atomic;
 pub mod chart;
 pub mod cli;
@@ -29,7 +28,7 @@ pub mod model_file;
 pub mod network;
 pub mod notebook;
 pub mod prelude;
-pub mod report;
+mod report;
 pub mod rng;
 pub mod train;
 pub mod validate;
@@ -41,3 +40,4 @@ pub use fit::{fit, fit_with_seed, FitOptions, Fitted, Model, Provenance};
 pub use model_file::{load as load_model, save as save_model};
 pub use ndarray;
 pub use rand;
+pub use report::{analyse, fit_csv, Analysis};

@@ -265,7 +265,7 @@ pub fn sweep_files(data: &[u8]) {
         return;
     };
     if mode & 1 == 0 {
-        match stratanet::report::parse_plan(text, Path::new("fuzz.plan")) {
+        match stratanet::validate::sweep_files::parse_plan(text, Path::new("fuzz.plan")) {
             Ok((plan, _table)) => {
                 let rows = plan
                     .folds
@@ -282,7 +282,7 @@ pub fn sweep_files(data: &[u8]) {
         }
     } else {
         let (data, plan) = fixed_plan();
-        match stratanet::report::parse_trial(text, Path::new("fuzz.trial"), plan) {
+        match stratanet::validate::sweep_files::parse_trial(text, Path::new("fuzz.trial"), plan) {
             Ok((index, result, rows, classes)) => {
                 assert!(index < plan.trials().len());
                 let all = vec![result; plan.trials().len()];

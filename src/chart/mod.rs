@@ -464,3 +464,17 @@ mod tests {
         assert!(err.to_string().contains("no-such-folder"), "{err}");
     }
 }
+
+/// The two features a decision map shows by default: the first two numeric
+/// source columns of the table.
+pub(crate) fn decision_features(data: &crate::data::Dataset) -> Option<(String, String)> {
+    let numeric: Vec<&str> = data
+        .columns
+        .iter()
+        .filter_map(|c| match c {
+            crate::data::ColumnEncoding::Numeric { name } => Some(name.as_str()),
+            _ => None,
+        })
+        .collect();
+    (numeric.len() >= 2).then(|| (numeric[0].to_string(), numeric[1].to_string()))
+}

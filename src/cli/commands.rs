@@ -4,13 +4,15 @@ use super::args::{
     self, CheckArgs, CvArgs, DemoArgs, FitArgs, PredictArgs, SweepArgs, SweepMergeArgs,
     SweepTrialArgs,
 };
+use super::charts;
 use super::{progress_wanted, Outcome};
 use crate::data::Dataset;
 use crate::error::{Error, Result};
+use crate::fit::CAUTION;
 use crate::fit::{fit as fit_model, FitOptions};
 use crate::model_file::{self, FeatureOptions, TargetColumn};
-use crate::report;
 use crate::rng::seeded_rng;
+use crate::validate::sweep_files;
 use crate::validate::{
     cross_validate, metrics::Metric, sweep as run_sweep, CrossValidation, CvOptions, FoldResult,
     Grid, Scores, SweepPlan, SweepTable,
@@ -108,7 +110,7 @@ pub fn fit(a: FitArgs) -> Result<Outcome> {
     model_file::save(&fitted.model, &a.out)?;
     let mut charts = Vec::new();
     if let Some(dir) = &a.charts {
-        charts = report::fit_charts(&data, &fitted, dir)?;
+        charts = charts::fit_charts(&data, &fitted, dir)?;
     }
     let r = &fitted.report;
     let last = r.history.last();
@@ -197,7 +199,7 @@ pub fn check(a: CheckArgs) -> Result<Outcome> {
         a.model.display()
     );
     scores_text(&scores, &mut text);
-    let _ = writeln!(text, "Caution: {}", report::CAUTION);
+    let _ = writeln!(text, "Caution: {}", CAUTION);
     Ok(Outcome { json, text })
 }
 
@@ -209,19 +211,19 @@ pub fn predict(a: PredictArgs) -> Result<Outcome> {
         .missing(args::missing(&a.missing)?)
         .read(&model, &a.data)?;
     let rows = table.n_rows();
-    report::write_predictions(&model, &table, &a.out)?;
+    model_file::write_predictions(&model, &table, &a.out)?;
     let json = json!({
         "command": "predict",
         "model": a.model,
         "data": a.data,
         "rows": rows,
         "out": a.out,
-        "columns": report::prediction_columns(&model),
+        "columns": model_file::prediction_columns(&model),
     });
     let text = format!(
         "wrote predictions for {rows} rows to {}\nCaution: {}",
         a.out.display(),
-        report::CAUTION
+        CAUTION
     );
     Ok(Outcome { json, text })
 }
@@ -234,7 +236,7 @@ pub fn cv(a: CvArgs) -> Result<Outcome> {
     let result = cross_validate(&data, &options, &cvo, &mut seeded_rng(a.net.seed))?;
     let mut charts = Vec::new();
     if let Some(dir) = &a.charts {
-        charts = report::cv_charts(&data, &result, dir)?;
+        charts = charts::cv_charts(&data, &result, dir)?;
     }
     let mut json = cv_json(&result);
     json["command"] = json!("cv");
@@ -347,7 +349,7 @@ pub fn sweep(a: SweepArgs) -> Result<Outcome> {
     let mut rng = seeded_rng(a.net.seed);
     if let Some(path) = &a.write_plan {
         let plan = SweepPlan::new(&data, &base, &g, &cvo, metric, &mut rng)?;
-        report::write_plan(&plan, &a.table.csv_options()?, path)?;
+        sweep_files::write_plan(&plan, &a.table.csv_options()?, path)?;
         let trials = plan.trials().len();
         let json = json!({"command": "sweep", "plan": path, "trials": trials, "configurations": plan.configurations.len()});
         let text = format!(
@@ -386,11 +388,11 @@ pub fn sweep(a: SweepArgs) -> Result<Outcome> {
 }
 
 pub fn sweep_trial(a: SweepTrialArgs) -> Result<Outcome> {
-    let (plan, table) = report::read_plan(&a.plan)?;
+    let (plan, table) = sweep_files::read_plan(&a.plan)?;
     crate::atomic::refuse_overwrite_input(&a.out, &[&a.data, &a.plan])?;
     let data = table.read(&a.data)?;
     let result = plan.run_trial(&data, a.trial)?;
-    report::write_trial(
+    sweep_files::write_trial(
         &plan,
         a.trial,
         data.n_rows(),
@@ -406,12 +408,12 @@ pub fn sweep_trial(a: SweepTrialArgs) -> Result<Outcome> {
 }
 
 pub fn sweep_merge(a: SweepMergeArgs) -> Result<Outcome> {
-    let (plan, _) = report::read_plan(&a.plan)?;
+    let (plan, _) = sweep_files::read_plan(&a.plan)?;
     let mut results: Vec<Option<FoldResult>> = vec![None; plan.trials().len()];
     let mut rows = 0;
     let mut classes = Vec::new();
     for path in &a.results {
-        let (index, r, n, c) = report::read_trial(path, &plan)?;
+        let (index, r, n, c) = sweep_files::read_trial(path, &plan)?;
         if results[index].is_some() {
             return Err(Error::input(
                 path.display().to_string(),
@@ -449,6 +451,6 @@ pub fn sweep_merge(a: SweepMergeArgs) -> Result<Outcome> {
 pub fn demo(a: DemoArgs) -> Result<Outcome> {
     let progress = progress_wanted(&a.output);
     let out: PathBuf = a.out.clone();
-    let summary = report::demo(&out, a.seed, progress)?;
+    let summary = super::demo::demo(&out, a.seed, progress)?;
     Ok(summary)
 }

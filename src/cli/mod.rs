@@ -10,7 +10,9 @@
 // show them as help text), so this module allows undocumented fields.
 #[allow(missing_docs)]
 pub mod args;
+mod charts;
 mod commands;
+mod demo;
 
 pub(crate) use commands::cv_json;
 

@@ -98,9 +98,11 @@
 //! column and class names are only compared with CSV headers and cells.
 
 mod features;
+mod predictions;
 mod schema;
 
 pub use features::{FeatureOptions, FeatureTable, TargetColumn};
+pub use predictions::{prediction_columns, write_predictions};
 pub use schema::{FORMAT_NAME, FORMAT_VERSION};
 
 use crate::error::{Error, Result};

@@ -72,7 +72,7 @@ impl Activation {
 
     /// `f(z)` for one value.
     #[inline]
-    pub fn value<F: Real>(self, z: F) -> F {
+    pub(crate) fn value<F: Real>(self, z: F) -> F {
         match self {
             Activation::Identity => z,
             Activation::Sigmoid => sigmoid(z),
@@ -96,7 +96,7 @@ impl Activation {
 
     /// `f'(z)` written in terms of the output `a = f(z)`.
     #[inline]
-    pub fn derivative_from_output<F: Real>(self, a: F) -> F {
+    pub(crate) fn derivative_from_output<F: Real>(self, a: F) -> F {
         match self {
             Activation::Identity => F::one(),
             Activation::Sigmoid => a * (F::one() - a),
@@ -117,19 +117,11 @@ impl Activation {
             }
         }
     }
-
-    /// Applies `f` in place.
-    pub fn apply<F: Real>(self, z: &mut [F]) {
-        match self {
-            Activation::Identity => {}
-            _ => z.iter_mut().for_each(|v| *v = self.value(*v)),
-        }
-    }
 }
 
 /// The logistic sigmoid, evaluated without overflow for either sign.
 #[inline]
-pub fn sigmoid<F: Real>(z: F) -> F {
+pub(crate) fn sigmoid<F: Real>(z: F) -> F {
     if z >= F::zero() {
         F::one() / (F::one() + (-z).exp_det())
     } else {
@@ -162,7 +154,7 @@ impl Head {
     }
 
     /// Applies the head to one row of output sums in place.
-    pub fn apply_row<F: Real>(self, z: &mut [F]) {
+    pub(crate) fn apply_row<F: Real>(self, z: &mut [F]) {
         match self {
             Head::Identity => {}
             Head::Logistic => z.iter_mut().for_each(|v| *v = sigmoid(*v)),

@@ -12,147 +12,23 @@
 //! matrix product.
 
 mod activation;
+mod forward;
 mod init;
+pub(crate) mod kernels;
+mod real;
 
-pub use activation::{sigmoid, Activation, Head};
+pub(crate) use activation::sigmoid;
+pub use activation::{Activation, Head};
+pub(crate) use forward::{Forward, Params, EVAL_CHUNK};
 pub use init::Init;
+pub use kernels::Arithmetic;
+pub(crate) use real::Real;
 
 use crate::error::{Error, Result};
 use crate::rng;
 use ndarray::{Array1, Array2, ArrayView2, Axis};
 use rand::RngCore;
 use serde::{Deserialize, Serialize};
-
-/// The float types a network can compute in.
-pub trait Real:
-    num_traits::Float
-    + ndarray::LinalgScalar
-    + ndarray::ScalarOperand
-    + Send
-    + Sync
-    + std::fmt::Debug
-    + std::fmt::Display
-    + 'static
-{
-    /// Converts from `f64` (rounding to nearest for `f32`).
-    fn from_f64(v: f64) -> Self;
-    /// Converts to `f64` (exact).
-    fn as_f64(self) -> f64;
-    /// The same slice, when `Self` is `f64` (no copy needed); `None` otherwise.
-    fn borrow_f64(s: &[f64]) -> Option<&[Self]>;
-    /// `e^self` from the pure-Rust `libm` (the same bits on every machine).
-    fn exp_det(self) -> Self;
-    /// `tanh(self)` from `libm`.
-    fn tanh_det(self) -> Self;
-    /// `ln(self)` from `libm`.
-    fn ln_det(self) -> Self;
-    /// `ln(1 + self)` from `libm`.
-    fn ln_1p_det(self) -> Self;
-    /// `c = a b` through `matrixmultiply` (`m x k` times `k x n`, strides in
-    /// elements).
-    ///
-    /// # Safety
-    /// The pointers and strides must address valid `m x k`, `k x n` and
-    /// `m x n` matrices, `c` not overlapping the others.
-    #[allow(clippy::too_many_arguments)]
-    #[doc(hidden)]
-    unsafe fn gemm(
-        m: usize,
-        k: usize,
-        n: usize,
-        a: *const Self,
-        rsa: isize,
-        csa: isize,
-        b: *const Self,
-        rsb: isize,
-        csb: isize,
-        c: *mut Self,
-        rsc: isize,
-        csc: isize,
-    );
-}
-
-macro_rules! real_math {
-    ($exp:path, $tanh:path, $ln:path, $ln1p:path, $gemm:path) => {
-        #[inline]
-        fn exp_det(self) -> Self {
-            $exp(self)
-        }
-        #[inline]
-        fn tanh_det(self) -> Self {
-            $tanh(self)
-        }
-        #[inline]
-        fn ln_det(self) -> Self {
-            $ln(self)
-        }
-        #[inline]
-        fn ln_1p_det(self) -> Self {
-            $ln1p(self)
-        }
-        #[inline]
-        unsafe fn gemm(
-            m: usize,
-            k: usize,
-            n: usize,
-            a: *const Self,
-            rsa: isize,
-            csa: isize,
-            b: *const Self,
-            rsb: isize,
-            csb: isize,
-            c: *mut Self,
-            rsc: isize,
-            csc: isize,
-        ) {
-            $gemm(m, k, n, 1.0, a, rsa, csa, b, rsb, csb, 0.0, c, rsc, csc)
-        }
-    };
-}
-
-impl Real for f64 {
-    #[inline]
-    fn from_f64(v: f64) -> Self {
-        v
-    }
-    #[inline]
-    fn borrow_f64(s: &[f64]) -> Option<&[Self]> {
-        Some(s)
-    }
-    #[inline]
-    fn as_f64(self) -> f64 {
-        self
-    }
-    real_math!(
-        libm::exp,
-        libm::tanh,
-        libm::log,
-        libm::log1p,
-        matrixmultiply::dgemm
-    );
-}
-
-impl Real for f32 {
-    #[inline]
-    fn from_f64(v: f64) -> Self {
-        v as f32
-    }
-    #[inline]
-    fn borrow_f64(_: &[f64]) -> Option<&[Self]> {
-        None
-    }
-    #[inline]
-    fn as_f64(self) -> f64 {
-        self as f64
-    }
-    real_math!(
-        libm::expf,
-        libm::tanhf,
-        libm::logf,
-        libm::log1pf,
-        matrixmultiply::sgemm
-    );
-}
 
 /// The float type a network trains and predicts in.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize, Deserialize)]
@@ -390,12 +266,8 @@ impl Network {
     pub fn predict(&self, x: ArrayView2<'_, f64>) -> Result<Array2<f64>> {
         self.check_inputs(x)?;
         let out = match self.precision {
-            Precision::F64 => {
-                crate::train::engine::Params::<f64>::from_network(self).predict(x, self)
-            }
-            Precision::F32 => {
-                crate::train::engine::Params::<f32>::from_network(self).predict(x, self)
-            }
+            Precision::F64 => Params::<f64>::from_network(self).predict(x, self),
+            Precision::F32 => Params::<f32>::from_network(self).predict(x, self),
         };
         // A finite input can still overflow a layer (a value far outside
         // the training range): say so rather than return NaN or infinity.
@@ -458,12 +330,8 @@ impl Network {
             ));
         }
         Ok(match self.precision {
-            Precision::F64 => {
-                crate::train::engine::Params::<f64>::from_network(self).hidden(x, self, layer)
-            }
-            Precision::F32 => {
-                crate::train::engine::Params::<f32>::from_network(self).hidden(x, self, layer)
-            }
+            Precision::F64 => Params::<f64>::from_network(self).hidden(x, self, layer),
+            Precision::F32 => Params::<f32>::from_network(self).hidden(x, self, layer),
         })
     }
 

@@ -23,10 +23,11 @@
 //! stencil a step near 1e-3 balances truncation and rounding. Always
 //! computed in f64.
 
-use super::engine::{Backprop, Params};
+use super::engine::Backprop;
 use super::Loss;
 use crate::error::{Error, Result};
 use crate::network::{Activation, Head, Network};
+use crate::network::{Arithmetic, Params};
 use ndarray::ArrayView2;
 use serde::{Deserialize, Serialize};
 
@@ -99,7 +100,7 @@ pub fn check_gradients(
     let (act, head) = (network.activation(), network.head());
     let m = x.nrows();
     let mut params = Params::<f64>::from_network(network);
-    let mut bp = Backprop::new(&params, m, super::Arithmetic::Portable);
+    let mut bp = Backprop::new(&params, m, Arithmetic::Portable);
     let rows: Vec<usize> = (0..m).collect();
     let xf: Vec<f64> = x.iter().copied().collect();
     let yf: Vec<f64> = y.iter().copied().collect();

@@ -13,21 +13,20 @@
 //! `validation_loss` is the mean loss over the validation rows after the
 //! epoch. Neither includes the penalty terms.
 
-pub(crate) mod engine;
+mod engine;
 mod gradcheck;
-mod kernels;
 mod loss;
 mod options;
 
 pub use gradcheck::{check_gradients, GradientCheck};
 pub use loss::Loss;
-pub use options::{Arithmetic, EarlyStopping, Optimiser, Schedule, TrainingOptions};
+pub use options::{EarlyStopping, Optimiser, Schedule, TrainingOptions};
 
 use crate::data::{Dataset, Target};
 use crate::error::{Error, ErrorKind, Result};
-use crate::network::{Head, Network, Precision, Real};
+use crate::network::{Arithmetic, Forward, Head, Network, Params, Precision, Real, EVAL_CHUNK};
 use crate::rng;
-use engine::{evaluate, Backprop, Forward, Params};
+use engine::{evaluate, Backprop};
 use ndarray::{Array2, ArrayView2};
 
 use rand::RngCore;
@@ -324,8 +323,8 @@ fn run<F: Real, R: RngCore + ?Sized>(
     let batch = options.batch_size;
     let arithmetic = options.arithmetic;
     let mut bp = Backprop::new(&params, batch, arithmetic);
-    let mut eval_ws = validation
-        .map(|(vx, _)| Forward::new(&params, engine::EVAL_CHUNK.min(vx.nrows()), arithmetic));
+    let mut eval_ws =
+        validation.map(|(vx, _)| Forward::new(&params, EVAL_CHUNK.min(vx.nrows()), arithmetic));
     let mut state = State {
         first: vec![F::zero(); params.data.len()],
         second: match options.optimiser {
@@ -594,11 +593,7 @@ fn mean_loss_in<F: Real>(
     let params = Params::<F>::from_network(network);
     // The mean loss of a finished network uses the portable kernel, as
     // predictions do.
-    let mut ws = Forward::new(
-        &params,
-        engine::EVAL_CHUNK.min(x.nrows()),
-        Arithmetic::Portable,
-    );
+    let mut ws = Forward::new(&params, EVAL_CHUNK.min(x.nrows()), Arithmetic::Portable);
     let (total, _) = evaluate(
         &params,
         &mut ws,

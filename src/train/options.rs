@@ -46,6 +46,7 @@
 //! epoch are restored.
 
 use crate::error::{Error, Result};
+use crate::network::Arithmetic;
 use crate::train::Loss;
 use serde::{Deserialize, Serialize};
 
@@ -139,46 +140,6 @@ impl Schedule {
                 min_rate + (base - min_rate) * (1.0 + libm::cos(phase)) / 2.0
             }
         }
-    }
-}
-
-/// How the engine's sums are computed.
-///
-/// Both modes are deterministic on one machine for any number of threads
-/// (no product inside one network is split across threads). They differ
-/// across machines:
-///
-/// - `Fast` lets wide layers use `matrixmultiply`'s kernels, which it picks
-///   at run time from the CPU (AVX-512, AVX2 with fused multiply-add, or
-///   SSE2); the last bits of a result can differ between CPUs.
-/// - `Portable` computes every sum with the engine's own loops in a fixed
-///   order, without fused multiply-add, so a seed gives the same bits on any
-///   x86-64 machine (and any IEEE-754 target). Each product is the naive
-///   loop
-///
-///   ```text
-///   z[i][j]  = (sum over k ascending, from 0, of x[i][k] * w[k][j]) + b[j]
-///   gw[k][j] =  sum over rows i ascending, from 0, of a[i][k] * d[i][j]
-///   gb[j]    =  sum over rows i ascending, from 0, of d[i][j]
-///   p[i][k]  =  sum over j ascending, from 0, of d[i][j] * w[k][j]
-///   ```
-///   (vectorised across `j` or `k`, which changes no sum). Transcendental
-///   functions (`exp`, `tanh`, `ln`, `ln_1p`) come from the pure-Rust `libm`
-///   crate in both modes, never from the platform's C library.
-#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize, Deserialize)]
-#[serde(rename_all = "snake_case")]
-pub enum Arithmetic {
-    /// The fastest kernels for this CPU (the default).
-    #[default]
-    Fast,
-    /// Fixed-order sums, bit-identical across machines.
-    Portable,
-}
-
-impl Arithmetic {
-    /// Is this the fast mode (the default)?
-    pub fn is_fast(&self) -> bool {
-        *self == Arithmetic::Fast
     }
 }
 

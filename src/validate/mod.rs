@@ -21,6 +21,7 @@ pub mod compare;
 pub mod cv;
 pub mod holdout;
 pub mod sweep;
+pub mod sweep_files;
 
 pub use compare::{compare_configurations, compare_models, Comparison};
 pub use cv::{

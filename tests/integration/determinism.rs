@@ -66,7 +66,7 @@ fn thread_count_does_not_change_the_result() {
     assert_eq!(a.restarts, b.restarts);
 }
 
-fn first_losses(arithmetic: stratanet::train::Arithmetic) -> Vec<String> {
+fn first_losses(arithmetic: stratanet::network::Arithmetic) -> Vec<String> {
     let data = blobs();
     let mut options = FitOptions::default()
         .hidden(&[4])
@@ -89,7 +89,7 @@ fn first_losses(arithmetic: stratanet::train::Arithmetic) -> Vec<String> {
 fn value_stability_of_the_first_losses() {
     let pinned: [&str; 5] = PINNED;
     assert_eq!(
-        first_losses(stratanet::train::Arithmetic::Fast),
+        first_losses(stratanet::network::Arithmetic::Fast),
         pinned,
         "the seeded training losses changed"
     );
@@ -100,7 +100,7 @@ fn value_stability_of_the_first_losses() {
 fn value_stability_of_the_first_losses_in_portable_mode() {
     let pinned: [&str; 5] = PINNED_PORTABLE;
     assert_eq!(
-        first_losses(stratanet::train::Arithmetic::Portable),
+        first_losses(stratanet::network::Arithmetic::Portable),
         pinned,
         "the seeded portable training losses changed"
     );

@@ -149,7 +149,8 @@ fn write_seeds() {
     fs::create_dir_all(&scratch).unwrap();
     let (data, plan) = fixed_plan_for_seeds();
     let table = stratanet::data::CsvOptions::new("class");
-    stratanet::report::write_plan(&plan, &table, &scratch.join("plan.jsonl")).unwrap();
+    stratanet::validate::sweep_files::write_plan(&plan, &table, &scratch.join("plan.jsonl"))
+        .unwrap();
     let mut bytes = vec![0u8];
     bytes.extend(fs::read(scratch.join("plan.jsonl")).unwrap());
     fs::write(sf.join("plan"), bytes).unwrap();
@@ -157,8 +158,15 @@ fn write_seeds() {
         let result = plan.run_trial(&data, trial).unwrap();
         let path = scratch.join(format!("trial-{trial}.json"));
         let classes = data.class_names().unwrap().to_vec();
-        stratanet::report::write_trial(&plan, trial, data.n_rows(), &classes, &result, &path)
-            .unwrap();
+        stratanet::validate::sweep_files::write_trial(
+            &plan,
+            trial,
+            data.n_rows(),
+            &classes,
+            &result,
+            &path,
+        )
+        .unwrap();
         let mut bytes = vec![1u8];
         bytes.extend(fs::read(&path).unwrap());
         fs::write(sf.join(format!("trial-{trial}")), bytes).unwrap();

@@ -386,10 +386,38 @@ fn path_tricks_and_markup_in_names_stay_text() {
         .unwrap();
     let fitted = fit_with_seed(&data, &quick(), 1).unwrap();
     let dir = crate::support::scratch("hostile-names");
-    let written = stratanet::report::fit_charts(&data, &fitted, &dir).unwrap();
+    let table = dir.join("names.csv");
+    std::fs::write(&table, &text).unwrap();
+    let charts = dir.join("charts");
+    let run = std::process::Command::new(env!("CARGO_BIN_EXE_stratanet"))
+        .args([
+            "fit",
+            table.to_str().unwrap(),
+            "--target",
+            "class",
+            "--epochs",
+            "40",
+        ])
+        .arg("--out")
+        .arg(dir.join("model.json"))
+        .arg("--charts")
+        .arg(&charts)
+        .arg("--quiet")
+        .output()
+        .unwrap();
+    assert!(
+        run.status.success(),
+        "{}",
+        String::from_utf8_lossy(&run.stderr)
+    );
+    let mut written: Vec<std::path::PathBuf> = std::fs::read_dir(&charts)
+        .unwrap()
+        .map(|e| e.unwrap().path())
+        .collect();
+    written.sort();
     assert!(!written.is_empty());
     for path in &written {
-        assert_eq!(path.parent(), Some(dir.as_path()), "{}", path.display());
+        assert_eq!(path.parent(), Some(charts.as_path()), "{}", path.display());
         let svg = std::fs::read_to_string(path).unwrap();
         let doc = roxmltree::Document::parse(&svg)
             .unwrap_or_else(|e| panic!("{} is not well-formed XML: {e}", path.display()));

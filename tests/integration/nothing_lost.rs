@@ -7,7 +7,7 @@
 //! 512-byte blocks). The previous file must be intact afterwards.
 #![cfg(unix)]
 
-use crate::support::scratch;
+use crate::support::{demo_parts, scratch};
 use std::fs;
 use std::os::unix::process::ExitStatusExt;
 use std::path::Path;
@@ -57,7 +57,7 @@ fn killed_by_the_size_limit(out: &Output) {
 
 fn setup(name: &str) -> std::path::PathBuf {
     let dir = scratch(name);
-    fs::write(dir.join("parts.csv"), stratanet::report::DEMO_PARTS_CSV).unwrap();
+    fs::write(dir.join("parts.csv"), demo_parts()).unwrap();
     dir
 }
 
@@ -118,7 +118,7 @@ fn predictions_and_charts_killed_midway_leave_the_previous_files() {
     assert!(stratanet(&dir, &fit).status.success());
 
     // Predictions: the first table is short, the second (600 rows) is not.
-    let head: String = stratanet::report::DEMO_PARTS_CSV
+    let head: String = demo_parts()
         .lines()
         .take(4)
         .map(|l| format!("{l}\n"))
@@ -143,8 +143,8 @@ fn predictions_and_charts_killed_midway_leave_the_previous_files() {
         String::from_utf8_lossy(&out.stderr)
     );
     let before = fs::read(dir.join("predictions.csv")).unwrap();
-    let many: String = stratanet::report::DEMO_PARTS_CSV.to_string()
-        + &stratanet::report::DEMO_PARTS_CSV
+    let many: String = demo_parts()
+        + &demo_parts()
             .lines()
             .skip(1)
             .map(|l| format!("{l}\n"))

@@ -2,10 +2,11 @@
 //! same bits as the naive loops documented on `Arithmetic::Portable`.
 
 use ndarray::{Array1, Array2};
+use stratanet::network::Arithmetic;
 use stratanet::network::{Activation, Head, Init, Layer, Network};
 use stratanet::prelude::*;
 use stratanet::rng::uniform;
-use stratanet::train::{train_arrays, Arithmetic, Loss};
+use stratanet::train::{train_arrays, Loss};
 use stratanet::train::{Optimiser, TrainingOptions};
 
 fn bits(net: &Network) -> Vec<u64> {

@@ -30,3 +30,13 @@ pub fn scratch(name: &str) -> PathBuf {
     std::fs::create_dir_all(&dir).expect("scratch folder");
     dir
 }
+
+/// The synthetic demo table `demo-data/parts.csv`, as text.
+pub fn demo_parts() -> String {
+    std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR"))
+            .join("demo-data")
+            .join("parts.csv"),
+    )
+    .expect("demo-data/parts.csv")
+}

@@ -25,8 +25,48 @@
 //! Neither path splits a product across threads: results never depend on
 //! the thread count.
 
-use crate::network::Real;
-use crate::train::Arithmetic;
+use super::Real;
+use serde::{Deserialize, Serialize};
+
+/// How the engine's sums are computed.
+///
+/// Both modes are deterministic on one machine for any number of threads
+/// (no product inside one network is split across threads). They differ
+/// across machines:
+///
+/// - `Fast` lets wide layers use `matrixmultiply`'s kernels, which it picks
+///   at run time from the CPU (AVX-512, AVX2 with fused multiply-add, or
+///   SSE2); the last bits of a result can differ between CPUs.
+/// - `Portable` computes every sum with the engine's own loops in a fixed
+///   order, without fused multiply-add, so a seed gives the same bits on any
+///   x86-64 machine (and any IEEE-754 target). Each product is the naive
+///   loop
+///
+///   ```text
+///   z[i][j]  = (sum over k ascending, from 0, of x[i][k] * w[k][j]) + b[j]
+///   gw[k][j] =  sum over rows i ascending, from 0, of a[i][k] * d[i][j]
+///   gb[j]    =  sum over rows i ascending, from 0, of d[i][j]
+///   p[i][k]  =  sum over j ascending, from 0, of d[i][j] * w[k][j]
+///   ```
+///   (vectorised across `j` or `k`, which changes no sum). Transcendental
+///   functions (`exp`, `tanh`, `ln`, `ln_1p`) come from the pure-Rust `libm`
+///   crate in both modes, never from the platform's C library.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Arithmetic {
+    /// The fastest kernels for this CPU (the default).
+    #[default]
+    Fast,
+    /// Fixed-order sums, bit-identical across machines.
+    Portable,
+}
+
+impl Arithmetic {
+    /// Is this the fast mode (the default)?
+    pub fn is_fast(&self) -> bool {
+        *self == Arithmetic::Fast
+    }
+}
 
 /// Columns of a register tile (one AVX-512 register of f32, two of f64).
 const NR: usize = 16;

@@ -66,7 +66,7 @@ pub fn analyse(data: Dataset, options: &FitOptions, seed: u64) -> Result<Analysi
     let learning_curves = chart::training_curves(&fitted)?;
     let decision_map = match (
         fitted.model.is_classifier,
-        crate::report::map_features(&data),
+        crate::chart::decision_features(&data),
     ) {
         (true, Some((x, y))) => {
             let train = data.select(&fitted.split.train);

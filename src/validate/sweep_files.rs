@@ -7,21 +7,13 @@
 //! holds one trial's fold result and the plan's fingerprint, so results from
 //! another plan are refused when merging.
 
-use crate::atomic;
+use super::{FoldResult, SweepPlan};
+use crate::atomic::write_text;
 use crate::data::CsvOptions;
 use crate::error::{Error, Result};
-use crate::validate::{FoldResult, SweepPlan};
 use serde::{Deserialize, Serialize};
 use serde_json::json;
 use std::path::Path;
-
-/// Writes text to `path` atomically.
-pub(crate) fn write_text(path: &Path, text: &str) -> Result<()> {
-    atomic::write_file(path, |w| {
-        w.write_all(text.as_bytes())
-            .map_err(|e| Error::io(path, "writing", e))
-    })
-}
 
 const PLAN_FORMAT: &str = "stratanet-sweep-plan";
 const TRIAL_FORMAT: &str = "stratanet-sweep-trial";

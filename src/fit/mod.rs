@@ -1,0 +1,199 @@
+//! One call from a table to a fitted, scaled network: [`fit`].
+//!
+//! `fit` does, in order, with every random draw from one seed drawn from the
+//! caller's generator (recorded as [`Model::seed`], so the fit can be
+//! repeated from the seed alone):
+//!
+//! 1. split off validation rows (stratified by class; `validation_fraction`),
+//! 2. fit the scaler on the training rows only and apply it to both parts,
+//! 3. pick the head from the target (two classes: one logistic output;
+//!    more: softmax; numbers: identity) unless one is given,
+//! 4. train `restarts` networks from independent seeds (in parallel; each
+//!    restart depends on its own seed only), and keep the one with the lowest
+//!    validation loss (lowest final training loss without validation rows;
+//!    the earliest restart on ties).
+
+mod model;
+mod options;
+mod provenance;
+
+pub use model::Model;
+pub(crate) use model::CAUTION;
+pub use options::FitOptions;
+pub use provenance::Provenance;
+
+use crate::data::{split, Dataset, Scaler};
+use crate::error::Result;
+use crate::network::Network;
+use crate::rng::{self, seeded_rng};
+use crate::train::{self, TrainingReport};
+use rand::RngCore;
+use rayon::prelude::*;
+
+/// A fitted model and how its training went.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Fitted {
+    /// The model kept.
+    pub model: Model,
+    /// The kept restart's training report.
+    pub report: TrainingReport,
+    /// Every restart's report, in restart order.
+    pub restarts: Vec<TrainingReport>,
+    /// Index of the kept restart.
+    pub chosen_restart: usize,
+    /// The rows used for training and for validation (indices into the table).
+    pub split: split::Split,
+}
+
+/// Fits a network to `data` (see the module docs for the steps).
+///
+/// # Errors
+/// Invalid options (named), too few rows for the split, divergence.
+///
+/// # Example
+/// ```
+/// use stratanet::prelude::*;
+/// let text = "a,b,y\n0,0,n\n0,1,y\n1,0,y\n1,1,y\n0,0.1,n\n0.1,0,n\n0.9,1,y\n1,0.9,y\n";
+/// let data = CsvOptions::new("y").read_str(text, "or.csv")?;
+/// let options = FitOptions::default().hidden(&[]).validation_fraction(0.0)
+///     .early_stopping(None).epochs(500).batch_size(8).learning_rate(0.1);
+/// let fitted = fit(&data, &options, &mut seeded_rng(1))?;
+/// assert_eq!(fitted.model.predict_classes(data.x())?, data.labels().unwrap());
+/// # Ok::<(), stratanet::Error>(())
+/// ```
+pub fn fit<R: RngCore + ?Sized>(
+    data: &Dataset,
+    options: &FitOptions,
+    rng: &mut R,
+) -> Result<Fitted> {
+    fit_with_seed(data, options, rng::child_seed(rng))
+}
+
+/// [`fit`] from a recorded seed.
+///
+/// # Errors
+/// As [`fit`].
+pub fn fit_with_seed(data: &Dataset, options: &FitOptions, seed: u64) -> Result<Fitted> {
+    fit_table(std::borrow::Cow::Borrowed(data), options, seed)
+}
+
+/// [`fit_with_seed`] on a table the caller no longer needs (a fold's
+/// fitting rows): with no validation rows it is scaled in place rather
+/// than copied. The numbers are the same as [`fit_with_seed`]'s.
+pub(crate) fn fit_owned(data: Dataset, options: &FitOptions, seed: u64) -> Result<Fitted> {
+    fit_table(std::borrow::Cow::Owned(data), options, seed)
+}
+
+fn fit_table(
+    data: std::borrow::Cow<'_, Dataset>,
+    options: &FitOptions,
+    seed: u64,
+) -> Result<Fitted> {
+    options.validate()?;
+    let (sizes, head) = options.architecture(&data)?;
+    let mut rng = seeded_rng(seed);
+    let split = if options.validation_fraction > 0.0 {
+        match data.labels() {
+            Some(labels) => {
+                split::stratified_split(labels, options.validation_fraction, 0.0, &mut rng)?
+            }
+            None => split::random_split(data.n_rows(), options.validation_fraction, 0.0, &mut rng)?,
+        }
+    } else {
+        split::Split {
+            train: (0..data.n_rows()).collect(),
+            validation: Vec::new(),
+            test: Vec::new(),
+        }
+    };
+    let scaler = Scaler::fit(options.scaling, data.x(), Some(&split.train))?;
+    let validation_part = if split.validation.is_empty() {
+        None
+    } else {
+        let mut v = data.select(&split.validation);
+        scaler.apply(v.features.view_mut())?;
+        Some(v)
+    };
+    // What the model records of the table, taken before it may be scaled.
+    let columns = data.columns.clone();
+    let feature_names = data.feature_names.clone();
+    let target_name = data.target_name.clone();
+    let target_names = data.target.names().to_vec();
+    let is_classifier = data.labels().is_some();
+    let table_fingerprint = data.fingerprint();
+    let table_rows = data.n_rows();
+    let table_source = data.source.clone();
+    let every_row_in_order = split.validation.is_empty()
+        && split.train.len() == data.n_rows()
+        && split.train.iter().enumerate().all(|(i, &r)| i == r);
+    let mut train_part = match data {
+        std::borrow::Cow::Owned(table) if every_row_in_order => table,
+        table => table.select(&split.train),
+    };
+    scaler.apply(train_part.features.view_mut())?;
+    options
+        .training
+        .validate(train_part.n_rows(), validation_part.is_some())?;
+    let seeds: Vec<u64> = (0..options.restarts)
+        .map(|_| rng::child_seed(&mut rng))
+        .collect();
+    let runs: Vec<Result<(Network, TrainingReport)>> = seeds
+        .par_iter()
+        .map(|&s| {
+            let mut r = seeded_rng(s);
+            let mut net = Network::new(&sizes, options.activation, head, options.init, &mut r)?
+                .with_precision(options.precision);
+            let report = train::train(
+                &mut net,
+                &train_part,
+                validation_part.as_ref(),
+                &options.training,
+                &mut r,
+            )?;
+            Ok((net, report))
+        })
+        .collect();
+    let runs: Vec<(Network, TrainingReport)> = runs.into_iter().collect::<Result<_>>()?;
+    let score = |r: &TrainingReport| {
+        r.best_validation_loss
+            .unwrap_or_else(|| r.final_training_loss())
+    };
+    let mut chosen = 0;
+    for (i, (_, r)) in runs.iter().enumerate() {
+        if score(r) < score(&runs[chosen].1) {
+            chosen = i;
+        }
+    }
+    let restarts: Vec<TrainingReport> = runs.iter().map(|(_, r)| r.clone()).collect();
+    let (network, report) = runs.into_iter().nth(chosen).expect("at least one restart");
+    let model = Model {
+        network,
+        scaler,
+        columns,
+        feature_names,
+        target_name,
+        target_names,
+        is_classifier,
+        options: options.clone(),
+        seed,
+        provenance: Provenance {
+            library_version: env!("CARGO_PKG_VERSION").to_string(),
+            table_fingerprint,
+            table_rows,
+            table_source,
+            rows_used: (split.train.len(), split.validation.len()),
+            epochs_run: report.epochs_run,
+            best_epoch: report.best_epoch,
+            best_validation_loss: report.best_validation_loss,
+            stopped_early: report.stopped_early,
+            final_training_loss: report.final_training_loss(),
+        },
+    };
+    Ok(Fitted {
+        model,
+        report,
+        restarts,
+        chosen_restart: chosen,
+        split,
+    })
+}

@@ -1,0 +1,141 @@
+//! A fitted model: the network with everything needed to use it on new
+//! rows (the scaler, the column encoding, the class names) and where it came
+//! from ([`Provenance`](super::Provenance)).
+
+use super::{FitOptions, Provenance};
+use crate::data::{ColumnEncoding, Dataset, Scaler};
+use crate::error::{Error, Result};
+use crate::network::Network;
+use ndarray::{Array2, ArrayView2};
+use serde::{Deserialize, Serialize};
+
+/// A fitted network with everything needed to use it on new rows: the
+/// scaler, the column encoding, the class names and how it was made.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Model {
+    /// The trained network (works on scaled features).
+    pub network: Network,
+    /// The scaler fitted on the training rows.
+    pub scaler: Scaler,
+    /// How source columns become features.
+    pub columns: Vec<ColumnEncoding>,
+    /// Feature names in network input order.
+    pub feature_names: Vec<String>,
+    /// The target column's name.
+    pub target_name: String,
+    /// Class names (classification) or output names (regression).
+    pub target_names: Vec<String>,
+    /// Whether the target holds classes.
+    pub is_classifier: bool,
+    /// The options used.
+    pub options: FitOptions,
+    /// The seed all of the fit's draws came from.
+    pub seed: u64,
+    /// How and from what the model was made.
+    pub provenance: Provenance,
+}
+
+impl Model {
+    /// Class names, or `None` for regression.
+    pub fn class_names(&self) -> Option<&[String]> {
+        self.is_classifier.then_some(&self.target_names[..])
+    }
+
+    fn scaled(&self, x: ArrayView2<'_, f64>) -> Result<Array2<f64>> {
+        if x.ncols() != self.feature_names.len() {
+            return Err(Error::shape(
+                "model inputs",
+                (x.nrows(), self.feature_names.len()),
+                x.dim(),
+            ));
+        }
+        let z = self.scaler.transform(x)?;
+        if let Some(i) = z.iter().position(|v| !v.is_finite()) {
+            let (row, col) = (i / z.ncols(), i % z.ncols());
+            let value = x[[row, col]];
+            return Err(Error::input(
+                format!(
+                    "predicting row {} (counting from 1), feature {}",
+                    row + 1,
+                    self.feature_names[col]
+                ),
+                if value.is_finite() {
+                    format!("the value {value:e} is so far outside the range the model was fitted on that scaling overflows; check the row's values and units")
+                } else {
+                    format!(
+                        "the value {value} is not a finite number; remove or fill the row first"
+                    )
+                },
+            ));
+        }
+        Ok(z)
+    }
+
+    /// Network outputs for raw (unscaled) feature rows.
+    ///
+    /// # Errors
+    /// Wrong column count.
+    pub fn predict(&self, x: ArrayView2<'_, f64>) -> Result<Array2<f64>> {
+        self.network.predict(self.scaled(x)?.view())
+    }
+
+    /// Class probabilities (one column per class) for raw feature rows.
+    ///
+    /// # Errors
+    /// Wrong column count, or a regression model.
+    pub fn predict_probabilities(&self, x: ArrayView2<'_, f64>) -> Result<Array2<f64>> {
+        self.network.predict_probabilities(self.scaled(x)?.view())
+    }
+
+    /// Predicted class indices for raw feature rows.
+    ///
+    /// # Errors
+    /// Wrong column count, or a regression model.
+    pub fn predict_classes(&self, x: ArrayView2<'_, f64>) -> Result<Vec<usize>> {
+        self.network.predict_classes(self.scaled(x)?.view())
+    }
+
+    /// Activations of hidden layer `layer` (from 1) for raw feature rows.
+    ///
+    /// # Errors
+    /// Wrong column count or no such layer.
+    pub fn hidden_activations(&self, x: ArrayView2<'_, f64>, layer: usize) -> Result<Array2<f64>> {
+        self.network
+            .hidden_activations(self.scaled(x)?.view(), layer)
+    }
+
+    /// Checks that a table's feature columns are this model's, in order.
+    ///
+    /// # Errors
+    /// Lists the missing and unexpected names.
+    pub fn check_features(&self, data: &Dataset) -> Result<()> {
+        if data.feature_names == self.feature_names {
+            return Ok(());
+        }
+        let missing: Vec<&str> = self
+            .feature_names
+            .iter()
+            .filter(|n| !data.feature_names.contains(n))
+            .map(String::as_str)
+            .collect();
+        let extra: Vec<&str> = data
+            .feature_names
+            .iter()
+            .filter(|n| !self.feature_names.contains(n))
+            .map(String::as_str)
+            .collect();
+        Err(Error::input(
+            format!("{}: features", data.source),
+            format!(
+                "do not match the model's (missing: [{}]; unexpected: [{}]; the model expects, in order: {})",
+                missing.join(", "),
+                extra.join(", "),
+                self.feature_names.join(", ")
+            ),
+        ))
+    }
+}
+
+/// The usual caution, printed by every command whose output could drive a
+/// decision about a part.
+pub(crate) const CAUTION: &str = "A model fitted here supports, and never replaces, qualified judgement, the applicable standards and local practice. Do not accept, rework or scrap a part on its output alone.";

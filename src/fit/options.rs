@@ -1,0 +1,186 @@
+//! What [`fit`](super::fit) needs beyond the data: [`FitOptions`].
+
+use crate::data::{Dataset, Scaling, Target};
+use crate::error::{Error, Result};
+use crate::network::{Activation, Head, Init, Precision};
+use crate::train::{EarlyStopping, Optimiser, TrainingOptions};
+use serde::{Deserialize, Serialize};
+
+/// Everything [`fit`] needs beyond the data.
+///
+/// ```
+/// use stratanet::prelude::*;
+/// let options = FitOptions::default().hidden(&[8, 4]).epochs(300).learning_rate(0.02);
+/// assert_eq!(options.hidden_layers, vec![8, 4]);
+/// ```
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(default)]
+pub struct FitOptions {
+    /// Widths of the hidden layers, input side first (empty: no hidden layer).
+    pub hidden_layers: Vec<usize>,
+    /// The hidden activation.
+    pub activation: Activation,
+    /// The output head; `None` picks it from the target.
+    pub head: Option<Head>,
+    /// How to draw starting weights.
+    pub init: Init,
+    /// Feature scaling, fitted on the training rows.
+    pub scaling: Scaling,
+    /// Share of rows held out for validation (early stopping), in `[0, 1)`.
+    pub validation_fraction: f64,
+    /// Networks trained from different seeds; the best is kept (>= 1).
+    pub restarts: usize,
+    /// The float type.
+    pub precision: Precision,
+    /// The training options.
+    pub training: TrainingOptions,
+}
+
+impl Default for FitOptions {
+    fn default() -> Self {
+        FitOptions {
+            hidden_layers: vec![16],
+            activation: Activation::Tanh,
+            head: None,
+            init: Init::Auto,
+            scaling: Scaling::Standardise,
+            validation_fraction: 0.2,
+            restarts: 1,
+            precision: Precision::F64,
+            training: TrainingOptions::default(),
+        }
+    }
+}
+
+impl FitOptions {
+    /// Sets the hidden layer widths.
+    pub fn hidden(mut self, widths: &[usize]) -> Self {
+        self.hidden_layers = widths.to_vec();
+        self
+    }
+    /// Sets the hidden activation.
+    pub fn activation(mut self, activation: Activation) -> Self {
+        self.activation = activation;
+        self
+    }
+    /// Sets the maximum number of epochs.
+    pub fn epochs(mut self, epochs: usize) -> Self {
+        self.training.epochs = epochs;
+        self
+    }
+    /// Sets the learning rate.
+    pub fn learning_rate(mut self, rate: f64) -> Self {
+        self.training.learning_rate = rate;
+        self
+    }
+    /// Sets the batch size.
+    pub fn batch_size(mut self, rows: usize) -> Self {
+        self.training.batch_size = rows;
+        self
+    }
+    /// Sets the L2 weight decay.
+    pub fn weight_decay(mut self, lambda: f64) -> Self {
+        self.training.weight_decay = lambda;
+        self
+    }
+    /// Sets the update rule.
+    pub fn optimiser(mut self, optimiser: Optimiser) -> Self {
+        self.training.optimiser = optimiser;
+        self
+    }
+    /// Sets the number of restarts.
+    pub fn restarts(mut self, restarts: usize) -> Self {
+        self.restarts = restarts;
+        self
+    }
+    /// Sets the validation share.
+    pub fn validation_fraction(mut self, fraction: f64) -> Self {
+        self.validation_fraction = fraction;
+        self
+    }
+    /// Sets early stopping (`None` turns it off).
+    pub fn early_stopping(mut self, early_stopping: Option<EarlyStopping>) -> Self {
+        self.training.early_stopping = early_stopping;
+        self
+    }
+    /// Sets the float type.
+    pub fn precision(mut self, precision: Precision) -> Self {
+        self.precision = precision;
+        self
+    }
+
+    /// The network's layer sizes for `data`, and its head.
+    ///
+    /// # Errors
+    /// A head that does not fit the target.
+    pub fn architecture(&self, data: &Dataset) -> Result<(Vec<usize>, Head)> {
+        let (head, outputs) = match (&data.target, self.head) {
+            (Target::Classes { names, .. }, None) if names.len() == 2 => (Head::Logistic, 1),
+            (Target::Classes { names, .. }, None) => (Head::Softmax, names.len()),
+            (Target::Classes { names, .. }, Some(Head::Softmax)) => (Head::Softmax, names.len()),
+            (Target::Classes { names, .. }, Some(Head::Logistic)) if names.len() == 2 => {
+                (Head::Logistic, 1)
+            }
+            (Target::Values { values, .. }, None) => (Head::Identity, values.ncols()),
+            (Target::Values { values, .. }, Some(h)) => (h, values.ncols()),
+            (Target::Classes { names, .. }, Some(h)) => {
+                return Err(Error::option(
+                    "head",
+                    h.name(),
+                    format!(
+                        "cannot predict {} classes; use softmax (or logistic for two classes)",
+                        names.len()
+                    ),
+                ))
+            }
+        };
+        let mut sizes = vec![data.n_features()];
+        sizes.extend(&self.hidden_layers);
+        sizes.push(outputs);
+        Ok((sizes, head))
+    }
+
+    /// Checks the options that `fit` adds to the training options.
+    ///
+    /// # Errors
+    /// The first invalid option, named.
+    pub fn validate(&self) -> Result<()> {
+        if !(0.0..1.0).contains(&self.validation_fraction) {
+            return Err(Error::option(
+                "validation_fraction",
+                self.validation_fraction,
+                "must be at least 0 and below 1",
+            ));
+        }
+        if self.restarts == 0 {
+            return Err(Error::option("restarts", 0, "must be at least 1"));
+        }
+        if self.restarts > 1000 {
+            return Err(Error::option(
+                "restarts",
+                self.restarts,
+                "must be at most 1000",
+            ));
+        }
+        if let Some(i) = self.hidden_layers.iter().position(|&w| w == 0) {
+            return Err(Error::option(
+                "hidden_layers",
+                format!("{:?}", self.hidden_layers),
+                format!(
+                    "layer {} has width 0; every hidden layer needs at least one unit",
+                    i + 1
+                ),
+            ));
+        }
+        if self.training.early_stopping.is_some() && self.validation_fraction == 0.0 {
+            return Err(Error::option(
+                "validation_fraction",
+                0,
+                "early stopping needs validation rows: set validation_fraction above 0 (0.2 is usual) or turn early stopping off",
+            ));
+        }
+        // Everything but the batch size against the row count, which needs data.
+        self.training
+            .validate(usize::MAX, self.validation_fraction > 0.0)
+    }
+}

@@ -1,0 +1,28 @@
+//! Where a model came from: [`Provenance`].
+
+use serde::{Deserialize, Serialize};
+
+/// Where a model came from: the library, the table and a summary of training.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Provenance {
+    /// The stratanet version that trained the model.
+    pub library_version: String,
+    /// [`Dataset::fingerprint`] of the whole table given to `fit`.
+    pub table_fingerprint: String,
+    /// Rows in that table.
+    pub table_rows: usize,
+    /// Where the table came from (its path, or a description).
+    pub table_source: String,
+    /// Rows used for training and for validation.
+    pub rows_used: (usize, usize),
+    /// Epochs run by the kept restart.
+    pub epochs_run: usize,
+    /// The epoch whose weights were kept.
+    pub best_epoch: usize,
+    /// The best validation loss, when there were validation rows.
+    pub best_validation_loss: Option<f64>,
+    /// Whether early stopping ended training.
+    pub stopped_early: bool,
+    /// The final training loss of the kept restart.
+    pub final_training_loss: f64,
+}

@@ -1,0 +1,56 @@
+//! Prediction tables: a model's predictions for the rows of a
+//! [`FeatureTable`] as CSV.
+
+use super::FeatureTable;
+use crate::atomic::write_text;
+use crate::error::{Error, Result};
+use crate::fit::Model;
+use std::path::Path;
+
+/// The prediction table's column names for a model.
+pub fn prediction_columns(model: &Model) -> Vec<String> {
+    let mut cols = vec!["line".to_string()];
+    if model.is_classifier {
+        cols.push("predicted".into());
+        cols.extend(model.target_names.iter().map(|c| format!("p_{c}")));
+    } else {
+        cols.extend(model.target_names.iter().map(|c| format!("predicted_{c}")));
+    }
+    cols
+}
+
+/// Writes predictions (and class probabilities) for the rows of `table` as CSV.
+///
+/// # Errors
+/// Prediction or writing fails.
+pub fn write_predictions(model: &Model, table: &FeatureTable, out: &Path) -> Result<()> {
+    let mut w = csv::Writer::from_writer(Vec::new());
+    let io = |e: csv::Error| Error::input(out.display().to_string(), e.to_string());
+    w.write_record(prediction_columns(model)).map_err(io)?;
+    if model.is_classifier {
+        // One forward pass gives both the classes and the probabilities.
+        let out = model.predict(table.x())?;
+        let head = model.network.head();
+        let classes = crate::network::classes_from_outputs(out.view(), head)?;
+        let p = crate::network::probabilities_from_outputs(out, head)?;
+        for (i, row) in p.rows().into_iter().enumerate() {
+            let mut rec = vec![
+                table.lines[i].to_string(),
+                model.target_names[classes[i]].clone(),
+            ];
+            rec.extend(row.iter().map(|v| format!("{v}")));
+            w.write_record(rec).map_err(io)?;
+        }
+    } else {
+        let out_values = model.predict(table.x())?;
+        for (i, row) in out_values.rows().into_iter().enumerate() {
+            let mut rec = vec![table.lines[i].to_string()];
+            rec.extend(row.iter().map(|v| format!("{v}")));
+            w.write_record(rec).map_err(io)?;
+        }
+    }
+    let bytes = w
+        .into_inner()
+        .map_err(|e| Error::input(out.display().to_string(), e.to_string()))?;
+    write_text(out, std::str::from_utf8(&bytes).expect("CSV of UTF-8 text"))
+}
