@@ -51,26 +51,26 @@ say() { printf 'local-cluster: %s\n' "$*"; }
 now() { printf '%s' "${EPOCHREALTIME/,/.}"; }
 since() { awk -v a="$1" -v b="$(now)" 'BEGIN { printf "%.1f s", b - a }'; }
 
-action=${1:-}
-[ -n "$action" ] || usage
-shift
+action=''
 DIR=$REPO_ROOT/target/slurm
 TIMEOUT=60
 while [ $# -gt 0 ]; do
   case $1 in
+    start|stop|status|env) [ -z "$action" ] || die "two commands given: '$action' and '$1'"; action=$1; shift ;;
     --dir) [ $# -ge 2 ] || die "--dir needs a folder"; DIR=$2; shift 2 ;;
     --dir=*) DIR=${1#--dir=}; shift ;;
     --timeout) [ $# -ge 2 ] || die "--timeout needs seconds"; TIMEOUT=$2; shift 2 ;;
     --timeout=*) TIMEOUT=${1#--timeout=}; shift ;;
     -h|--help) usage ;;
-    *) die "unknown argument '$1' (see --help)" ;;
+    *) die "unknown argument '$1'; the commands are start, stop, status and env (see --help)" ;;
   esac
 done
+[ -n "$action" ] || usage
 case $TIMEOUT in ''|*[!0-9]*) die "--timeout wants whole seconds, got '$TIMEOUT'" ;; esac
 case $CTLD_PORT in ''|*[!0-9]*) die "LOCAL_SLURM_PORT wants a port number, got '$CTLD_PORT'" ;; esac
 
-mkdir -p "$DIR" || die "cannot create the state folder $DIR"
-DIR=$(cd "$DIR" && pwd)
+case $action in start|stop) mkdir -p "$DIR" || die "cannot create the state folder $DIR" ;; esac
+DIR=$(realpath -m -- "$DIR")
 CONF=$DIR/etc/slurm.conf
 MUNGE_DIR=$DIR/munge
 MUNGE_SOCKET=$MUNGE_DIR/munge.socket

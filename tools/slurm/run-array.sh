@@ -96,9 +96,9 @@ done
 mkdir -p "$LOGS" || die "cannot create the log folder '$LOGS'"
 LOGS=$(cd "$LOGS" && pwd)
 T0=$(now)
-# Job IDs start again at 1 whenever a cluster's state is cleared (as
-# local-cluster.sh start does), so an exit marker older than this job is
-# another job's: only markers written after the submission count.
+# Job IDs start again at 1 when a cluster's state folder is new, so an exit
+# marker older than this job is another job's: only markers written after
+# the submission count.
 SUBMITTED_AT=$(date +%s)
 
 # ---------------------------------------------------------------- submit
