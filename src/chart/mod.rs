@@ -46,18 +46,15 @@
 //!   unusable input (NaN values, one class) gives a chart with a note saying
 //!   what was left out.
 
-use std::fmt;
-use std::path::Path;
-
-use crate::{Error, Result};
-
 mod compare;
 mod confusion;
 mod contour;
 mod curves;
 mod decision;
 mod draw;
+mod figure;
 mod hidden;
+mod labels;
 mod learning;
 mod network;
 mod pca;
@@ -72,7 +69,10 @@ pub use compare::{cross_validation_comparison, ConfigurationScores};
 pub use confusion::confusion_matrix;
 pub use curves::{precision_recall_curves, roc_curves, Curve};
 pub use decision::{decision_map, ClassPoints, DecisionMapOptions, CONTOUR_STROKE, CONTOUR_WIDTH};
+pub use figure::{Chart, ChartOptions, MAX_EPOCHS, MAX_POINTS};
 pub use hidden::{hidden_layer, HiddenView};
+pub use labels::{axis_label, UNIT_SUFFIXES};
+pub(crate) use labels::{class_names, decision_features, group_digits, stride};
 pub use learning::{learning_curves, LearningCurveOptions, TrainingHistory, YScale};
 pub use network::{network_diagram, NetworkWeights, MAX_NODES_PER_LAYER};
 pub use pca::{principal_components_2, PrincipalComponents};
@@ -81,303 +81,6 @@ pub use results::{
     decision_boundary_with, hidden_layer_view, network, precision_recall, roc, training_curves,
     training_curves_with,
 };
-
-/// Scatter charts draw at most this many points; above it they draw every
-/// k-th point (k = ceil(n / MAX_POINTS)) and say so in a note.
-pub const MAX_POINTS: usize = 5_000;
-
-/// Learning curves draw at most this many epochs per line; above it they
-/// average the epochs in blocks of k (k = ceil(epochs / MAX_EPOCHS)) and say
-/// so in a note.
-pub const MAX_EPOCHS: usize = 2_000;
-
-/// A finished chart: SVG text plus its size and title.
-///
-/// Show it in an evcxr notebook by leaving it as a cell's last expression
-/// (see [`Chart::evcxr_display`]), save it with [`Chart::save`], or take the
-/// text with [`Chart::as_svg`] / [`Chart::into_svg`].
-#[derive(Clone, PartialEq, Eq)]
-pub struct Chart {
-    svg: String,
-    width: u32,
-    height: u32,
-    title: String,
-}
-
-impl Chart {
-    pub(crate) fn from_parts(svg: String, width: u32, height: u32, title: &str) -> Chart {
-        Chart {
-            svg,
-            width,
-            height,
-            title: title.to_string(),
-        }
-    }
-
-    /// The SVG document.
-    pub fn as_svg(&self) -> &str {
-        &self.svg
-    }
-
-    /// The SVG document, taking ownership.
-    pub fn into_svg(self) -> String {
-        self.svg
-    }
-
-    /// Width in pixels.
-    pub fn width(&self) -> u32 {
-        self.width
-    }
-
-    /// Height in pixels.
-    pub fn height(&self) -> u32 {
-        self.height
-    }
-
-    /// The title drawn at the top of the chart.
-    pub fn title(&self) -> &str {
-        &self.title
-    }
-
-    /// Writes the SVG to `path`, atomically: the text goes to a temporary
-    /// file in the same folder, which is then renamed over `path`, so a reader
-    /// never sees half a file.
-    ///
-    /// # Errors
-    ///
-    /// [`ErrorKind::Io`](crate::ErrorKind::Io) naming `path` when the folder
-    /// does not exist or cannot be written.
-    ///
-    /// # Example
-    ///
-    /// ```no_run
-    /// # use stratanet::chart::{confusion_matrix, ChartOptions};
-    /// let chart = confusion_matrix(&[vec![5, 1], vec![2, 7]], &["pass", "fail"], &ChartOptions::default())?;
-    /// chart.save("confusion.svg")?;
-    /// # Ok::<(), stratanet::Error>(())
-    /// ```
-    pub fn save(&self, path: impl AsRef<Path>) -> Result<()> {
-        // The crate's one atomic writer: a temporary file in the same
-        // folder, synced, then renamed over `path`.
-        let path = path.as_ref();
-        crate::atomic::write_file(path, |w| {
-            w.write_all(self.svg.as_bytes())
-                .map_err(|e| Error::io(path, "writing the chart", e))
-        })
-    }
-
-    /// Shows the chart in an evcxr Jupyter notebook: prints the SVG between
-    /// evcxr's `EVCXR_BEGIN_CONTENT image/svg+xml` and `EVCXR_END_CONTENT`
-    /// markers in one write. evcxr calls this for a cell's last expression,
-    /// so no import and no evcxr dependency is needed.
-    pub fn evcxr_display(&self) {
-        println!("{}", self.evcxr_content());
-    }
-
-    fn evcxr_content(&self) -> String {
-        format!(
-            "EVCXR_BEGIN_CONTENT image/svg+xml\n{}\nEVCXR_END_CONTENT",
-            self.svg.trim_end()
-        )
-    }
-}
-
-impl fmt::Debug for Chart {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        write!(
-            f,
-            "Chart {{ title: {:?}, {} x {} px, {} bytes of SVG }}",
-            self.title,
-            self.width,
-            self.height,
-            self.svg.len()
-        )
-    }
-}
-
-/// Size, title and axis labels shared by every chart kind.
-///
-/// Fields left as `None` get a default chosen by the chart (the chart kind as
-/// title, column names through [`axis_label`] as axis labels). Charts
-/// without such an axis ignore the label: the network diagram both, the
-/// cross-validation comparison `y_label` (its rows are named). In learning
-/// curves `y_label` names the loss panel.
-#[derive(Clone, Debug, PartialEq)]
-pub struct ChartOptions {
-    /// Width in pixels, 240 to 4096. Default 720.
-    pub width: u32,
-    /// Height in pixels, 180 to 4096. Default 480.
-    pub height: u32,
-    /// Title drawn at the top left.
-    pub title: Option<String>,
-    /// Label under the horizontal axis.
-    pub x_label: Option<String>,
-    /// Label beside the vertical axis.
-    pub y_label: Option<String>,
-}
-
-impl Default for ChartOptions {
-    fn default() -> ChartOptions {
-        ChartOptions {
-            width: 720,
-            height: 480,
-            title: None,
-            x_label: None,
-            y_label: None,
-        }
-    }
-}
-
-impl ChartOptions {
-    /// The default options with a title.
-    pub fn titled(title: impl Into<String>) -> ChartOptions {
-        ChartOptions {
-            title: Some(title.into()),
-            ..ChartOptions::default()
-        }
-    }
-
-    /// Checks the size and returns the title to use.
-    pub(crate) fn check(&self, default_title: &str) -> Result<String> {
-        if !(240..=4096).contains(&self.width) {
-            return Err(Error::option(
-                "width",
-                self.width,
-                "must be between 240 and 4096 pixels",
-            ));
-        }
-        if !(180..=4096).contains(&self.height) {
-            return Err(Error::option(
-                "height",
-                self.height,
-                "must be between 180 and 4096 pixels",
-            ));
-        }
-        Ok(match &self.title {
-            Some(title) => title.clone(),
-            None => default_title.to_string(),
-        })
-    }
-
-    pub(crate) fn x_label_or(&self, name: &str) -> String {
-        self.x_label.clone().unwrap_or_else(|| axis_label(name))
-    }
-
-    pub(crate) fn y_label_or(&self, name: &str) -> String {
-        self.y_label.clone().unwrap_or_else(|| axis_label(name))
-    }
-}
-
-/// Unit suffixes that [`axis_label`] recognises, as (suffix, unit shown).
-pub const UNIT_SUFFIXES: &[(&str, &str)] = &[
-    ("nm", "nm"),
-    ("um", "µm"),
-    ("mm", "mm"),
-    ("cm", "cm"),
-    ("m", "m"),
-    ("km", "km"),
-    ("mg", "mg"),
-    ("g", "g"),
-    ("kg", "kg"),
-    ("ms", "ms"),
-    ("s", "s"),
-    ("min", "min"),
-    ("h", "h"),
-    ("hz", "Hz"),
-    ("khz", "kHz"),
-    ("c", "°C"),
-    ("degc", "°C"),
-    ("pa", "Pa"),
-    ("kpa", "kPa"),
-    ("mpa", "MPa"),
-    ("bar", "bar"),
-    ("v", "V"),
-    ("mv", "mV"),
-    ("ma", "mA"),
-    ("w", "W"),
-    ("kw", "kW"),
-    ("nm2", "nm²"),
-    ("mm2", "mm²"),
-    ("deg", "°"),
-    ("rad", "rad"),
-    ("rpm", "rpm"),
-    ("ml", "mL"),
-    ("pct", "%"),
-    ("percent", "%"),
-    ("ppm", "ppm"),
-];
-
-/// Turns a column name into an axis label, showing its unit.
-///
-/// The rule:
-///
-/// ```text
-/// name already holding "(", "[" or a space   -> unchanged      "diameter [mm]" -> "diameter [mm]"
-/// stem_unit, unit a known suffix             -> "stem (unit)"  "bore_um"       -> "bore (µm)"
-///                                                             "inlet_temp_c"  -> "inlet temp (°C)"
-/// anything else                              -> underscores become spaces      "wall_thickness" -> "wall thickness"
-/// ```
-///
-/// The unit is the text after the last underscore, matched without regard to
-/// case against [`UNIT_SUFFIXES`] (`_mm`, `_um` (µm), `_c` (°C), `_kpa`,
-/// `_s`, `_pct` (%), ...). Single letters that usually are not units (`_a`,
-/// `_n`) are not in the list. A name that is only a unit (`"mm"`) is left
-/// alone.
-///
-/// # Example
-///
-/// ```
-/// use stratanet::chart::axis_label;
-/// assert_eq!(axis_label("bore_um"), "bore (µm)");
-/// assert_eq!(axis_label("pressure_kPa"), "pressure (kPa)");
-/// assert_eq!(axis_label("diameter [mm]"), "diameter [mm]");
-/// assert_eq!(axis_label("batch_id"), "batch id");
-/// ```
-pub fn axis_label(name: &str) -> String {
-    let name = name.trim();
-    if name.contains(['(', '[', ' ']) {
-        return name.to_string();
-    }
-    if let Some((stem, suffix)) = name.rsplit_once('_') {
-        let stem = stem.trim_matches('_');
-        let unit = UNIT_SUFFIXES
-            .iter()
-            .find(|(known, _)| known.eq_ignore_ascii_case(suffix));
-        if let (Some((_, unit)), false) = (unit, stem.is_empty()) {
-            return format!("{} ({unit})", stem.replace('_', " "));
-        }
-    }
-    name.replace('_', " ").trim().to_string()
-}
-
-/// Writes `n` with a comma between groups of three digits: 100000 -> "100,000".
-pub(crate) fn group_digits(n: usize) -> String {
-    let digits = n.to_string();
-    let mut out = String::with_capacity(digits.len() + digits.len() / 3);
-    for (i, c) in digits.chars().enumerate() {
-        if i > 0 && (digits.len() - i) % 3 == 0 {
-            out.push(',');
-        }
-        out.push(c);
-    }
-    out
-}
-
-/// The stride that keeps at most `max` of `n` items: ceil(n / max), at least 1.
-pub(crate) fn stride(n: usize, max: usize) -> usize {
-    n.div_ceil(max.max(1)).max(1)
-}
-
-/// Checks class names: at least one, and none empty after trimming.
-pub(crate) fn class_names<S: AsRef<str>>(what: &str, names: &[S]) -> Result<Vec<String>> {
-    if names.is_empty() {
-        return Err(Error::input(
-            what,
-            "no class names given; pass one name per class, in class-index order",
-        ));
-    }
-    Ok(names.iter().map(|n| n.as_ref().to_string()).collect())
-}
 
 #[cfg(test)]
 mod tests {
@@ -463,18 +166,4 @@ mod tests {
         assert!(err.is_io());
         assert!(err.to_string().contains("no-such-folder"), "{err}");
     }
-}
-
-/// The two features a decision map shows by default: the first two numeric
-/// source columns of the table.
-pub(crate) fn decision_features(data: &crate::data::Dataset) -> Option<(String, String)> {
-    let numeric: Vec<&str> = data
-        .columns
-        .iter()
-        .filter_map(|c| match c {
-            crate::data::ColumnEncoding::Numeric { name } => Some(name.as_str()),
-            _ => None,
-        })
-        .collect();
-    (numeric.len() >= 2).then(|| (numeric[0].to_string(), numeric[1].to_string()))
 }

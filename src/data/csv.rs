@@ -804,6 +804,19 @@ fn build_dataset(raw: RawTable, opts: &CsvOptions, path: &Path) -> Result<Datase
     })
 }
 
+impl Dataset {
+    /// Reads a CSV file with a header row, predicting column `target`.
+    ///
+    /// Shorthand for `CsvOptions::new(target).read(path)`; see [`CsvOptions`]
+    /// for choosing columns, missing cells and class order.
+    ///
+    /// # Errors
+    /// Any problem with the file, naming its path, line and column.
+    pub fn from_csv(path: impl AsRef<Path>, target: &str) -> Result<Dataset> {
+        CsvOptions::new(target).read(path)
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

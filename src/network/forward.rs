@@ -11,7 +11,7 @@
 //! reused, so no memory is allocated per mini-batch.
 
 use super::kernels::{self, Operands};
-use super::{sigmoid, Activation, Arithmetic, Network, Real};
+use super::{sigmoid, Activation, Arithmetic, Head, Layer, Real};
 use ndarray::{s, Array2, ArrayView2};
 
 /// A network's parameters as one flat vector in float type `F`.
@@ -25,11 +25,16 @@ pub(crate) struct Params<F: Real> {
 }
 
 impl<F: Real> Params<F> {
-    pub fn from_network(net: &Network) -> Params<F> {
-        let mut data = Vec::with_capacity(net.n_parameters());
+    pub fn from_layers(layers: &[Layer]) -> Params<F> {
+        let mut data = Vec::with_capacity(
+            layers
+                .iter()
+                .map(|l| l.weights.len() + l.biases.len())
+                .sum(),
+        );
         let mut shapes = Vec::new();
         let mut offsets = Vec::new();
-        for layer in net.layers() {
+        for layer in layers {
             offsets.push(data.len());
             shapes.push(layer.weights.dim());
             data.extend(layer.weights.iter().map(|&v| F::from_f64(v)));
@@ -43,8 +48,8 @@ impl<F: Real> Params<F> {
     }
 
     /// Writes the parameters back into the network's layers.
-    pub fn write_to(&self, net: &mut Network) {
-        for (l, layer) in net.layers_mut().iter_mut().enumerate() {
+    pub fn write_to(&self, layers: &mut [Layer]) {
+        for (l, layer) in layers.iter_mut().enumerate() {
             let (wr, br) = self.ranges(l);
             for (dst, src) in layer.weights.iter_mut().zip(&self.data[wr]) {
                 *dst = src.as_f64();
@@ -69,7 +74,12 @@ impl<F: Real> Params<F> {
     /// Outputs (after the head) for all rows of `x`, in chunks. Prediction
     /// always uses the portable kernel, so a model predicts the same bits on
     /// every machine.
-    pub fn predict(&self, x: ArrayView2<'_, f64>, net: &Network) -> Array2<f64> {
+    pub fn predict(
+        &self,
+        x: ArrayView2<'_, f64>,
+        activation: Activation,
+        head: Head,
+    ) -> Array2<f64> {
         let n_out = self.shapes.last().expect("layers").1;
         let mut out = Array2::zeros((x.nrows(), n_out));
         let chunk = EVAL_CHUNK.min(x.nrows().max(1));
@@ -78,10 +88,10 @@ impl<F: Real> Params<F> {
             let end = (start + chunk).min(x.nrows());
             let m = end - start;
             ws.load(x.slice(s![start..end, ..]));
-            ws.run(self, m, net.activation(), self.n_layers());
+            ws.run(self, m, activation, self.n_layers());
             let z = ws.acts.last_mut().expect("layers");
             for (i, row) in z[..m * n_out].chunks_exact_mut(n_out).enumerate() {
-                net.head().apply_row(row);
+                head.apply_row(row);
                 for (k, v) in row.iter().enumerate() {
                     out[[start + i, k]] = v.as_f64();
                 }
@@ -91,7 +101,12 @@ impl<F: Real> Params<F> {
     }
 
     /// Activations of hidden layer `layer` (1-based).
-    pub fn hidden(&self, x: ArrayView2<'_, f64>, net: &Network, layer: usize) -> Array2<f64> {
+    pub fn hidden(
+        &self,
+        x: ArrayView2<'_, f64>,
+        activation: Activation,
+        layer: usize,
+    ) -> Array2<f64> {
         let width = self.shapes[layer - 1].1;
         let mut out = Array2::zeros((x.nrows(), width));
         let chunk = EVAL_CHUNK.min(x.nrows().max(1));
@@ -100,7 +115,7 @@ impl<F: Real> Params<F> {
             let end = (start + chunk).min(x.nrows());
             let m = end - start;
             ws.load(x.slice(s![start..end, ..]));
-            ws.run(self, m, net.activation(), layer);
+            ws.run(self, m, activation, layer);
             let a = &ws.acts[layer - 1];
             for i in 0..m {
                 for k in 0..width {

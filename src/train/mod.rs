@@ -442,7 +442,7 @@ fn run<F: Real, R: RngCore + ?Sized>(
         }
         None => (epochs_run, None),
     };
-    params.write_to(network);
+    params.write_to_network(network);
     Ok(TrainingReport {
         history,
         epochs_run,
