@@ -300,7 +300,7 @@ fn peak_rss_kb() -> u64 {
 fn options(spec: &Spec, arithmetic: Arithmetic) -> TrainingOptions {
     TrainingOptions {
         epochs: spec.epochs,
-        batch_size: spec.batch,
+        batch_size: Some(stratanet::train::BatchSize::Rows(spec.batch)),
         learning_rate: spec.learning_rate,
         optimiser: Optimiser::Sgd,
         loss: Some(spec.loss),
@@ -322,7 +322,8 @@ fn dtype(spec: &Spec) -> &'static str {
 /// with 2,000 data points over it. Printed as its own line (no numpy side:
 /// the drawing is ours alone).
 fn draw(x: &Array2<f64>, y: &Array2<f64>, net: &Network, spec: &Spec) {
-    use stratanet::chart::{decision_map, ClassPoints, DecisionMapOptions};
+    use stratanet::chart::plot::{decision_map, ClassPoints};
+    use stratanet::chart::DecisionMapOptions;
     let k = y.ncols();
     let points = ClassPoints {
         points: (0..2000)
@@ -374,7 +375,7 @@ fn main() {
             .read(&args[1])
             .unwrap();
         let seconds = t.elapsed().as_secs_f64();
-        let matrix_kb = (data.features.len() * 8 / 1024) as u64;
+        let matrix_kb = (data.x().len() * 8 / 1024) as u64;
         println!(
             "{}",
             serde_json::json!({
@@ -427,7 +428,7 @@ fn main() {
                 best,
                 spec.rows * spec.epochs,
                 fin,
-                report.final_training_loss(),
+                report.final_training_loss,
             )
         }
         "predict" => {
@@ -455,7 +456,7 @@ fn main() {
             let mut fo = FitOptions::default()
                 .hidden(&spec.sizes[1..spec.sizes.len() - 1])
                 .activation(spec.activation)
-                .validation_fraction(0.0)
+                .validation_share(0.0)
                 .early_stopping(None)
                 .precision(spec.precision);
             fo.head = Some(Head::Softmax);
@@ -474,7 +475,7 @@ fn main() {
             let fin = cv
                 .folds
                 .iter()
-                .map(|f| f.report.final_training_loss())
+                .map(|f| f.report.final_training_loss)
                 .sum::<f64>()
                 / cv.folds.len() as f64;
             // Rows trained on: 4/5 of the table per fold, five folds.

@@ -6,10 +6,10 @@
 //! ```
 
 use std::path::{Path, PathBuf};
-use stratanet::chart::{self, HiddenView};
+use stratanet::chart::HiddenView;
 use stratanet::data::CsvOptions;
 use stratanet::prelude::*;
-use stratanet::validate::{compare_configurations, CvOptions, Metric, Scores};
+use stratanet::validate::Scores;
 
 fn png(svg_path: &Path) {
     let svg = std::fs::read(svg_path).expect("svg");
@@ -41,7 +41,7 @@ fn main() -> stratanet::Result<()> {
         .read(root.join("demo-data/parts.csv"))?;
     let options = FitOptions::default().hidden(&[12]).epochs(400).restarts(4);
     let fitted = fit(&parts, &options, &mut seeded_rng(42))?;
-    let model = &fitted.model;
+    let model = fitted.model();
     let (scores, _) = Scores::of(model, &parts)?;
     let Scores::Classification(metrics) = &scores else {
         unreachable!("a classifier")
@@ -63,37 +63,33 @@ fn main() -> stratanet::Result<()> {
         &mut seeded_rng(5),
     )?;
     let charts = vec![
-        ("learning-curves", chart::training_curves(&fitted)?),
+        ("learning-curves", fitted.learning_curves_chart()?),
         (
             "decision-map",
-            chart::decision_boundary(model, &parts, "bore_dev_um", "roundness_um")?,
+            model.decision_map_chart(&parts, "bore_dev_um", "roundness_um")?,
         ),
         (
             "decision-map-two-features",
-            chart::decision_boundary(&fitted_two.model, &two, "bore_dev_um", "roundness_um")?,
+            fitted_two
+                .model()
+                .decision_map_chart(&two, "bore_dev_um", "roundness_um")?,
         ),
         (
             "decision-map-components",
-            chart::decision_boundary_principal(model, &parts)?,
+            model.decision_map_components_chart(&parts)?,
         ),
         (
             "hidden-layer",
-            chart::hidden_layer_view(model, &parts, 1, HiddenView::PrincipalComponents)?,
+            model.hidden_layer_chart(&parts, 1, HiddenView::PrincipalComponents)?,
         ),
-        ("confusion-matrix", chart::confusion(metrics)?),
-        ("roc", chart::roc(model, &parts)?),
-        ("precision-recall", chart::precision_recall(model, &parts)?),
+        ("confusion-matrix", metrics.confusion_chart()?),
+        ("roc", model.roc_chart(&parts)?),
+        ("precision-recall", model.precision_recall_chart(&parts)?),
         (
             "cv-comparison",
-            chart::cv_comparison(
-                &[
-                    ("no hidden layer", &comparison.a),
-                    ("hidden 12", &comparison.b),
-                ],
-                Metric::Accuracy,
-            )?,
+            comparison.scores_chart(Metric::Accuracy, "no hidden layer", "hidden 12")?,
         ),
-        ("network", chart::network(model)?),
+        ("network", model.network_chart()?),
     ];
     for (name, c) in charts {
         let path = out.join(format!("{name}.svg"));

@@ -104,17 +104,17 @@ fn main() {
     let options = FitOptions::default()
         .hidden(&[16])
         .epochs(2)
-        .batch_size(256)
+        .batch_size(stratanet::train::BatchSize::Rows(256))
         .learning_rate(0.01)
         .early_stopping(None)
-        .validation_fraction(0.0);
+        .validation_share(0.0);
     reset_peak();
     let t = Instant::now();
     let fitted = fit_with_seed(&data, &options, 1).expect("the table fits");
     report("fit (2 epochs)", t.elapsed().as_secs_f64(), 3.0);
     println!(
         "  final training loss {:.4}",
-        fitted.report.final_training_loss()
+        fitted.report().final_training_loss
     );
     drop(fitted);
 

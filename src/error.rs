@@ -13,11 +13,48 @@ use std::fmt;
 use std::io;
 use std::path::PathBuf;
 
+/// `Display` and `FromStr` for an enum of plain choices, from one table of
+/// (variant, text) pairs, so the two always agree and a refusal lists every
+/// choice.
+macro_rules! text_forms {
+    ($ty:ty, $option:literal, { $($variant:path => $text:literal),+ $(,)? }) => {
+        impl std::fmt::Display for $ty {
+            fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+                f.write_str(match self {
+                    $($variant => $text,)+
+                })
+            }
+        }
+
+        impl std::str::FromStr for $ty {
+            type Err = $crate::error::Error;
+
+            fn from_str(text: &str) -> $crate::error::Result<$ty> {
+                match text.trim() {
+                    $($text => Ok($variant),)+
+                    _ => Err($crate::error::Error::choice(
+                        $option,
+                        text,
+                        &[$($text),+].join(", "),
+                    )),
+                }
+            }
+        }
+    };
+}
+pub(crate) use text_forms;
+
 /// The result type of every fallible stratanet function.
 pub type Result<T, E = Error> = std::result::Result<T, E>;
 
 /// A stratanet error. Cheap to move (one box); see [`Error::kind`] for details.
-pub struct Error(Box<ErrorKind>);
+pub struct Error(Box<Inner>);
+
+struct Inner {
+    kind: ErrorKind,
+    /// What was being done, outermost first ("cross-validation fold 3").
+    context: Vec<String>,
+}
 
 /// What went wrong, with the context needed to find and fix it.
 #[non_exhaustive]
@@ -40,6 +77,18 @@ pub enum ErrorKind {
         line: Option<u64>,
         /// The reader's error.
         source: csv::Error,
+    },
+    /// A JSON file (a sweep plan, a trial result) could not be read as what
+    /// it should be.
+    Json {
+        /// The file.
+        path: PathBuf,
+        /// What the file should be ("a sweep plan").
+        what: String,
+        /// The JSON reader's error (with its line and column).
+        source: serde_json::Error,
+        /// How to get a good file.
+        fix: String,
     },
     /// A cell could not be read as what its column needs.
     BadValue {
@@ -121,7 +170,8 @@ pub enum ErrorKind {
     },
     /// An option is outside its valid range.
     InvalidOption {
-        /// The option's name as the user wrote it (`learning_rate`, `--epochs`).
+        /// The library option's name (`learning_rate`, `batch_size`); the
+        /// command line shows its flag instead (`--learning-rate`).
         name: String,
         /// The value given.
         value: String,
@@ -165,22 +215,33 @@ pub enum ErrorKind {
 impl Error {
     /// Wraps a kind.
     pub fn new(kind: ErrorKind) -> Error {
-        Error(Box::new(kind))
+        Error(Box::new(Inner {
+            kind,
+            context: Vec::new(),
+        }))
     }
 
     /// The kind of error, with its context.
     pub fn kind(&self) -> &ErrorKind {
-        &self.0
+        &self.0.kind
     }
 
     /// Unwraps the kind.
     pub fn into_kind(self) -> ErrorKind {
-        *self.0
+        self.0.kind
+    }
+
+    /// The same error, said to have happened while doing `what` (shown
+    /// before the message: "cross-validation fold 3: ..."). The kind and its
+    /// place are kept.
+    pub fn context(mut self, what: impl Into<String>) -> Error {
+        self.0.context.insert(0, what.into());
+        self
     }
 
     /// Is this an operating-system input/output failure?
     pub fn is_io(&self) -> bool {
-        matches!(*self.0, ErrorKind::Io { .. })
+        matches!(self.0.kind, ErrorKind::Io { .. })
     }
 
     /// Shorthand for [`ErrorKind::InvalidOption`].
@@ -194,6 +255,11 @@ impl Error {
             value: value.to_string(),
             reason: reason.into(),
         })
+    }
+
+    /// An option whose text is none of the valid choices, listed.
+    pub(crate) fn choice(name: &str, value: impl fmt::Display, choices: &str) -> Error {
+        Error::option(name, value, format!("must be one of {choices}"))
     }
 
     /// Shorthand for [`ErrorKind::InvalidInput`].
@@ -226,6 +292,39 @@ impl Error {
         })
     }
 
+    /// A CSV reader's error for `path`: an I/O failure stays
+    /// [`ErrorKind::Io`], anything else is [`ErrorKind::Csv`] with its line.
+    pub fn csv(path: impl Into<PathBuf>, e: csv::Error) -> Error {
+        let path = path.into();
+        let line = e.position().map(|p| p.line());
+        if let csv::ErrorKind::Io(_) = e.kind() {
+            if let csv::ErrorKind::Io(io) = e.into_kind() {
+                return Error::io(path, "reading", io);
+            }
+            unreachable!("the kind was checked")
+        }
+        Error::new(ErrorKind::Csv {
+            path,
+            line,
+            source: e,
+        })
+    }
+
+    /// Shorthand for [`ErrorKind::Json`].
+    pub fn json(
+        path: impl Into<PathBuf>,
+        what: impl Into<String>,
+        source: serde_json::Error,
+        fix: impl Into<String>,
+    ) -> Error {
+        Error::new(ErrorKind::Json {
+            path: path.into(),
+            what: what.into(),
+            source,
+            fix: fix.into(),
+        })
+    }
+
     /// Shorthand for [`ErrorKind::ModelFile`].
     pub fn model_file(path: impl Into<PathBuf>, reason: impl Into<String>) -> Error {
         Error::new(ErrorKind::ModelFile {
@@ -233,6 +332,14 @@ impl Error {
             reason: reason.into(),
         })
     }
+}
+
+/// serde_json's message without its own " at line L column C" suffix.
+fn json_message(e: &serde_json::Error) -> String {
+    let text = e.to_string();
+    text.strip_suffix(&format!(" at line {} column {}", e.line(), e.column()))
+        .unwrap_or(&text)
+        .to_string()
 }
 
 fn list(names: &[String]) -> String {
@@ -244,9 +351,89 @@ fn list(names: &[String]) -> String {
     out.join(", ")
 }
 
+impl Error {
+    /// The message with every option named by `name` (the library's own
+    /// names by default; the command line passes its flags).
+    pub(crate) fn render(&self, name: &dyn Fn(&str, Option<&str>) -> String) -> String {
+        let raw = Raw(self).to_string();
+        unmark(&raw, name)
+    }
+}
+
+impl Error {
+    /// For an option error, only its reason (what the valid values are),
+    /// with options named by `name`; for other errors the whole message.
+    pub(crate) fn reason_with(&self, name: &dyn Fn(&str, Option<&str>) -> String) -> String {
+        match &self.0.kind {
+            ErrorKind::InvalidOption { reason, .. } if self.0.context.is_empty() => {
+                unmark(reason, name)
+            }
+            _ => self.render(name),
+        }
+    }
+}
+
+/// Marks an option's name inside a message, so that [`Error::render`] can
+/// show it as the caller names it (`batch_size` in the library,
+/// `--batch-size` on the command line).
+pub(crate) fn opt(name: &str) -> String {
+    format!("{MARK}{name}{MARK}")
+}
+
+/// Marks "option `name` set to `value`" inside a message (`missing = drop`
+/// in the library, `--missing drop` on the command line).
+pub(crate) fn opt_is(name: &str, value: &str) -> String {
+    format!("{MARK}{name}{VALUE}{value}{MARK}")
+}
+
+/// Private-use characters that never occur in a rendered message.
+const MARK: char = '\u{E000}';
+const VALUE: char = '\u{E001}';
+
+/// Replaces every marked option with `name(option, value)`.
+fn unmark(text: &str, name: &dyn Fn(&str, Option<&str>) -> String) -> String {
+    let mut out = String::with_capacity(text.len());
+    let mut parts = text.split(MARK);
+    if let Some(first) = parts.next() {
+        out.push_str(first);
+    }
+    let rest: Vec<&str> = parts.collect();
+    for (i, part) in rest.iter().enumerate() {
+        if i % 2 == 0 && i + 1 < rest.len() {
+            match part.split_once(VALUE) {
+                Some((n, v)) => out.push_str(&name(n, Some(v))),
+                None => out.push_str(&name(part, None)),
+            }
+        } else {
+            out.push_str(part);
+        }
+    }
+    out
+}
+
+/// The library's own naming: `batch_size`, `missing = drop`.
+fn library_name(name: &str, value: Option<&str>) -> String {
+    match value {
+        Some(v) => format!("{name} = {v}"),
+        None => name.to_string(),
+    }
+}
+
 impl fmt::Display for Error {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        match &*self.0 {
+        f.write_str(&self.render(&library_name))
+    }
+}
+
+/// The message with option markers still in it.
+struct Raw<'a>(&'a Error);
+
+impl fmt::Display for Raw<'_> {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        for c in &self.0 .0.context {
+            write!(f, "{c}: ")?;
+        }
+        match &self.0 .0.kind {
             ErrorKind::Io {
                 path,
                 action,
@@ -257,13 +444,26 @@ impl fmt::Display for Error {
                 if let Some(line) = line {
                     write!(f, ": line {line}")?;
                 }
-                let text = source.to_string();
-                if text.contains("invalid UTF-8") {
-                    write!(f, ": the file is not valid UTF-8; save it as UTF-8 text")
-                } else {
-                    write!(f, ": cannot parse as CSV: {text}")
+                match source.kind() {
+                    csv::ErrorKind::Utf8 { .. } => {
+                        write!(f, ": the file is not valid UTF-8; save it as UTF-8 text")
+                    }
+                    _ => write!(f, ": cannot parse as CSV: {source}"),
                 }
             }
+            ErrorKind::Json {
+                path,
+                what,
+                source,
+                fix,
+            } => write!(
+                f,
+                "{}: line {}, column {}: not {what}: {}; {fix}",
+                path.display(),
+                source.line(),
+                source.column(),
+                json_message(source)
+            ),
             ErrorKind::BadValue {
                 path,
                 line,
@@ -284,8 +484,9 @@ impl fmt::Display for Error {
                 value,
             } => write!(
                 f,
-                "{}: line {line}, column \"{column}\" ({index}): missing value \"{value}\"; fill the cell, or pass the option missing = drop (`--missing drop`) to drop rows with missing cells",
-                path.display()
+                "{}: line {line}, column \"{column}\" ({index}): missing value \"{value}\"; fill the cell, or set {} to drop rows with missing cells",
+                path.display(),
+                opt_is("missing", "drop")
             ),
             ErrorKind::MissingColumn {
                 path,
@@ -337,7 +538,7 @@ impl fmt::Display for Error {
                 name,
                 value,
                 reason,
-            } => write!(f, "option {name} = {value}: {reason}"),
+            } => write!(f, "option {} = {value}: {reason}", opt(name)),
             ErrorKind::ShapeMismatch {
                 what,
                 expected,
@@ -353,7 +554,9 @@ impl fmt::Display for Error {
                 loss,
             } => write!(
                 f,
-                "training diverged at epoch {epoch}: the loss became {loss} with learning_rate {learning_rate}; try a smaller learning_rate (e.g. a tenth), standardised inputs, or gradient-friendlier activations"
+                "training diverged at epoch {epoch}: the loss became {loss} with {} {learning_rate}; try a smaller {} (e.g. a tenth), standardised inputs, or gradient-friendlier activations",
+                opt("learning_rate"),
+                opt("learning_rate")
             ),
             ErrorKind::InvalidInput { what, reason } => write!(f, "{what}: {reason}"),
             ErrorKind::ModelFile { path, reason } => {
@@ -367,7 +570,7 @@ impl fmt::Display for Error {
 // the readable message plus the kind's name, not a nested struct dump.
 impl fmt::Debug for Error {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        let name = format!("{:?}", self.0);
+        let name = format!("{:?}", self.0.kind);
         let name = name.split([' ', '{', '(']).next().unwrap_or("Error");
         write!(f, "Error({name}: {self})")
     }
@@ -375,9 +578,10 @@ impl fmt::Debug for Error {
 
 impl std::error::Error for Error {
     fn source(&self) -> Option<&(dyn std::error::Error + 'static)> {
-        match &*self.0 {
+        match &self.0.kind {
             ErrorKind::Io { source, .. } => Some(source),
             ErrorKind::Csv { source, .. } => Some(source),
+            ErrorKind::Json { source, .. } => Some(source),
             _ => None,
         }
     }

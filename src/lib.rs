@@ -8,25 +8,76 @@
 //! the same data, options and seed give bit-identical weights, metrics and
 //! charts on any number of threads.
 //!
+//! ## Quick start in a notebook
+//!
+//! ```text
+//! :dep stratanet = { path = ".." }
+//! use stratanet::prelude::*;
+//! let data = CsvOptions::new("verdict").drop(&["part_id"]).read("../demo-data/parts.csv")?;
+//! let fitted = fit(&data, &FitOptions::default().hidden(&[12]), &mut seeded_rng(42))?;
+//! fitted.learning_curves_chart()?      // a chart as the cell's value shows inline
+//! ```
+//! Every result (a table, a fit, a cross-validation, a model) shows as an
+//! HTML table when it is a cell's last value, and every chart as SVG.
+//!
+//! ## Quick start in plain Rust
+//!
+//! ```
+//! use stratanet::prelude::*;
+//!
+//! let path = concat!(env!("CARGO_MANIFEST_DIR"), "/demo-data/parts.csv");
+//! let data = CsvOptions::new("verdict").drop(&["part_id"]).read(path)?;
+//! let options = FitOptions::default().hidden(&[6]).epochs(40);
+//! let cv = cross_validate(&data, &options, &CvOptions::default(), &mut seeded_rng(42))?;
+//! let accuracy = cv.metric(Metric::Accuracy)?;
+//! println!("accuracy {:.3} over {} folds", accuracy.summary.mean, accuracy.values.len());
+//! let fitted = fit(&data, &options, &mut seeded_rng(42))?;
+//! let chart = fitted.model().decision_map_chart(&data, "bore_dev_um", "roundness_um")?;
+//! assert!(chart.as_svg().starts_with("<svg"));
+//! # Ok::<(), stratanet::Error>(())
+//! ```
+//!
 //! ## Module map
-//! - [`data`]: tables from CSV or arrays, scaling, splits and folds.
-//! - [`network`]: layers, activations, output heads, initialisation, prediction.
-//! - [`train`]: losses, optimisers, schedules, early stopping, gradient checks.
-//! - [`model_file`]: saving and loading fitted models, reading new rows by column name.
-//! - [`error`]: the [`Error`] type with file, line, column and fix.
+//!
+//! - [`prelude`]: the dozen names a notebook or a script needs.
+//! - [`data`]: tables from CSV or arrays ([`Dataset`](data::Dataset)),
+//!   scaling, splits and folds.
+//! - [`network`]: layers, activations, output heads, initialisation,
+//!   arithmetic modes, prediction.
+//! - [`train`]: training one network: losses, optimisers, schedules,
+//!   penalties, early stopping, gradient checks.
+//! - [`fit`](mod@fit): one call from a table to a [`Model`] ([`fit()`]), with its
+//!   options and provenance.
+//! - [`model_file`]: the versioned model file behind [`Model::save`] and
+//!   [`Model::load`], and reading new rows for a model by column name.
+//! - [`validate`]: metrics, statistics, cross-validation, sweeps and their
+//!   plan files, comparisons, the counted hold-out set.
+//! - [`chart`]: charts as SVG (methods on results, the chart kinds on plain
+//!   data in [`chart::plot`]).
+//! - [`observe`]: progress events from long runs; the library never prints.
+//! - [`error`]: the [`Error`] type with file, line, column, option and fix.
 //! - [`rng`]: the seeded ChaCha8 generator and portable draws.
+//!
+//! The command line (`stratanet --help`) is the same library behind
+//! [`command_line_main`]; [`check_command_line`] checks a command line
+//! without running it.
+//!
+//! ## Features
+//!
+//! None: the charts, model files and command line are always built.
 #![warn(missing_docs)]
 #![doc(test(attr(deny(warnings))))]
 
 mod atomic;
 pub mod chart;
-pub mod cli;
+mod cli;
 pub mod data;
 pub mod error;
 pub mod fit;
 pub mod model_file;
 pub mod network;
-pub mod notebook;
+mod notebook;
+pub mod observe;
 pub mod prelude;
 mod report;
 pub mod rng;
@@ -34,10 +85,39 @@ pub mod train;
 pub mod validate;
 
 pub use error::{Error, ErrorKind, Result};
-pub use rng::seeded_rng;
-
-pub use fit::{fit, fit_with_seed, FitOptions, Fitted, Model, Provenance};
-pub use model_file::{load as load_model, save as save_model};
+pub use fit::{fit, FitOptions, Fitted, Model};
 pub use ndarray;
 pub use rand;
-pub use report::{analyse, fit_csv, Analysis};
+pub use report::{fit_csv, Analysis};
+pub use rng::seeded_rng;
+
+/// The `stratanet` binary's entry point: reads the process's arguments,
+/// prepares and runs the command, prints its result (text, or one JSON
+/// object with `--json`) and returns the exit code: 0 on success, 2 on bad
+/// input or usage, with a message on stderr naming the file, line, column or
+/// flag.
+pub fn command_line_main() -> i32 {
+    cli::main()
+}
+
+/// Checks a command line (without the program name) as the `stratanet`
+/// binary would before doing any work: the arguments parse, every option is
+/// valid, and no output path is an input. Nothing is read for its content or
+/// written.
+///
+/// # Errors
+/// The message the binary would print (a usage message, or an option error
+/// naming the flag).
+///
+/// ```
+/// assert!(stratanet::check_command_line(["cv", "t.csv", "--target", "y", "--folds", "1"])
+///     .unwrap_err()
+///     .contains("--folds"));
+/// ```
+pub fn check_command_line<I, S>(args: I) -> std::result::Result<(), String>
+where
+    I: IntoIterator<Item = S>,
+    S: Into<std::ffi::OsString> + Clone,
+{
+    cli::check(args).map_err(|e| e.message())
+}

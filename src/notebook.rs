@@ -158,7 +158,7 @@ impl TrainingReport {
                     "no".into()
                 },
             ],
-            vec!["final training loss".into(), f(self.final_training_loss())],
+            vec!["final training loss".into(), f(self.final_training_loss)],
         ];
         if let Some(v) = self.best_validation_loss {
             rows.push(vec!["best validation loss".into(), f(v)]);
@@ -485,7 +485,8 @@ impl Sweep {
         let mut h = self.table.to_html();
         h.push_str(&notes(&[format!(
             "Best: {}, refitted on all {} rows given to the sweep.",
-            self.table.rows[0].name, self.best.model.provenance.table_rows
+            self.table.rows[0].name,
+            self.best.model().provenance.table_rows
         )]));
         h
     }
@@ -548,15 +549,15 @@ impl Model {
 impl Fitted {
     /// The model, the training summary and the network table.
     pub fn to_html(&self) -> String {
-        let mut h = self.report.to_html();
-        if self.restarts.len() > 1 {
+        let mut h = self.report().to_html();
+        if self.restarts().len() > 1 {
             h.push_str(&notes(&[format!(
                 "Kept restart {} of {} (lowest validation loss).",
-                self.chosen_restart + 1,
-                self.restarts.len()
+                self.chosen_restart() + 1,
+                self.restarts().len()
             )]));
         }
-        h.push_str(&self.model.to_html());
+        h.push_str(&self.model().to_html());
         h
     }
 

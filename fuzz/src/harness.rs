@@ -14,7 +14,7 @@ use std::path::Path;
 use std::sync::OnceLock;
 use stratanet::data::{CsvOptions, Dataset, Missing, Scaler, Scaling, Target, TargetKind};
 use stratanet::fit::{fit_with_seed, FitOptions, Model};
-use stratanet::model_file::{self, FeatureOptions, TargetColumn};
+use stratanet::model_file::{FeatureOptions, TargetColumn};
 use stratanet::validate::{metrics::Metric, CvOptions, Grid, SweepPlan};
 
 const DELIMITERS: [u8; 4] = [b',', b';', b'\t', b'|'];
@@ -50,24 +50,24 @@ fn pick(names: &[String], byte: u8) -> String {
 
 /// Invariants of a table that was read without error.
 fn check_dataset(d: &Dataset) {
-    let (rows, cols) = d.features.dim();
+    let (rows, cols) = d.x().dim();
     assert!(rows > 0, "a table with no rows was accepted");
     assert_eq!(
-        d.feature_names.len(),
+        d.feature_names().len(),
         cols,
         "feature names and columns differ"
     );
     assert_eq!(
-        d.columns.iter().map(|c| c.width()).sum::<usize>(),
+        d.columns().iter().map(|c| c.width()).sum::<usize>(),
         cols,
         "column encodings and feature width differ"
     );
     assert!(
-        d.features.iter().all(|v| v.is_finite()),
+        d.x().iter().all(|v| v.is_finite()),
         "a non-finite feature was accepted"
     );
-    assert_eq!(d.target.len(), rows, "target and features differ in rows");
-    match &d.target {
+    assert_eq!(d.target().len(), rows, "target and features differ in rows");
+    match &d.target() {
         Target::Classes { labels, names } => {
             assert!(names.len() >= 2, "fewer than two classes were accepted");
             assert!(
@@ -82,8 +82,8 @@ fn check_dataset(d: &Dataset) {
     }
     let _ = d.fingerprint();
     for kind in [Scaling::Standardise, Scaling::MinMax] {
-        let s = Scaler::fit(kind, d.x(), None).expect("a finite table scales");
-        let t = s.transform(d.x()).expect("the same width transforms");
+        let s = Scaler::from_rows(kind, d.x(), None).expect("a finite table scales");
+        let t = s.scaled(d.x()).expect("the same width transforms");
         assert!(
             t.iter().all(|v| v.is_finite()),
             "scaling made a non-finite value"
@@ -152,10 +152,13 @@ fn fixed_model() -> &'static Model {
         let data = CsvOptions::new("grade")
             .read_str(&text, "fixed.csv")
             .expect("the fixed table reads");
-        let options = FitOptions::default().hidden(&[3]).epochs(5).batch_size(8);
+        let options = FitOptions::default()
+            .hidden(&[3])
+            .epochs(5)
+            .batch_size(stratanet::train::BatchSize::Rows(8));
         fit_with_seed(&data, &options, 7)
             .expect("the fixed model fits")
-            .model
+            .into_model()
     })
 }
 
@@ -183,7 +186,7 @@ pub fn feature_table(data: &[u8]) {
         .delimiter(DELIMITERS[((flags >> 4) & 3) as usize]);
     match options.read_from(model, body, Path::new("fuzz.csv")) {
         Ok(t) => {
-            assert_eq!(t.features.ncols(), model.network.sizes()[0]);
+            assert_eq!(t.features.ncols(), model.network().sizes()[0]);
             assert_eq!(t.lines.len(), t.n_rows());
             assert!(t.features.iter().all(|v| v.is_finite()));
             let p = model
@@ -202,9 +205,9 @@ pub fn model_file(data: &[u8]) {
     let Ok(text) = std::str::from_utf8(data) else {
         return;
     };
-    match model_file::from_json(text, "fuzz.json") {
+    match stratanet::Model::from_json(text, "fuzz.json") {
         Ok(m) => {
-            let inputs = m.network.sizes()[0];
+            let inputs = m.network().sizes()[0];
             let x = Array2::<f64>::zeros((3, inputs));
             if let Ok(out) = m.predict(x.view()) {
                 assert!(
@@ -212,9 +215,10 @@ pub fn model_file(data: &[u8]) {
                     "a loaded model predicts non-finite"
                 );
             }
-            let again = model_file::to_json(&m).expect("a loaded model writes");
-            let back = model_file::from_json(&again, "again.json").expect("written text loads");
-            assert_eq!(model_file::to_json(&back).expect("writes"), again);
+            let again = m.to_json().expect("a loaded model writes");
+            let back =
+                stratanet::Model::from_json(&again, "again.json").expect("written text loads");
+            assert_eq!(back.to_json().expect("writes"), again);
         }
         Err(e) => check_error(&e, "fuzz.json"),
     }
@@ -237,7 +241,10 @@ fn fixed_plan() -> &'static (Dataset, SweepPlan) {
         let data = CsvOptions::new("class")
             .read_str(&text, "plan.csv")
             .expect("reads");
-        let base = FitOptions::default().hidden(&[2]).epochs(2).batch_size(4);
+        let base = FitOptions::default()
+            .hidden(&[2])
+            .epochs(2)
+            .batch_size(stratanet::train::BatchSize::Rows(4));
         let grid = Grid {
             learning_rates: vec![0.1, 0.2],
             ..Grid::default()
@@ -266,7 +273,8 @@ pub fn sweep_files(data: &[u8]) {
     };
     if mode & 1 == 0 {
         match stratanet::validate::sweep_files::parse_plan(text, Path::new("fuzz.plan")) {
-            Ok((plan, _table)) => {
+            Ok(file) => {
+                let plan = &file.plan;
                 let rows = plan
                     .folds
                     .folds
@@ -282,11 +290,18 @@ pub fn sweep_files(data: &[u8]) {
         }
     } else {
         let (data, plan) = fixed_plan();
-        match stratanet::validate::sweep_files::parse_trial(text, Path::new("fuzz.trial"), plan) {
-            Ok((index, result, rows, classes)) => {
-                assert!(index < plan.trials().len());
-                let all = vec![result; plan.trials().len()];
-                match plan.merge(rows, &classes, all) {
+        let checksum = fixed_plan_checksum();
+        let trials = plan.trials().len();
+        match stratanet::validate::sweep_files::parse_trial(
+            text,
+            Path::new("fuzz.trial"),
+            &checksum,
+            trials,
+        ) {
+            Ok(t) => {
+                assert!(t.trial < trials);
+                let all = vec![t.result; trials];
+                match plan.merge(t.rows, &t.classes, all) {
                     Ok(table) => assert_eq!(table.rows.len(), plan.configurations.len()),
                     Err(e) => check_error(&e, "fuzz.trial"),
                 }
@@ -315,13 +330,24 @@ pub fn cli_args(data: &[u8]) {
             }
         })
         .collect();
-    if let Err(e) = stratanet::cli::check_arguments(args) {
-        check_error(&e, "arguments");
+    if let Err(message) = stratanet::check_command_line(args) {
+        assert!(!message.trim().is_empty(), "an empty error message");
     }
 }
 
+/// How the fixed plan's table is read.
+pub fn fixed_plan_table() -> CsvOptions {
+    CsvOptions::new("class")
+}
+
+/// The checksum of the fixed plan's file, which trial files name.
+pub fn fixed_plan_checksum() -> String {
+    let (_, plan) = fixed_plan();
+    stratanet::validate::sweep_files::plan_checksum(plan, &fixed_plan_table())
+}
+
 /// The fixed table and plan that trial files are checked against (for
-/// writing seed trial files that carry the right plan fingerprint).
+/// writing seed trial files that carry the right plan checksum).
 pub fn fixed_plan_parts() -> (Dataset, SweepPlan) {
     let (data, plan) = fixed_plan();
     (data.clone(), plan.clone())

@@ -53,7 +53,8 @@ const MEAN: theme::Rgb = theme::INK;
 /// # Example
 ///
 /// ```
-/// use stratanet::chart::{cross_validation_comparison, ChartOptions, ConfigurationScores};
+/// use stratanet::chart::plot::{cross_validation_comparison, ConfigurationScores};
+/// use stratanet::chart::ChartOptions;
 ///
 /// let small = ConfigurationScores {
 ///     name: "1 x 8".into(),

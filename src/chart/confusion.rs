@@ -39,7 +39,8 @@ const BAR_WIDTH: f64 = 60.0;
 /// # Example
 ///
 /// ```
-/// use stratanet::chart::{confusion_matrix, ChartOptions};
+/// use stratanet::chart::plot::confusion_matrix;
+/// use stratanet::chart::ChartOptions;
 ///
 /// let counts = vec![vec![48, 2], vec![5, 45]];
 /// let chart = confusion_matrix(&counts, &["pass", "fail"], &ChartOptions::default())?;

@@ -47,7 +47,8 @@ enum Kind {
 /// # Example
 ///
 /// ```
-/// use stratanet::chart::{roc_curves, ChartOptions, Curve};
+/// use stratanet::chart::plot::{roc_curves, Curve};
+/// use stratanet::chart::ChartOptions;
 ///
 /// let curve = Curve {
 ///     label: "fail".into(),
@@ -78,7 +79,8 @@ pub fn roc_curves(curves: &[Curve], options: &ChartOptions) -> Result<Chart> {
 /// # Example
 ///
 /// ```
-/// use stratanet::chart::{precision_recall_curves, ChartOptions, Curve};
+/// use stratanet::chart::plot::{precision_recall_curves, Curve};
+/// use stratanet::chart::ChartOptions;
 ///
 /// let curve = Curve {
 ///     label: "fail".into(),

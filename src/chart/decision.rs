@@ -108,7 +108,8 @@ impl Default for DecisionMapOptions {
 /// # Example
 ///
 /// ```
-/// use stratanet::chart::{decision_map, ClassPoints, DecisionMapOptions};
+/// use stratanet::chart::plot::{decision_map, ClassPoints};
+/// use stratanet::chart::DecisionMapOptions;
 /// use stratanet::ndarray::{Array2, ArrayView2};
 ///
 /// // P(class 1) rises across the line x + y = 1.

@@ -75,7 +75,8 @@ impl Chart {
     /// # Example
     ///
     /// ```no_run
-    /// # use stratanet::chart::{confusion_matrix, ChartOptions};
+    /// # use stratanet::chart::plot::confusion_matrix;
+    /// # use stratanet::chart::ChartOptions;
     /// let chart = confusion_matrix(&[vec![5, 1], vec![2, 7]], &["pass", "fail"], &ChartOptions::default())?;
     /// chart.save("confusion.svg")?;
     /// # Ok::<(), stratanet::Error>(())

@@ -55,7 +55,8 @@ struct PanelData {
 /// # Example
 ///
 /// ```
-/// use stratanet::chart::{hidden_layer, ChartOptions, HiddenView};
+/// use stratanet::chart::plot::hidden_layer;
+/// use stratanet::chart::{ChartOptions, HiddenView};
 /// use stratanet::ndarray::array;
 ///
 /// let codes = array![[0.1, 0.9, 0.3], [0.2, 0.8, 0.4], [0.9, 0.1, 0.5], [0.8, 0.2, 0.6]];

@@ -118,7 +118,8 @@ struct Series {
 /// # Example
 ///
 /// ```
-/// use stratanet::chart::{learning_curves, LearningCurveOptions, TrainingHistory, YScale};
+/// use stratanet::chart::plot::{learning_curves, TrainingHistory, YScale};
+/// use stratanet::chart::LearningCurveOptions;
 ///
 /// let run = TrainingHistory {
 ///     training_loss: vec![0.9, 0.5, 0.3, 0.2, 0.15],

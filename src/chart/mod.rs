@@ -2,14 +2,26 @@
 //! confusion matrices, ROC and precision-recall curves, cross-validation
 //! comparisons and network diagrams.
 //!
-//! Every chart function takes plain data (vectors, `ndarray` arrays and the
-//! small input structs defined here) and returns a [`Chart`], which holds the
-//! SVG text. In an evcxr notebook a `Chart` as the last expression of a cell
-//! shows as a picture ([`Chart::evcxr_display`]); elsewhere save it with
-//! [`Chart::save`] or take the text with [`Chart::as_svg`].
+//! **One naming scheme.** Every result that can be drawn has methods named
+//! for what they show, ending in `_chart`, each returning a [`Chart`]:
+//!
+//! | result | charts |
+//! |---|---|
+//! | [`Fitted`](crate::Fitted) | `learning_curves_chart()` |
+//! | [`Model`](crate::Model) | `decision_map_chart(&data, x, y)`, `decision_map_components_chart(&data)`, `hidden_layer_chart(&data, layer, view)`, `roc_chart(&data)`, `precision_recall_chart(&data)`, `network_chart()` |
+//! | [`CrossValidation`](crate::validate::CrossValidation) | `scores_chart(metric)`, `learning_curves_chart()` |
+//! | [`Comparison`](crate::validate::Comparison) | `scores_chart(metric, a_name, b_name)` |
+//! | [`ClassificationMetrics`](crate::validate::ClassificationMetrics) | `confusion_chart()` |
+//!
+//! The chart kinds themselves, on plain data (vectors, `ndarray` arrays and
+//! small input structs), are one module down, in [`plot`]. In an evcxr
+//! notebook a `Chart` as the last expression of a cell shows as a picture
+//! ([`Chart::evcxr_display`]); elsewhere save it with [`Chart::save`] or
+//! take the text with [`Chart::as_svg`].
 //!
 //! ```
-//! use stratanet::chart::{learning_curves, LearningCurveOptions, TrainingHistory};
+//! use stratanet::chart::plot::{learning_curves, TrainingHistory};
+//! use stratanet::chart::LearningCurveOptions;
 //!
 //! let run = TrainingHistory::new(vec![0.9, 0.6, 0.45, 0.40, 0.38]);
 //! let chart = learning_curves(&[run], &LearningCurveOptions::default())?;
@@ -40,7 +52,7 @@
 //!   thinned deterministically (every k-th point, or epochs averaged in
 //!   blocks) above [`MAX_POINTS`] points or [`MAX_EPOCHS`] epochs, and the
 //!   chart says so in a note.
-//! - **No panics.** Empty or unusable input gives an [`Error`] of kind
+//! - **No panics.** Empty or unusable input gives an [`Error`](crate::Error) of kind
 //!   [`ErrorKind::InvalidInput`](crate::ErrorKind::InvalidInput) or
 //!   [`ErrorKind::InvalidOption`](crate::ErrorKind::InvalidOption); partly
 //!   unusable input (NaN values, one class) gives a chart with a note saying
@@ -58,6 +70,7 @@ mod labels;
 mod learning;
 mod network;
 mod pca;
+pub mod plot;
 mod results;
 mod scatter;
 pub mod theme;
@@ -65,22 +78,12 @@ pub mod theme;
 #[cfg(test)]
 mod testing;
 
-pub use compare::{cross_validation_comparison, ConfigurationScores};
-pub use confusion::confusion_matrix;
-pub use curves::{precision_recall_curves, roc_curves, Curve};
-pub use decision::{decision_map, ClassPoints, DecisionMapOptions, CONTOUR_STROKE, CONTOUR_WIDTH};
+pub use decision::DecisionMapOptions;
 pub use figure::{Chart, ChartOptions, MAX_EPOCHS, MAX_POINTS};
-pub use hidden::{hidden_layer, HiddenView};
+pub use hidden::HiddenView;
 pub use labels::{axis_label, UNIT_SUFFIXES};
 pub(crate) use labels::{class_names, decision_features, group_digits, stride};
-pub use learning::{learning_curves, LearningCurveOptions, TrainingHistory, YScale};
-pub use network::{network_diagram, NetworkWeights, MAX_NODES_PER_LAYER};
-pub use pca::{principal_components_2, PrincipalComponents};
-pub use results::{
-    confusion, cv_comparison, decision_boundary, decision_boundary_principal,
-    decision_boundary_with, hidden_layer_view, network, precision_recall, roc, training_curves,
-    training_curves_with,
-};
+pub use learning::LearningCurveOptions;
 
 #[cfg(test)]
 mod tests {

@@ -50,7 +50,7 @@ pub struct PrincipalComponents {
 /// # Example
 ///
 /// ```
-/// use stratanet::chart::principal_components_2;
+/// use stratanet::chart::plot::principal_components_2;
 /// use stratanet::ndarray::array;
 ///
 /// let data = array![[1.0, 2.0, 0.0], [2.0, 4.1, 0.1], [3.0, 5.9, 0.0], [4.0, 8.0, 0.1]];

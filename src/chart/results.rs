@@ -1,20 +1,25 @@
-//! One-call charts of stratanet's own results: fitted models, tables,
-//! metrics and cross-validations. Each turns the result into the plain
-//! inputs of a chart kind and draws it with the default options (pass
-//! [`ChartOptions`] to the `_with` forms to change size, title or labels).
+//! Charts of stratanet's own results, as methods named `..._chart` on the
+//! result they draw from: `fitted.learning_curves_chart()`,
+//! `model.decision_map_chart(&data, x, y)`, `cv.scores_chart(metric)`,
+//! `metrics.confusion_chart()`. Each turns the result into the plain inputs
+//! of a chart kind in [`plot`](super::plot) and draws it with the default
+//! options.
 
-use super::{
-    confusion_matrix, cross_validation_comparison, decision_map, hidden_layer, learning_curves,
-    network_diagram, precision_recall_curves, principal_components_2, roc_curves, Chart,
-    ChartOptions, ClassPoints, ConfigurationScores, Curve, DecisionMapOptions, HiddenView,
-    LearningCurveOptions, NetworkWeights, TrainingHistory,
-};
+use super::compare::{cross_validation_comparison, ConfigurationScores};
+use super::confusion::confusion_matrix;
+use super::curves::{precision_recall_curves, roc_curves, Curve};
+use super::decision::{decision_map, ClassPoints, DecisionMapOptions};
+use super::figure::{Chart, ChartOptions};
+use super::hidden::{hidden_layer, HiddenView};
+use super::learning::{learning_curves, LearningCurveOptions, TrainingHistory};
+use super::network::{network_diagram, NetworkWeights};
+use super::pca::principal_components_2;
 use crate::data::Dataset;
 use crate::error::{Error, Result};
 use crate::fit::{Fitted, Model};
 use crate::train::TrainingReport;
 use crate::validate::metrics::{precision_recall_curve, roc_curve};
-use crate::validate::{ClassificationMetrics, CrossValidation, Metric};
+use crate::validate::{ClassificationMetrics, Comparison, CrossValidation, Metric};
 use ndarray::{Array2, ArrayView2, Axis};
 
 fn history(r: &TrainingReport) -> TrainingHistory {
@@ -32,23 +37,55 @@ fn history(r: &TrainingReport) -> TrainingHistory {
     }
 }
 
-/// Learning curves of every restart of a fit (a bundle with medians when
-/// there were several), the kept epoch marked.
-///
-/// # Errors
-/// As [`learning_curves`].
-pub fn training_curves(fitted: &Fitted) -> Result<Chart> {
-    training_curves_with(&fitted.restarts, &LearningCurveOptions::default())
+impl Fitted {
+    /// Learning curves of every restart of the fit (a bundle with medians
+    /// when there were several), the kept epoch marked.
+    ///
+    /// # Errors
+    /// As [`plot::learning_curves`](super::plot::learning_curves).
+    pub fn learning_curves_chart(&self) -> Result<Chart> {
+        reports_chart(self.restarts(), &LearningCurveOptions::default())
+    }
+}
+
+impl CrossValidation {
+    /// Learning curves of every fold's fit.
+    ///
+    /// # Errors
+    /// As [`plot::learning_curves`](super::plot::learning_curves).
+    pub fn learning_curves_chart(&self) -> Result<Chart> {
+        let reports: Vec<TrainingReport> = self.folds.iter().map(|f| f.report.clone()).collect();
+        reports_chart(
+            &reports,
+            &LearningCurveOptions {
+                chart: ChartOptions::titled(format!("Learning curves of {} folds", reports.len())),
+                ..Default::default()
+            },
+        )
+    }
+
+    /// The per-fold scores of `metric` with their mean and 95% interval.
+    ///
+    /// # Errors
+    /// A metric that does not apply.
+    pub fn scores_chart(&self, metric: Metric) -> Result<Chart> {
+        scores_chart(&[("this configuration", self)], metric)
+    }
+}
+
+impl Comparison {
+    /// The two configurations' per-fold scores of `metric` side by side,
+    /// named `a_name` and `b_name`.
+    ///
+    /// # Errors
+    /// A metric that does not apply.
+    pub fn scores_chart(&self, metric: Metric, a_name: &str, b_name: &str) -> Result<Chart> {
+        scores_chart(&[(a_name, &self.a), (b_name, &self.b)], metric)
+    }
 }
 
 /// Learning curves of several training reports.
-///
-/// # Errors
-/// As [`learning_curves`].
-pub fn training_curves_with(
-    reports: &[TrainingReport],
-    options: &LearningCurveOptions,
-) -> Result<Chart> {
+fn reports_chart(reports: &[TrainingReport], options: &LearningCurveOptions) -> Result<Chart> {
     let runs: Vec<TrainingHistory> = reports.iter().map(history).collect();
     let mut options = options.clone();
     if options.chart.title.is_none() {
@@ -113,31 +150,96 @@ fn medians(x: ArrayView2<'_, f64>) -> Vec<f64> {
         .collect()
 }
 
-/// A decision-boundary map over two features of `data` (raw units), the
-/// other features held at their medians in `data` (pass the training rows).
-///
-/// # Errors
-/// Unknown feature names (listed), a regression model, mismatched tables.
-pub fn decision_boundary(
-    model: &Model,
-    data: &Dataset,
-    x_feature: &str,
-    y_feature: &str,
-) -> Result<Chart> {
-    decision_boundary_with(
-        model,
-        data,
-        x_feature,
-        y_feature,
-        &DecisionMapOptions::default(),
-    )
+impl Model {
+    /// A decision map over two features of `data` (raw units), the other
+    /// features held at their medians in `data` (pass the training rows).
+    ///
+    /// # Errors
+    /// Unknown feature names (listed), a regression model, mismatched tables.
+    pub fn decision_map_chart(
+        &self,
+        data: &Dataset,
+        x_feature: &str,
+        y_feature: &str,
+    ) -> Result<Chart> {
+        self.decision_map_chart_with(data, x_feature, y_feature, &DecisionMapOptions::default())
+    }
+
+    /// [`Model::decision_map_chart`] with options.
+    ///
+    /// # Errors
+    /// As [`Model::decision_map_chart`].
+    pub fn decision_map_chart_with(
+        &self,
+        data: &Dataset,
+        x_feature: &str,
+        y_feature: &str,
+        options: &DecisionMapOptions,
+    ) -> Result<Chart> {
+        decision_boundary_with(self, data, x_feature, y_feature, options)
+    }
+
+    /// A decision map over the first two principal components of the
+    /// standardised features of `data` (for tables with more than two
+    /// features).
+    ///
+    /// # Errors
+    /// A regression model, fewer than two features, mismatched tables.
+    pub fn decision_map_components_chart(&self, data: &Dataset) -> Result<Chart> {
+        decision_boundary_principal(self, data)
+    }
+
+    /// What hidden layer `layer` (from 1) makes of the rows of `data`,
+    /// coloured by class.
+    ///
+    /// # Errors
+    /// No such layer, a table without classes, mismatched tables.
+    pub fn hidden_layer_chart(
+        &self,
+        data: &Dataset,
+        layer: usize,
+        view: HiddenView,
+    ) -> Result<Chart> {
+        hidden_layer_view(self, data, layer, view)
+    }
+
+    /// ROC curves on `data` (one per class for several classes,
+    /// one-vs-rest), AUC in the legend.
+    ///
+    /// # Errors
+    /// A regression model or a table without classes.
+    pub fn roc_chart(&self, data: &Dataset) -> Result<Chart> {
+        roc(self, data)
+    }
+
+    /// Precision-recall curves on `data`, average precision in the legend.
+    ///
+    /// # Errors
+    /// A regression model or a table without classes.
+    pub fn precision_recall_chart(&self, data: &Dataset) -> Result<Chart> {
+        precision_recall(self, data)
+    }
+
+    /// The network as a diagram, inputs and outputs named.
+    ///
+    /// # Errors
+    /// As [`plot::network_diagram`](super::plot::network_diagram).
+    pub fn network_chart(&self) -> Result<Chart> {
+        network(self)
+    }
 }
 
-/// [`decision_boundary`] with options.
-///
-/// # Errors
-/// As [`decision_boundary`].
-pub fn decision_boundary_with(
+impl ClassificationMetrics {
+    /// The confusion matrix as a heat map.
+    ///
+    /// # Errors
+    /// As [`plot::confusion_matrix`](super::plot::confusion_matrix).
+    pub fn confusion_chart(&self) -> Result<Chart> {
+        confusion(self)
+    }
+}
+
+fn decision_boundary_with(
     model: &Model,
     data: &Dataset,
     x_feature: &str,
@@ -185,9 +287,9 @@ pub fn decision_boundary_with(
 ///
 /// # Errors
 /// A regression model, fewer than two features, mismatched tables.
-pub fn decision_boundary_principal(model: &Model, data: &Dataset) -> Result<Chart> {
+fn decision_boundary_principal(model: &Model, data: &Dataset) -> Result<Chart> {
     model.check_features(data)?;
-    let scaled = model.scaler.transform(data.x())?;
+    let scaled = model.scaler().scaled(data.x())?;
     let pcs = principal_components_2(scaled.view())?;
     let share = |k: usize| 100.0 * pcs.variances[k] / pcs.total_variance.max(f64::MIN_POSITIVE);
     let x_name = format!("component 1 ({:.0}% of variance)", share(0));
@@ -202,7 +304,7 @@ pub fn decision_boundary_principal(model: &Model, data: &Dataset) -> Result<Char
                     pcs.means[c] + g[0] * pcs.components[[0, c]] + g[1] * pcs.components[[1, c]];
             }
         }
-        model.network.predict_probabilities(rows.view())
+        model.network().predict_probabilities(rows.view())
     };
     let options = DecisionMapOptions {
         chart: ChartOptions::titled("Decision map over the first two principal components"),
@@ -217,7 +319,7 @@ pub fn decision_boundary_principal(model: &Model, data: &Dataset) -> Result<Char
 ///
 /// # Errors
 /// No such layer, a table without classes, mismatched tables.
-pub fn hidden_layer_view(
+fn hidden_layer_view(
     model: &Model,
     data: &Dataset,
     layer: usize,
@@ -235,7 +337,7 @@ pub fn hidden_layer_view(
     let options = ChartOptions::titled(format!(
         "Hidden layer {layer} ({} units, {})",
         a.ncols(),
-        model.network.activation().name()
+        model.network().activation().name()
     ));
     hidden_layer(a.view(), labels, &names, view, &options)
 }
@@ -244,7 +346,7 @@ pub fn hidden_layer_view(
 ///
 /// # Errors
 /// As [`confusion_matrix`].
-pub fn confusion(metrics: &ClassificationMetrics) -> Result<Chart> {
+fn confusion(metrics: &ClassificationMetrics) -> Result<Chart> {
     confusion_matrix(
         metrics.confusion.counts(),
         &metrics.class_names,
@@ -295,7 +397,7 @@ fn class_curves(
 ///
 /// # Errors
 /// A regression model or a table without classes.
-pub fn roc(model: &Model, data: &Dataset) -> Result<Chart> {
+fn roc(model: &Model, data: &Dataset) -> Result<Chart> {
     let curves = class_curves(model, data, |s, t| {
         let c = roc_curve(s, t)?;
         Ok((
@@ -314,7 +416,7 @@ pub fn roc(model: &Model, data: &Dataset) -> Result<Chart> {
 ///
 /// # Errors
 /// A regression model or a table without classes.
-pub fn precision_recall(model: &Model, data: &Dataset) -> Result<Chart> {
+fn precision_recall(model: &Model, data: &Dataset) -> Result<Chart> {
     let curves = class_curves(model, data, |s, t| {
         let c = precision_recall_curve(s, t)?;
         Ok((
@@ -330,7 +432,7 @@ pub fn precision_recall(model: &Model, data: &Dataset) -> Result<Chart> {
 ///
 /// # Errors
 /// A metric that does not apply, or no configurations.
-pub fn cv_comparison(configurations: &[(&str, &CrossValidation)], metric: Metric) -> Result<Chart> {
+fn scores_chart(configurations: &[(&str, &CrossValidation)], metric: Metric) -> Result<Chart> {
     let scores = configurations
         .iter()
         .map(|(name, cv)| {
@@ -358,16 +460,17 @@ pub fn cv_comparison(configurations: &[(&str, &CrossValidation)], metric: Metric
 ///
 /// # Errors
 /// As [`network_diagram`].
-pub fn network(model: &Model) -> Result<Chart> {
-    let net = &model.network;
+fn network(model: &Model) -> Result<Chart> {
+    let net = model.network();
+    let names = model.target_names();
     let weights = NetworkWeights {
         layer_sizes: net.sizes(),
         weights: net.layers().iter().map(|l| l.weights.clone()).collect(),
-        input_names: Some(model.feature_names.clone()),
-        output_names: Some(if model.is_classifier && net.n_outputs() == 1 {
-            vec![format!("P({})", model.target_names[1])]
+        input_names: Some(model.feature_names().to_vec()),
+        output_names: Some(if model.is_classifier() && net.n_outputs() == 1 {
+            vec![format!("P({})", names[1])]
         } else {
-            model.target_names.clone()
+            names.to_vec()
         }),
     };
     network_diagram(&weights, &ChartOptions::titled("Network"))

@@ -1,18 +1,19 @@
-//! Command-line arguments "as typed", and their conversion into library
-//! options "as validated" (every refusal names the flag).
+//! Command-line arguments as typed. Every choice parses with the library
+//! type's own `FromStr` (so the valid values and the error text are the
+//! library's), and every flag whose default depends on the data or on
+//! another flag is an `Option` (left out means "the library decides").
 
-use crate::data::{CsvOptions, Missing, Scaling};
-use crate::error::{Error, Result};
-use crate::fit::FitOptions;
-use crate::network::{Activation, Init, Precision};
-use crate::train::{EarlyStopping, Optimiser, Schedule};
+use crate::data::{Missing, Scaling};
+use crate::network::{Activation, Arithmetic, Init, Precision};
+use crate::train::{BatchSize, Loss, Optimiser, Schedule};
+use crate::validate::Metric;
 use clap::{Args, Parser, Subcommand};
 use std::path::PathBuf;
 
 /// stratanet: fit, validate and chart small neural networks on tabular data.
 #[derive(Debug, Parser)]
 #[command(name = "stratanet", version, about, long_about = None, disable_help_subcommand = true)]
-pub struct Cli {
+pub(crate) struct Cli {
     /// What to do.
     #[command(subcommand)]
     pub command: Command,
@@ -20,7 +21,7 @@ pub struct Cli {
 
 /// The subcommands.
 #[derive(Debug, Subcommand)]
-pub enum Command {
+pub(crate) enum Command {
     /// Train a network on a CSV file and save the model.
     #[command(
         after_help = "Example:\n  stratanet fit demo-data/parts.csv --target verdict --drop part_id --out parts-model.json"
@@ -41,19 +42,19 @@ pub enum Command {
     Cv(CvArgs),
     /// Cross-validate a grid of configurations on shared folds.
     #[command(
-        after_help = "Example:\n  stratanet sweep demo-data/parts.csv --target verdict --drop part_id --grid-hidden 4,8,8-8 --grid-learning-rate 0.01,0.03\n\nRunning trials elsewhere (an array job):\n  stratanet sweep ... --write-plan plan.json      # one JSON line per trial, folds and seeds fixed\n  stratanet sweep-trial plan.json demo-data/parts.csv --trial 7 --out trial-7.json\n  stratanet sweep-merge plan.json trial-*.json"
+        after_help = "Example:\n  stratanet sweep demo-data/parts.csv --target verdict --drop part_id --grid-hidden 4,8,8-8 --grid-learning-rate 0.01,0.03\n\nRunning trials elsewhere (an array job):\n  stratanet sweep ... --write-plan plan.jsonl     # one JSON line per trial, folds and seeds fixed\n  stratanet sweep-trial plan.jsonl demo-data/parts.csv --trial 7 --out trial-7.json\n  stratanet sweep-merge plan.jsonl trial-*.json"
     )]
     Sweep(SweepArgs),
     /// Run one trial of a sweep plan (for array jobs).
     #[command(
         name = "sweep-trial",
-        after_help = "Example:\n  stratanet sweep-trial plan.json demo-data/parts.csv --trial 0 --out trial-0.json"
+        after_help = "Example:\n  stratanet sweep-trial plan.jsonl demo-data/parts.csv --trial 0 --out trial-0.json"
     )]
     SweepTrial(SweepTrialArgs),
     /// Merge trial results into the sweep table.
     #[command(
         name = "sweep-merge",
-        after_help = "Example:\n  stratanet sweep-merge plan.json trial-*.json"
+        after_help = "Example:\n  stratanet sweep-merge plan.jsonl trial-*.json"
     )]
     SweepMerge(SweepMergeArgs),
     /// The whole job on the embedded demo data: fit, cross-validate, compare, chart.
@@ -63,12 +64,12 @@ pub enum Command {
 
 /// Output and progress flags every subcommand takes.
 #[derive(Debug, Args, Clone)]
-pub struct OutputArgs {
+pub(crate) struct OutputArgs {
     /// Print exactly one JSON object on stdout instead of a summary.
     #[arg(long)]
     pub json: bool,
     /// No progress lines on stderr.
-    #[arg(long)]
+    #[arg(long, conflicts_with = "progress")]
     pub quiet: bool,
     /// Progress lines on stderr even when stderr is not a terminal.
     #[arg(long)]
@@ -77,7 +78,7 @@ pub struct OutputArgs {
 
 /// How to read the table.
 #[derive(Debug, Args, Clone)]
-pub struct TableArgs {
+pub(crate) struct TableArgs {
     /// The target column.
     #[arg(long, value_name = "COL")]
     pub target: String,
@@ -90,76 +91,131 @@ pub struct TableArgs {
     /// Treat these columns as categorical (comma-separated).
     #[arg(long, value_name = "COLS", value_delimiter = ',')]
     pub categorical: Vec<String>,
-    /// What to do with missing cells: error or drop (the row).
-    #[arg(long, value_name = "error|drop", default_value = "error")]
-    pub missing: String,
+    /// What to do with a row that has a missing cell: error or drop.
+    #[arg(long, value_name = "error|drop", default_value = "error", value_parser = parsed::<Missing>)]
+    pub missing: Missing,
 }
 
-/// The network and its training.
+/// The network and its training. Flags left out take the library's
+/// defaults.
 #[derive(Debug, Args, Clone)]
-pub struct NetArgs {
-    /// Hidden layer widths, e.g. 16 or 16,8 ("none" for no hidden layer).
-    #[arg(long, value_name = "WIDTHS", default_value = "16")]
-    pub hidden: String,
-    /// Hidden activation: sigmoid, tanh, relu, leaky_relu, identity.
-    #[arg(long, default_value = "tanh")]
-    pub activation: String,
-    /// Initialisation: auto, glorot, he, or small:RANGE.
-    #[arg(long, default_value = "auto")]
-    pub init: String,
-    /// Feature scaling: standardise, min-max, none.
-    #[arg(long, default_value = "standardise")]
-    pub scaling: String,
-    /// Float type: f64 or f32.
-    #[arg(long, default_value = "f64")]
-    pub precision: String,
-    /// Maximum epochs.
-    #[arg(long, default_value_t = 500)]
-    pub epochs: usize,
-    /// Rows per update (1: online; the row count: full batch).
-    #[arg(long, default_value_t = 32)]
-    pub batch_size: usize,
-    /// Learning rate.
-    #[arg(long, default_value_t = 0.01)]
-    pub learning_rate: f64,
-    /// Update rule: sgd, momentum, nesterov, adam.
-    #[arg(long, default_value = "adam")]
-    pub optimiser: String,
-    /// Momentum coefficient for momentum and nesterov.
-    #[arg(long, default_value_t = 0.9)]
-    pub momentum: f64,
-    /// Learning-rate schedule: constant, step:EVERY:FACTOR, exponential:GAMMA, cosine:MIN.
-    #[arg(long, default_value = "constant")]
-    pub schedule: String,
-    /// L2 weight decay on the weights (not biases), once per update.
-    #[arg(long, default_value_t = 0.0)]
-    pub weight_decay: f64,
-    /// L1 penalty on the weights (not biases), once per update.
-    #[arg(long, default_value_t = 0.0)]
-    pub l1_penalty: f64,
-    /// Share of training rows held out for early stopping.
-    #[arg(long, default_value_t = 0.2)]
-    pub validation_fraction: f64,
-    /// Early stopping: epochs without improvement before stopping.
-    #[arg(long, default_value_t = 30)]
-    pub patience: usize,
-    /// Early stopping: the least drop in validation loss that counts.
-    #[arg(long, default_value_t = 0.0)]
-    pub min_improvement: f64,
-    /// Train for all epochs, without early stopping.
+pub(crate) struct NetArgs {
+    /// Hidden layer widths, e.g. 16 or 16,8 ("none" for no hidden layer) [16].
+    #[arg(long, value_name = "WIDTHS", value_parser = widths)]
+    pub hidden: Option<Widths>,
+    /// Hidden activation: identity, sigmoid, tanh, relu, leaky_relu[:SLOPE] [tanh].
+    #[arg(long, value_name = "NAME", value_parser = parsed::<Activation>)]
+    pub activation: Option<Activation>,
+    /// Initialisation: auto, glorot, he, small:RANGE [auto].
+    #[arg(long, value_name = "NAME", value_parser = parsed::<Init>)]
+    pub init: Option<Init>,
+    /// Feature scaling: standardise, min-max, none [standardise].
+    #[arg(long, value_name = "NAME", value_parser = parsed::<Scaling>)]
+    pub scaling: Option<Scaling>,
+    /// Float type: f64 or f32 [f64].
+    #[arg(long, value_name = "f64|f32", value_parser = parsed::<Precision>)]
+    pub precision: Option<Precision>,
+    /// How sums are computed: fast (this CPU's kernels) or portable [fast].
+    #[arg(long, value_name = "fast|portable", value_parser = parsed::<Arithmetic>)]
+    pub arithmetic: Option<Arithmetic>,
+    /// Most epochs [500].
+    #[arg(long, value_name = "N")]
+    pub epochs: Option<usize>,
+    /// Rows per update, or "full" for every training row [32, or fewer rows].
+    #[arg(long, value_name = "N|full", value_parser = parsed::<BatchSize>)]
+    pub batch_size: Option<BatchSize>,
+    /// Learning rate [0.01].
+    #[arg(long, value_name = "RATE")]
+    pub learning_rate: Option<f64>,
+    /// Update rule: sgd, momentum[:MU], nesterov[:MU], adam[:B1:B2:EPS] [adam].
+    #[arg(long, value_name = "RULE", value_parser = parsed::<Optimiser>)]
+    pub optimiser: Option<Optimiser>,
+    /// Learning-rate schedule: constant, step:EVERY:FACTOR, exponential:GAMMA, cosine:MIN [constant].
+    #[arg(long, value_name = "SCHEDULE", value_parser = parsed::<Schedule>)]
+    pub schedule: Option<Schedule>,
+    /// Loss: squared_error or cross_entropy [cross_entropy for classes, squared_error for numbers].
+    #[arg(long, value_name = "NAME", value_parser = parsed::<Loss>)]
+    pub loss: Option<Loss>,
+    /// L2 weight decay on the weights (not biases), once per update [0].
+    #[arg(long, value_name = "LAMBDA")]
+    pub weight_decay: Option<f64>,
+    /// L1 penalty on the weights (not biases), once per update [0].
+    #[arg(long, value_name = "LAMBDA")]
+    pub l1_penalty: Option<f64>,
+    /// Share of rows held out for early stopping and choosing restarts [0.2 with early stopping, else 0].
+    #[arg(long, value_name = "SHARE")]
+    pub validation_share: Option<f64>,
+    /// Early stopping: epochs without improvement before stopping [30].
+    #[arg(long, value_name = "N")]
+    pub patience: Option<usize>,
+    /// Early stopping: the least drop in validation loss that counts [0].
+    #[arg(long, value_name = "DELTA")]
+    pub min_improvement: Option<f64>,
+    /// Train for every epoch, without early stopping (and, unless a validation share is given, on every row).
     #[arg(long)]
     pub no_early_stopping: bool,
-    /// Networks trained from different seeds; the best is kept.
-    #[arg(long, default_value_t = 1)]
-    pub restarts: usize,
+    /// Networks trained from different seeds; the best is kept [1].
+    #[arg(long, value_name = "N")]
+    pub restarts: Option<usize>,
     /// The seed of every random draw.
     #[arg(long, default_value_t = 42)]
     pub seed: u64,
 }
 
+/// Parses a flag's value with the library type's own `FromStr`, keeping
+/// only the reason of a refusal (clap names the flag and the value).
+fn parsed<T: std::str::FromStr<Err = crate::Error>>(text: &str) -> Result<T, String> {
+    text.parse::<T>().map_err(|e| super::errors::reason(&e))
+}
+
+/// Hidden-layer widths as typed (`16`, `16,8`, `16-8`, `none`).
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub(crate) struct Widths(pub Vec<usize>);
+
+/// Parses hidden widths: `16`, `16,8` (or `16-8`), `none`.
+pub(crate) fn widths(value: &str) -> Result<Widths, String> {
+    let v = value.trim();
+    if v.is_empty() || v == "none" {
+        return Ok(Widths(Vec::new()));
+    }
+    v.split([',', '-'])
+        .map(|w| {
+            w.trim().parse::<usize>().ok().filter(|&n| n > 0).ok_or_else(|| {
+                format!("\"{w}\" is not a layer width; give positive whole numbers such as 16 or 16,8, or none")
+            })
+        })
+        .collect::<Result<Vec<_>, _>>()
+        .map(Widths)
+}
+
+/// Parses a grid's list of layouts: `4,8,8-8,none` (layers joined by `-`).
+fn layouts(value: &str) -> Result<Layouts, String> {
+    value
+        .split(',')
+        .map(|s| {
+            let s = s.trim();
+            if s == "none" {
+                return Ok(Vec::new());
+            }
+            s.split('-')
+                .map(|w| {
+                    w.trim().parse::<usize>().ok().filter(|&n| n > 0).ok_or_else(|| {
+                        format!("\"{w}\" is not a layer width; give layouts such as 4,8,8-8 or none")
+                    })
+                })
+                .collect()
+        })
+        .collect::<Result<Vec<_>, _>>()
+        .map(Layouts)
+}
+
+/// A grid's hidden layouts.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub(crate) struct Layouts(pub Vec<Vec<usize>>);
+
 /// `stratanet fit`.
 #[derive(Debug, Args)]
-pub struct FitArgs {
+pub(crate) struct FitArgs {
     /// The CSV file to train on.
     pub data: PathBuf,
     #[command(flatten)]
@@ -178,7 +234,7 @@ pub struct FitArgs {
 
 /// `stratanet check`.
 #[derive(Debug, Args)]
-pub struct CheckArgs {
+pub(crate) struct CheckArgs {
     /// The saved model.
     pub model: PathBuf,
     /// Labelled rows (with the model's target column).
@@ -186,16 +242,16 @@ pub struct CheckArgs {
     /// Accept and ignore columns the model does not use.
     #[arg(long)]
     pub ignore_extra: bool,
-    /// What to do with missing cells: error or drop.
-    #[arg(long, value_name = "error|drop", default_value = "error")]
-    pub missing: String,
+    /// What to do with a row that has a missing cell: error or drop.
+    #[arg(long, value_name = "error|drop", default_value = "error", value_parser = parsed::<Missing>)]
+    pub missing: Missing,
     #[command(flatten)]
     pub output: OutputArgs,
 }
 
 /// `stratanet predict`.
 #[derive(Debug, Args)]
-pub struct PredictArgs {
+pub(crate) struct PredictArgs {
     /// The saved model.
     pub model: PathBuf,
     /// Rows to predict.
@@ -206,28 +262,35 @@ pub struct PredictArgs {
     /// Accept and ignore columns the model does not use.
     #[arg(long)]
     pub ignore_extra: bool,
-    /// What to do with missing cells: error or drop.
-    #[arg(long, value_name = "error|drop", default_value = "error")]
-    pub missing: String,
+    /// What to do with a row that has a missing cell: error or drop.
+    #[arg(long, value_name = "error|drop", default_value = "error", value_parser = parsed::<Missing>)]
+    pub missing: Missing,
     #[command(flatten)]
     pub output: OutputArgs,
 }
 
+/// Fold counts for `cv` and `sweep`.
+#[derive(Debug, Args, Clone)]
+pub(crate) struct FoldArgs {
+    /// Folds per repeat.
+    #[arg(long, value_name = "K", default_value_t = 5)]
+    pub folds: usize,
+    /// Repeats of the fold plan.
+    #[arg(long, value_name = "R", default_value_t = 1)]
+    pub repeats: usize,
+}
+
 /// `stratanet cv`.
 #[derive(Debug, Args)]
-pub struct CvArgs {
+pub(crate) struct CvArgs {
     /// The CSV file.
     pub data: PathBuf,
     #[command(flatten)]
     pub table: TableArgs,
     #[command(flatten)]
     pub net: NetArgs,
-    /// Folds per repeat.
-    #[arg(long, value_name = "K", default_value_t = 5)]
-    pub folds: usize,
-    /// Repeats of the fold plan.
-    #[arg(long, default_value_t = 1)]
-    pub repeats: usize,
+    #[command(flatten)]
+    pub folds: FoldArgs,
     /// Write the charts (SVG) into this folder.
     #[arg(long, value_name = "DIR")]
     pub charts: Option<PathBuf>,
@@ -237,39 +300,35 @@ pub struct CvArgs {
 
 /// `stratanet sweep`.
 #[derive(Debug, Args)]
-pub struct SweepArgs {
+pub(crate) struct SweepArgs {
     /// The CSV file.
     pub data: PathBuf,
     #[command(flatten)]
     pub table: TableArgs,
     #[command(flatten)]
     pub net: NetArgs,
-    /// Folds per repeat.
-    #[arg(long, value_name = "K", default_value_t = 5)]
-    pub folds: usize,
-    /// Repeats of the fold plan.
-    #[arg(long, default_value_t = 1)]
-    pub repeats: usize,
+    #[command(flatten)]
+    pub folds: FoldArgs,
     /// Hidden layouts to try, comma-separated, layers joined by '-' (e.g. 4,8,8-8; "none" for no hidden layer).
-    #[arg(long, value_name = "LIST")]
-    pub grid_hidden: Option<String>,
+    #[arg(long, value_name = "LIST", value_parser = layouts)]
+    pub grid_hidden: Option<Layouts>,
     /// Activations to try (comma-separated).
-    #[arg(long, value_name = "LIST")]
-    pub grid_activation: Option<String>,
+    #[arg(long, value_name = "LIST", value_delimiter = ',', value_parser = parsed::<Activation>)]
+    pub grid_activation: Vec<Activation>,
     /// Learning rates to try (comma-separated).
-    #[arg(long, value_name = "LIST")]
-    pub grid_learning_rate: Option<String>,
-    /// Batch sizes to try (comma-separated).
-    #[arg(long, value_name = "LIST")]
-    pub grid_batch_size: Option<String>,
+    #[arg(long, value_name = "LIST", value_delimiter = ',')]
+    pub grid_learning_rate: Vec<f64>,
+    /// Batch sizes to try (comma-separated; "full" for every training row).
+    #[arg(long, value_name = "LIST", value_delimiter = ',', value_parser = parsed::<BatchSize>)]
+    pub grid_batch_size: Vec<BatchSize>,
     /// Weight decays to try (comma-separated).
-    #[arg(long, value_name = "LIST")]
-    pub grid_weight_decay: Option<String>,
-    /// The metric that sorts the table.
-    #[arg(long, default_value = "accuracy")]
-    pub metric: String,
+    #[arg(long, value_name = "LIST", value_delimiter = ',')]
+    pub grid_weight_decay: Vec<f64>,
+    /// The metric that sorts the table [accuracy for classes, root_mean_squared_error for numbers].
+    #[arg(long, value_name = "NAME", value_parser = parsed::<Metric>)]
+    pub metric: Option<Metric>,
     /// Write the plan (one JSON line per trial after a header line) and stop.
-    #[arg(long, value_name = "PATH")]
+    #[arg(long, value_name = "PATH", conflicts_with = "out")]
     pub write_plan: Option<PathBuf>,
     /// Save the best configuration, refitted on all rows, here.
     #[arg(long, value_name = "PATH")]
@@ -280,24 +339,27 @@ pub struct SweepArgs {
 
 /// `stratanet sweep-trial`.
 #[derive(Debug, Args)]
-pub struct SweepTrialArgs {
+pub(crate) struct SweepTrialArgs {
     /// The plan written by `sweep --write-plan`.
     pub plan: PathBuf,
     /// The same CSV file the plan was made from.
     pub data: PathBuf,
     /// The trial index (0-based; an array job's task index).
-    #[arg(long)]
+    #[arg(long, value_name = "INDEX")]
     pub trial: usize,
     /// Where to write the trial's result (JSON).
     #[arg(long, value_name = "PATH")]
     pub out: PathBuf,
+    /// Keep the per-epoch losses in the result file.
+    #[arg(long)]
+    pub history: bool,
     #[command(flatten)]
     pub output: OutputArgs,
 }
 
 /// `stratanet sweep-merge`.
 #[derive(Debug, Args)]
-pub struct SweepMergeArgs {
+pub(crate) struct SweepMergeArgs {
     /// The plan.
     pub plan: PathBuf,
     /// The trial result files, in any order.
@@ -309,7 +371,7 @@ pub struct SweepMergeArgs {
 
 /// `stratanet demo`.
 #[derive(Debug, Args)]
-pub struct DemoArgs {
+pub(crate) struct DemoArgs {
     /// The folder for the model, charts and summary page.
     #[arg(long, value_name = "DIR", default_value = "stratanet-demo")]
     pub out: PathBuf,
@@ -320,183 +382,18 @@ pub struct DemoArgs {
     pub output: OutputArgs,
 }
 
-/// Parses `error|drop`.
-pub fn missing(value: &str) -> Result<Missing> {
-    match value {
-        "error" => Ok(Missing::Error),
-        "drop" => Ok(Missing::Drop),
-        other => Err(Error::option("--missing", other, "must be error or drop")),
-    }
-}
-
-impl TableArgs {
-    /// The CSV options these flags ask for.
-    ///
-    /// # Errors
-    /// A bad `--missing` value.
-    pub fn csv_options(&self) -> Result<CsvOptions> {
-        let mut o = CsvOptions::new(&self.target);
-        o.drop = self.drop.clone();
-        o.categorical = self.categorical.clone();
-        if !self.features.is_empty() {
-            o.features = Some(self.features.clone());
+impl Command {
+    /// The output flags of any subcommand.
+    pub fn output(&self) -> &OutputArgs {
+        match self {
+            Command::Fit(a) => &a.output,
+            Command::Check(a) => &a.output,
+            Command::Predict(a) => &a.output,
+            Command::Cv(a) => &a.output,
+            Command::Sweep(a) => &a.output,
+            Command::SweepTrial(a) => &a.output,
+            Command::SweepMerge(a) => &a.output,
+            Command::Demo(a) => &a.output,
         }
-        o.missing = missing(&self.missing)?;
-        Ok(o)
     }
-}
-
-/// Parses hidden widths: `16`, `16,8` (or `16-8`), `none`.
-pub fn hidden_widths(flag: &str, value: &str) -> Result<Vec<usize>> {
-    let v = value.trim();
-    if v.is_empty() || v == "none" {
-        return Ok(Vec::new());
-    }
-    v.split([',', '-'])
-        .map(|w| {
-            w.trim().parse::<usize>().ok().filter(|&n| n > 0).ok_or_else(|| {
-                Error::option(flag, value, format!("\"{w}\" is not a layer width; give positive whole numbers such as 16 or 16,8, or none"))
-            })
-        })
-        .collect()
-}
-
-pub(crate) fn activation(flag: &str, value: &str) -> Result<Activation> {
-    Activation::from_name(value).ok_or_else(|| {
-        Error::option(
-            flag,
-            value,
-            "must be one of sigmoid, tanh, relu, leaky_relu, identity",
-        )
-    })
-}
-
-fn number(flag: &str, text: &str) -> Result<f64> {
-    text.trim()
-        .parse::<f64>()
-        .ok()
-        .filter(|v| v.is_finite())
-        .ok_or_else(|| Error::option(flag, text, "is not a number"))
-}
-
-impl NetArgs {
-    /// The fit options these flags ask for (checked by the library when used).
-    ///
-    /// # Errors
-    /// A flag value that does not parse, naming the flag.
-    pub fn fit_options(&self) -> Result<FitOptions> {
-        let mut o = FitOptions {
-            hidden_layers: hidden_widths("--hidden", &self.hidden)?,
-            activation: activation("--activation", &self.activation)?,
-            ..Default::default()
-        };
-        o.init = match self.init.as_str() {
-            "auto" => Init::Auto,
-            "glorot" => Init::GlorotUniform,
-            "he" => Init::HeUniform,
-            s => match s.strip_prefix("small:") {
-                Some(r) => Init::SmallUniform {
-                    range: number("--init", r)?,
-                },
-                None => {
-                    return Err(Error::option(
-                        "--init",
-                        s,
-                        "must be auto, glorot, he or small:RANGE (e.g. small:0.5)",
-                    ))
-                }
-            },
-        };
-        o.scaling = match self.scaling.as_str() {
-            "standardise" | "standardize" => Scaling::Standardise,
-            "min-max" | "minmax" => Scaling::MinMax,
-            "none" => Scaling::None,
-            s => {
-                return Err(Error::option(
-                    "--scaling",
-                    s,
-                    "must be standardise, min-max or none",
-                ))
-            }
-        };
-        o.precision = match self.precision.as_str() {
-            "f64" => Precision::F64,
-            "f32" => Precision::F32,
-            s => return Err(Error::option("--precision", s, "must be f64 or f32")),
-        };
-        let t = &mut o.training;
-        t.epochs = self.epochs;
-        t.batch_size = self.batch_size;
-        t.learning_rate = self.learning_rate;
-        t.optimiser = match self.optimiser.as_str() {
-            "sgd" => Optimiser::Sgd,
-            "momentum" => Optimiser::Momentum { mu: self.momentum },
-            "nesterov" => Optimiser::Nesterov { mu: self.momentum },
-            "adam" => Optimiser::ADAM,
-            s => {
-                return Err(Error::option(
-                    "--optimiser",
-                    s,
-                    "must be sgd, momentum, nesterov or adam",
-                ))
-            }
-        };
-        t.schedule = schedule(&self.schedule)?;
-        t.weight_decay = self.weight_decay;
-        t.l1_penalty = self.l1_penalty;
-        t.early_stopping = (!self.no_early_stopping).then_some(EarlyStopping {
-            patience: self.patience,
-            min_improvement: self.min_improvement,
-        });
-        o.validation_fraction = if self.no_early_stopping && self.validation_fraction == 0.2 {
-            // The default validation share exists for early stopping; without
-            // it every row trains unless a share is asked for explicitly.
-            0.0
-        } else {
-            self.validation_fraction
-        };
-        o.restarts = self.restarts;
-        Ok(o)
-    }
-}
-
-fn schedule(value: &str) -> Result<Schedule> {
-    let parts: Vec<&str> = value.split(':').collect();
-    let bad = || {
-        Error::option(
-            "--schedule",
-            value,
-            "must be constant, step:EVERY:FACTOR, exponential:GAMMA or cosine:MIN (e.g. step:50:0.5)",
-        )
-    };
-    match parts.as_slice() {
-        ["constant"] => Ok(Schedule::Constant),
-        ["step", every, factor] => Ok(Schedule::Step {
-            every: every.parse().map_err(|_| bad())?,
-            factor: number("--schedule", factor)?,
-        }),
-        ["exponential", gamma] => Ok(Schedule::Exponential {
-            gamma: number("--schedule", gamma)?,
-        }),
-        ["cosine", min] => Ok(Schedule::Cosine {
-            min_rate: number("--schedule", min)?,
-        }),
-        _ => Err(bad()),
-    }
-}
-
-/// Parses a comma-separated list with `item`.
-pub(crate) fn list<T>(flag: &str, value: &str, item: impl Fn(&str) -> Result<T>) -> Result<Vec<T>> {
-    let items: Vec<T> = value
-        .split(',')
-        .map(|s| item(s.trim()))
-        .collect::<Result<_>>()?;
-    if items.is_empty() {
-        return Err(Error::option(flag, value, "needs at least one value"));
-    }
-    Ok(items)
-}
-
-pub(crate) fn numbers(flag: &str, value: &str) -> Result<Vec<f64>> {
-    list(flag, value, |s| number(flag, s))
 }

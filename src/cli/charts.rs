@@ -24,52 +24,65 @@ pub(crate) fn save_all(dir: &Path, charts: Vec<(&str, Result<Chart>)>) -> Result
                 c.save(&path)?;
                 written.push(path);
             }
-            Err(e) if matches!(e.kind(), crate::ErrorKind::InvalidInput { .. }) => {}
+            Err(e) if matches!(e.kind(), crate::error::ErrorKind::InvalidInput { .. }) => {}
             Err(e) => return Err(e),
         }
     }
     Ok(written)
 }
 
+/// The names (without `.svg`) of every chart [`fit_charts`] may write.
+pub(crate) const FIT_CHART_FILES: [&str; 8] = [
+    "learning-curves",
+    "network",
+    "decision-map",
+    "decision-map-components",
+    "hidden-layer",
+    "confusion-matrix-validation",
+    "roc-validation",
+    "precision-recall-validation",
+];
+
+/// The names (without `.svg`) of every chart [`cv_charts`] may write.
+pub(crate) const CV_CHART_FILES: [&str; 2] = ["cv-learning-curves", "cv-scores"];
+
 /// The charts of one fit, written as SVG into `dir`.
 ///
 /// # Errors
 /// A folder or file that cannot be written.
-pub fn fit_charts(data: &Dataset, fitted: &Fitted, dir: &Path) -> Result<Vec<PathBuf>> {
-    let model = &fitted.model;
-    let train = data.select(&fitted.split.train);
+pub(crate) fn fit_charts(data: &Dataset, fitted: &Fitted, dir: &Path) -> Result<Vec<PathBuf>> {
+    let model = fitted.model();
+    let split = fitted.split();
+    let train = data.select(&split.train);
     let mut charts: Vec<(&str, Result<Chart>)> = vec![
-        ("learning-curves", chart::training_curves(fitted)),
-        ("network", chart::network(model)),
+        ("learning-curves", fitted.learning_curves_chart()),
+        ("network", model.network_chart()),
     ];
-    if model.is_classifier {
+    if model.is_classifier() {
         if let Some((x, y)) = chart::decision_features(data) {
-            charts.push((
-                "decision-map",
-                chart::decision_boundary(model, &train, &x, &y),
-            ));
+            charts.push(("decision-map", model.decision_map_chart(&train, &x, &y)));
         }
         if data.n_features() > 2 {
             charts.push((
                 "decision-map-components",
-                chart::decision_boundary_principal(model, &train),
+                model.decision_map_components_chart(&train),
             ));
         }
-        if model.network.n_hidden_layers() > 0 {
+        if model.network().n_hidden_layers() > 0 {
             charts.push((
                 "hidden-layer",
-                chart::hidden_layer_view(model, &train, 1, HiddenView::Auto),
+                model.hidden_layer_chart(&train, 1, HiddenView::Auto),
             ));
         }
-        if !fitted.split.validation.is_empty() {
-            let val = data.select(&fitted.split.validation);
+        if !split.validation.is_empty() {
+            let val = data.select(&split.validation);
             if let Ok((Scores::Classification(m), _)) = Scores::of(model, &val) {
-                charts.push(("confusion-matrix-validation", chart::confusion(&m)));
+                charts.push(("confusion-matrix-validation", m.confusion_chart()));
             }
-            charts.push(("roc-validation", chart::roc(model, &val)));
+            charts.push(("roc-validation", model.roc_chart(&val)));
             charts.push((
                 "precision-recall-validation",
-                chart::precision_recall(model, &val),
+                model.precision_recall_chart(&val),
             ));
         }
     }
@@ -80,31 +93,17 @@ pub fn fit_charts(data: &Dataset, fitted: &Fitted, dir: &Path) -> Result<Vec<Pat
 ///
 /// # Errors
 /// A folder or file that cannot be written.
-pub fn cv_charts(data: &Dataset, cv: &CrossValidation, dir: &Path) -> Result<Vec<PathBuf>> {
+pub(crate) fn cv_charts(data: &Dataset, cv: &CrossValidation, dir: &Path) -> Result<Vec<PathBuf>> {
     let metric = if data.labels().is_some() {
         Metric::Accuracy
     } else {
         Metric::RootMeanSquaredError
     };
-    let reports: Vec<_> = cv.folds.iter().map(|f| f.report.clone()).collect();
-    let curves = chart::training_curves_with(
-        &reports,
-        &chart::LearningCurveOptions {
-            chart: chart::ChartOptions::titled(format!(
-                "Learning curves of {} folds",
-                reports.len()
-            )),
-            ..Default::default()
-        },
-    );
     save_all(
         dir,
         vec![
-            ("cv-learning-curves", curves),
-            (
-                "cv-scores",
-                chart::cv_comparison(&[("this configuration", cv)], metric),
-            ),
+            ("cv-learning-curves", cv.learning_curves_chart()),
+            ("cv-scores", cv.scores_chart(metric)),
         ],
     )
 }

@@ -1,13 +1,12 @@
 //! `stratanet demo`: the whole job on the embedded, synthetic demo data.
 
 use super::charts::{ensure_dir, fit_charts, save_all};
-use super::{cv_json, Outcome};
-use crate::atomic::{refuse_overwrite_input, write_text};
-use crate::chart;
+use super::output::{cv_json, Outcome};
+use super::progress::Progress;
+use crate::atomic::write_text;
 use crate::data::CsvOptions;
 use crate::error::{Error, Result};
-use crate::fit::{fit, FitOptions, CAUTION};
-use crate::model_file;
+use crate::fit::{fit, FitOptions};
 use crate::notebook::{escape, notes};
 use crate::rng::seeded_rng;
 use crate::validate::{
@@ -20,17 +19,56 @@ use std::path::Path;
 /// The synthetic part-inspection table, embedded (see demo-data/README.md).
 pub(crate) const DEMO_PARTS_CSV: &str = include_str!("../../demo-data/parts.csv");
 
+/// The caution for the demo's invented scenario (sorting parts); every
+/// other output carries the general one.
+const DEMO_CAUTION: &str = "A model fitted here supports, and never replaces, qualified judgement, the applicable standards and local practice. Do not accept, rework or scrap a part on its output alone.";
+
+/// The files the demo writes directly into its folder (charts go into
+/// `charts/`).
+const DEMO_FILES: [&str; 3] = ["parts.csv", "parts-model.json", "summary.html"];
+
+/// Refuses a folder the demo would spoil: it must be absent, empty, or
+/// hold an earlier demo's output (a `summary.html`), so that the table it
+/// writes there never replaces a file of the user's.
+pub(crate) fn check_folder(out: &Path) -> Result<()> {
+    if out.is_file() {
+        return Err(Error::option(
+            "out",
+            out.display(),
+            "is a file; give a folder for the demo's output",
+        ));
+    }
+    let Ok(entries) = std::fs::read_dir(out) else {
+        return Ok(());
+    };
+    let names: Vec<String> = entries
+        .filter_map(|e| e.ok())
+        .map(|e| e.file_name().to_string_lossy().into_owned())
+        .collect();
+    if names.is_empty() || names.iter().any(|n| n == "summary.html") {
+        return Ok(());
+    }
+    Err(Error::option(
+        "out",
+        out.display(),
+        format!(
+            "holds files of its own ({}); the demo writes {} there, so give an empty or new folder",
+            names.iter().take(3).cloned().collect::<Vec<_>>().join(", "),
+            DEMO_FILES.join(", ")
+        ),
+    ))
+}
+
 /// The whole job on the embedded demo data: hold out a test set, compare two
 /// architectures by cross-validation, fit the better one, score it once on
 /// the held-out rows, save it, and write every chart and a summary page.
 ///
 /// # Errors
 /// A folder or file that cannot be written.
-pub fn demo(out: &Path, seed: u64, progress: bool) -> Result<Outcome> {
+pub(crate) fn demo(out: &Path, seed: u64, progress: &Progress) -> Result<Outcome> {
     ensure_dir(out)?;
     let model_path = out.join("parts-model.json");
     let data_path = out.join("parts.csv");
-    refuse_overwrite_input(&model_path, &[&data_path])?;
     // The demo table is written next to the results so the CLI commands
     // printed below can be tried on it.
     write_text(&data_path, DEMO_PARTS_CSV)?;
@@ -39,18 +77,15 @@ pub fn demo(out: &Path, seed: u64, progress: bool) -> Result<Outcome> {
         .read_str(DEMO_PARTS_CSV, "demo-data/parts.csv")?;
     let mut rng = seeded_rng(seed);
     let (development, held_out) = HoldOut::split(&data, 0.2, &mut rng)?;
-    let say = |s: &str| {
-        if progress {
-            eprintln!("{s}");
-        }
+    let say = |s: &str| progress.say(s);
+    let observed = |mut o: FitOptions| {
+        o.training.observer = progress.observer();
+        o
     };
-    let single = FitOptions::default().hidden(&[]);
-    let hidden = FitOptions::default().hidden(&[12]);
+    let single = observed(FitOptions::default().hidden(&[]));
+    let hidden = observed(FitOptions::default().hidden(&[12]));
     say("cross-validating two configurations (5 folds each)");
-    let cv = CvOptions {
-        progress,
-        ..Default::default()
-    };
+    let cv = CvOptions::default();
     let comparison = compare_configurations(
         &development,
         &hidden,
@@ -72,8 +107,8 @@ pub fn demo(out: &Path, seed: u64, progress: bool) -> Result<Outcome> {
     };
     say("fitting the chosen configuration with 4 restarts");
     let fitted = fit(&development, &chosen, &mut rng)?;
-    model_file::save(&fitted.model, &model_path)?;
-    let score = held_out.score(&fitted.model)?;
+    fitted.model().save(&model_path)?;
+    let score = held_out.score(fitted.model())?;
     let Scores::Classification(test_metrics) = &score.scores else {
         return Err(Error::input("demo", "the demo target holds classes"));
     };
@@ -87,17 +122,11 @@ pub fn demo(out: &Path, seed: u64, progress: bool) -> Result<Outcome> {
     files.extend(save_all(
         &charts_dir,
         vec![
-            ("confusion-matrix-test", chart::confusion(test_metrics)),
-            ("roc-test", chart::roc(&fitted.model, &test_rows)),
+            ("confusion-matrix-test", test_metrics.confusion_chart()),
+            ("roc-test", fitted.model().roc_chart(&test_rows)),
             (
                 "cv-comparison",
-                chart::cv_comparison(
-                    &[
-                        ("hidden 12", &comparison.a),
-                        ("no hidden layer", &comparison.b),
-                    ],
-                    Metric::Accuracy,
-                ),
+                comparison.scores_chart(Metric::Accuracy, "hidden 12", "no hidden layer"),
             ),
         ],
     )?);
@@ -106,7 +135,7 @@ pub fn demo(out: &Path, seed: u64, progress: bool) -> Result<Outcome> {
         "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\"><title>stratanet demo</title></head>\n<body style=\"font-family:sans-serif;max-width:980px;margin:24px auto;color:#222\">\n",
     );
     let _ = writeln!(html, "<h1 style=\"font-size:22px\">stratanet demo: sorting turned bushings (synthetic data)</h1>");
-    let _ = writeln!(html, "<p style=\"background:#fff4e0;border-left:4px solid #c77700;padding:8px 12px\"><b>Caution.</b> {}</p>", escape(CAUTION));
+    let _ = writeln!(html, "<p style=\"background:#fff4e0;border-left:4px solid #c77700;padding:8px 12px\"><b>Caution.</b> {}</p>", escape(DEMO_CAUTION));
     let _ = writeln!(
         html,
         "<p>{} rows of invented gauge readings (demo-data/README.md). {} rows were held out as a test set before anything else; cross-validation and the choice of network used the other {} only.</p>",
@@ -205,6 +234,6 @@ pub fn demo(out: &Path, seed: u64, progress: bool) -> Result<Outcome> {
         model_path.display(),
         data_path.display()
     );
-    let _ = write!(text, "{CAUTION}");
+    let _ = write!(text, "{DEMO_CAUTION}");
     Ok(Outcome { json, text })
 }

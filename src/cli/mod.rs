@@ -1,164 +1,144 @@
-//! The `stratanet` command line, as a library module so that tests and the
-//! fuzzer can drive it without a process. `src/main.rs` only calls [`main`].
+//! The `stratanet` command line (crate-internal; `src/main.rs` calls
+//! [`main`], the crate root offers [`run_command_line`](crate::run_command_line)
+//! and [`check_command_line`](crate::check_command_line)).
 //!
-//! Every subcommand returns one [`Outcome`]: a JSON object (printed alone on
-//! stdout with `--json`) and a readable summary (printed otherwise). Errors
-//! go to stderr as `stratanet: <message>` with exit code 2; a usage error
-//! from the argument parser also exits 2.
+//! Every command runs in two steps:
+//!
+//! 1. **prepare** ([`prepare::prepare`]): the arguments, parsed once, become
+//!    a complete, checked [`Job`](prepare::Job): every library option built
+//!    and validated (errors name the flag), every output path checked
+//!    against every input path and against the other outputs, and every
+//!    output folder's existence, all before any file is read for its
+//!    content or any work starts;
+//! 2. **run** ([`run::run`]): the job calls the library and returns an
+//!    [`Outcome`]: one JSON object (printed alone on stdout with `--json`)
+//!    and a readable summary (printed otherwise).
+//!
+//! Errors go to stderr as `stratanet: <message>` with exit code 2, options
+//! named by their flags; usage errors (unknown flags, bad values) are
+//! clap's, also exit code 2. Progress lines go to stderr. A closed pipe on
+//! either stream ends the program quietly with the exit code it would have
+//! had (0 after success, 2 after an error), never a panic.
 
-// Flattened clap fields take no doc comments of their own (clap would
-// show them as help text), so this module allows undocumented fields.
-#[allow(missing_docs)]
-pub mod args;
+mod args;
 mod charts;
-mod commands;
 mod demo;
+mod errors;
+mod output;
+mod paths;
+mod prepare;
+mod progress;
+mod run;
 
-pub(crate) use commands::cv_json;
-
-use crate::error::Error;
-use args::{Cli, Command, OutputArgs};
+use args::Cli;
 use clap::Parser;
-use std::io::{IsTerminal, Write};
+pub(crate) use errors::CliError;
+use std::ffi::OsString;
+use std::io::Write;
 
-/// What a subcommand produced.
-#[derive(Debug)]
-pub struct Outcome {
-    /// The JSON object for `--json`.
-    pub json: serde_json::Value,
-    /// The readable summary.
-    pub text: String,
-}
+pub(crate) use output::Outcome;
 
-/// Whether progress lines go to stderr: asked with `--progress`, or by
-/// default when stderr is a terminal; never with `--quiet`.
-pub(crate) fn progress_wanted(o: &OutputArgs) -> bool {
-    !o.quiet && (o.progress || std::io::stderr().is_terminal())
-}
-
-/// Parses `args` (without the program name); a usage error carries clap's text.
-fn parse<I, S>(args: I) -> Result<Cli, Error>
+/// Parses `args` (without the program name).
+fn parse<I, S>(args: I) -> Result<Cli, CliError>
 where
     I: IntoIterator<Item = S>,
-    S: Into<std::ffi::OsString> + Clone,
+    S: Into<OsString> + Clone,
 {
-    let argv = std::iter::once(std::ffi::OsString::from("stratanet"))
-        .chain(args.into_iter().map(Into::into));
-    Cli::try_parse_from(argv)
-        .map_err(|e| Error::input("usage", e.to_string().trim_end().to_string()))
+    let argv = std::iter::once(OsString::from("stratanet")).chain(args.into_iter().map(Into::into));
+    Cli::try_parse_from(argv).map_err(CliError::Usage)
 }
 
-/// Parses `args` (without the program name) and runs the subcommand.
-///
-/// # Errors
-/// Usage errors (as an option error with clap's text) and every library error.
-pub fn run<I, S>(args: I) -> Result<(Outcome, bool), Error>
+/// Parses `args` (without the program name), prepares the job and runs it;
+/// returns what it produced and whether `--json` was asked for.
+pub(crate) fn run<I, S>(args: I) -> Result<(Outcome, bool), CliError>
 where
     I: IntoIterator<Item = S>,
-    S: Into<std::ffi::OsString> + Clone,
+    S: Into<OsString> + Clone,
 {
     let cli = parse(args)?;
-    let json = match &cli.command {
-        Command::Fit(a) => a.output.json,
-        Command::Check(a) => a.output.json,
-        Command::Predict(a) => a.output.json,
-        Command::Cv(a) => a.output.json,
-        Command::Sweep(a) => a.output.json,
-        Command::SweepTrial(a) => a.output.json,
-        Command::SweepMerge(a) => a.output.json,
-        Command::Demo(a) => a.output.json,
-    };
-    let outcome = match cli.command {
-        Command::Fit(a) => commands::fit(a),
-        Command::Check(a) => commands::check(a),
-        Command::Predict(a) => commands::predict(a),
-        Command::Cv(a) => commands::cv(a),
-        Command::Sweep(a) => commands::sweep(a),
-        Command::SweepTrial(a) => commands::sweep_trial(a),
-        Command::SweepMerge(a) => commands::sweep_merge(a),
-        Command::Demo(a) => commands::demo(a),
-    }?;
-    Ok((outcome, json))
+    let output = cli.command.output().clone();
+    let job = prepare::prepare(cli)?;
+    let progress = progress::Progress::new(&output);
+    let outcome = run::run(job, &progress)?;
+    Ok((outcome, output.json))
 }
 
-/// Parses `args` (without the program name) and builds every option the
-/// subcommand would use, reading and writing no file: the usage check that
-/// the fuzzer drives (`fuzz/fuzz_targets/cli_args.rs`), and a cheap way to
-/// validate a command line before a long run.
-///
-/// # Errors
-/// The error [`run`] would give for the same arguments before it opens any
-/// file: a usage error, or an option error naming the flag.
-pub fn check_arguments<I, S>(args: I) -> Result<(), Error>
+/// Parses and prepares a command line without running it: every option is
+/// built and checked and every output path checked against the inputs;
+/// no file is read for its content or written.
+pub(crate) fn check<I, S>(args: I) -> Result<(), CliError>
 where
     I: IntoIterator<Item = S>,
-    S: Into<std::ffi::OsString> + Clone,
+    S: Into<OsString> + Clone,
 {
-    let cli = parse(args)?;
-    match &cli.command {
-        Command::Fit(a) => {
-            a.table.csv_options()?;
-            a.net.fit_options()?.validate()?;
-        }
-        Command::Check(a) => {
-            args::missing(&a.missing)?;
-        }
-        Command::Predict(a) => {
-            args::missing(&a.missing)?;
-        }
-        Command::Cv(a) => {
-            a.table.csv_options()?;
-            a.net.fit_options()?.validate()?;
-            commands::cv_options(a.folds, a.repeats, false).validate()?;
-        }
-        Command::Sweep(a) => {
-            a.table.csv_options()?;
-            a.net.fit_options()?.validate()?;
-            commands::grid(a)?;
-            crate::validate::metrics::Metric::from_name(&a.metric)?;
-            commands::cv_options(a.folds, a.repeats, false).validate()?;
-        }
-        Command::SweepTrial(_) | Command::SweepMerge(_) | Command::Demo(_) => {}
-    }
+    prepare::prepare(parse(args)?)?;
     Ok(())
 }
 
-/// The binary's entry point: runs, prints, and returns the exit code
-/// (0 on success, 2 on bad input or usage).
-pub fn main() -> i32 {
-    let args: Vec<std::ffi::OsString> = std::env::args_os().skip(1).collect();
-    // --help and --version are successes that clap reports as errors.
-    let argv = std::iter::once(std::ffi::OsString::from("stratanet")).chain(args.iter().cloned());
-    if let Err(e) = Cli::try_parse_from(argv) {
-        use clap::error::ErrorKind;
-        if matches!(e.kind(), ErrorKind::DisplayHelp | ErrorKind::DisplayVersion) {
-            print!("{e}");
-            return 0;
-        }
-        if e.kind() == ErrorKind::DisplayHelpOnMissingArgumentOrSubcommand {
-            eprint!("{e}");
-            return 2;
-        }
-    }
+/// Writes `text` and a line end to a stream, ignoring failures: a closed
+/// pipe (`stratanet ... | head -1`) must end the program quietly.
+fn say(stream: &mut dyn Write, text: &str) {
+    let _ = writeln!(stream, "{text}");
+    let _ = stream.flush();
+}
+
+/// The binary's entry point: runs, prints, and returns the exit code (0 on
+/// success, 2 on bad input or usage).
+pub(crate) fn main() -> i32 {
+    let args: Vec<OsString> = std::env::args_os().skip(1).collect();
     match run(args) {
         Ok((outcome, json)) => {
-            let mut out = std::io::stdout().lock();
             let text = if json {
                 serde_json::to_string(&outcome.json).expect("JSON values serialise")
             } else {
                 outcome.text
             };
-            // A closed pipe (e.g. `| head`) is not an error worth a panic.
-            let _ = writeln!(out, "{text}");
+            say(&mut std::io::stdout().lock(), &text);
             0
         }
-        Err(e) => {
-            let msg = e.to_string();
-            match msg.strip_prefix("usage: ") {
-                Some(usage) => eprintln!("{usage}"),
-                None => eprintln!("stratanet: {msg}"),
-            }
+        Err(e) if e.is_help() => {
+            say(&mut std::io::stdout().lock(), &e.message());
+            0
+        }
+        Err(e @ CliError::Usage(_)) => {
+            say(&mut std::io::stderr().lock(), &e.message());
             2
         }
+        Err(e) => {
+            say(
+                &mut std::io::stderr().lock(),
+                &format!("stratanet: {}", e.message()),
+            );
+            2
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::errors::flag_name;
+    use super::*;
+    use crate::error::Error;
+
+    #[test]
+    fn library_options_show_as_flags() {
+        let e = Error::option("batch_size", 64, "must be at most 10");
+        assert_eq!(
+            CliError::Failed(e).message(),
+            "option --batch-size = 64: must be at most 10"
+        );
+        assert_eq!(flag_name("missing", Some("drop")), "--missing drop");
+        assert_eq!(flag_name("hidden_layers", None), "--hidden");
+    }
+
+    #[test]
+    fn usage_errors_are_typed() {
+        match parse(["fit", "--bogus"]) {
+            Err(CliError::Usage(e)) => {
+                assert_eq!(e.kind(), clap::error::ErrorKind::UnknownArgument)
+            }
+            other => panic!("expected a usage error, got {other:?}"),
+        }
+        assert!(parse(["--help"]).unwrap_err().is_help());
     }
 }

@@ -26,7 +26,6 @@
 use super::{ColumnEncoding, Dataset, Target};
 use crate::error::{Error, ErrorKind, Result};
 use ndarray::Array2;
-use serde::{Deserialize, Serialize};
 use std::collections::HashMap;
 use std::io::Read;
 use std::path::Path;
@@ -37,8 +36,9 @@ pub const MAX_FIELD_BYTES: usize = 1 << 20;
 pub const MAX_COLUMNS: usize = 10_000;
 
 /// What to do with a row that has a missing cell in a used column.
-#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize, Deserialize)]
-#[serde(rename_all = "snake_case")]
+///
+/// Text form: `error`, `drop`.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
 pub enum Missing {
     /// Stop with an error naming the line and column (the default).
     #[default]
@@ -47,9 +47,15 @@ pub enum Missing {
     Drop,
 }
 
+crate::error::text_forms!(Missing, "missing", {
+    Missing::Error => "error",
+    Missing::Drop => "drop",
+});
+
 /// Whether the target holds classes or numbers.
-#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize, Deserialize)]
-#[serde(rename_all = "snake_case")]
+///
+/// Text form: `auto`, `classes`, `values`.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
 pub enum TargetKind {
     /// Classes when any label is text or every label is an integer; numbers
     /// when every label is a number and some are not integers.
@@ -61,6 +67,12 @@ pub enum TargetKind {
     Values,
 }
 
+crate::error::text_forms!(TargetKind, "target_kind", {
+    TargetKind::Auto => "auto",
+    TargetKind::Classes => "classes",
+    TargetKind::Values => "values",
+});
+
 /// How to read a CSV file into a [`Dataset`].
 ///
 /// # Example
@@ -68,12 +80,12 @@ pub enum TargetKind {
 /// use stratanet::data::{CsvOptions, Missing};
 /// let text = "width_mm,colour,grade\n1.5,red,ok\n2.5,blue,bad\n,red,ok\n";
 /// let data = CsvOptions::new("grade").missing(Missing::Drop).read_str(text, "inline.csv")?;
-/// assert_eq!(data.feature_names, ["width_mm", "colour=blue", "colour=red"]);
-/// assert_eq!(data.dropped_rows, 1);
+/// assert_eq!(data.feature_names(), ["width_mm", "colour=blue", "colour=red"]);
+/// assert_eq!(data.dropped_rows(), 1);
 /// assert_eq!(data.class_names().unwrap(), ["bad", "ok"]);
 /// # Ok::<(), stratanet::Error>(())
 /// ```
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq)]
 pub struct CsvOptions {
     /// The target column's name.
     pub target: String,
@@ -224,21 +236,6 @@ pub(crate) struct RawTable {
     pub dropped: usize,
 }
 
-fn csv_error(path: &Path, e: csv::Error) -> Error {
-    let line = e.position().map(|p| p.line());
-    if let csv::ErrorKind::Io(_) = e.kind() {
-        if let csv::ErrorKind::Io(io) = e.into_kind() {
-            return Error::io(path, "reading", io);
-        }
-        unreachable!()
-    }
-    Error::new(ErrorKind::Csv {
-        path: path.to_path_buf(),
-        line,
-        source: e,
-    })
-}
-
 /// The header's names, trimmed, a leading byte-order mark removed, checked
 /// (at most [`MAX_COLUMNS`], none empty, none repeated).
 pub(crate) fn header_names(record: &csv::StringRecord, path: &Path) -> Result<Vec<String>> {
@@ -347,7 +344,7 @@ pub(crate) fn read_header_record<R: Read>(
     record: &mut csv::StringRecord,
     path: &Path,
 ) -> Result<()> {
-    let got = rdr.read_record(record).map_err(|e| csv_error(path, e))?;
+    let got = rdr.read_record(record).map_err(|e| Error::csv(path, e))?;
     mark_record(rdr);
     if !got || (record.len() == 1 && record[0].trim().trim_start_matches('\u{feff}').is_empty()) {
         return Err(Error::new(ErrorKind::EmptyFile {
@@ -372,7 +369,7 @@ pub(crate) fn next_row<R: Read>(
         match got {
             Ok(true) => {}
             Ok(false) => return Ok(None),
-            Err(e) => return Err(csv_error(path, e)),
+            Err(e) => return Err(Error::csv(path, e)),
         }
         let line = record.position().map_or(0, |p| p.line());
         // A completely blank line reads as one empty field: skip it.

@@ -3,11 +3,9 @@
 
 use crate::error::{Error, Result};
 use ndarray::{Array2, ArrayView2, Axis};
-use serde::{Deserialize, Serialize};
 
 /// How one source column became feature columns.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-#[serde(rename_all = "snake_case")]
+#[derive(Clone, Debug, PartialEq)]
 pub enum ColumnEncoding {
     /// A numeric column, used as it is.
     Numeric {
@@ -52,8 +50,7 @@ impl ColumnEncoding {
 }
 
 /// What the network is asked to predict.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-#[serde(rename_all = "snake_case")]
+#[derive(Clone, Debug, PartialEq)]
 pub enum Target {
     /// Class labels `0..names.len()`, one per row.
     Classes {
@@ -116,22 +113,22 @@ impl Target {
 }
 
 /// A table of samples ready for a network.
-#[derive(Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, PartialEq)]
 pub struct Dataset {
     /// Encoded features: one row per sample.
-    pub features: Array2<f64>,
+    pub(crate) features: Array2<f64>,
     /// One name per feature column (one-hot columns read `column=level`).
-    pub feature_names: Vec<String>,
+    pub(crate) feature_names: Vec<String>,
     /// How the source columns were encoded, in order.
-    pub columns: Vec<ColumnEncoding>,
+    pub(crate) columns: Vec<ColumnEncoding>,
     /// The name of the target column.
-    pub target_name: String,
+    pub(crate) target_name: String,
     /// The target.
-    pub target: Target,
+    pub(crate) target: Target,
     /// Where the data came from (a file path or a description), for messages.
-    pub source: String,
+    pub(crate) source: String,
     /// Rows dropped while reading because of missing cells.
-    pub dropped_rows: usize,
+    pub(crate) dropped_rows: usize,
 }
 
 impl std::fmt::Debug for Dataset {
@@ -291,6 +288,37 @@ impl Dataset {
             .map(|n| ColumnEncoding::Numeric { name: n.clone() })
             .collect();
         Ok(self)
+    }
+
+    /// The names of the feature columns, in order (one-hot columns read
+    /// `column=level`).
+    pub fn feature_names(&self) -> &[String] {
+        &self.feature_names
+    }
+
+    /// How the source columns were encoded into feature columns, in order.
+    pub fn columns(&self) -> &[ColumnEncoding] {
+        &self.columns
+    }
+
+    /// The target column's name.
+    pub fn target_name(&self) -> &str {
+        &self.target_name
+    }
+
+    /// The target: class labels or values.
+    pub fn target(&self) -> &Target {
+        &self.target
+    }
+
+    /// Where the table came from (a file path or a description).
+    pub fn source(&self) -> &str {
+        &self.source
+    }
+
+    /// Rows dropped while reading because of missing cells.
+    pub fn dropped_rows(&self) -> usize {
+        self.dropped_rows
     }
 
     /// Number of rows (samples).

@@ -8,8 +8,8 @@
 
 pub(crate) mod csv;
 mod dataset;
-pub mod scale;
-pub mod split;
+mod scale;
+pub(crate) mod split;
 
 pub use self::csv::{
     CsvOptions, Missing, TargetKind, MAX_COLUMNS, MAX_FIELD_BYTES, MAX_RECORD_BYTES,

@@ -14,11 +14,20 @@
 
 use crate::error::{Error, Result};
 use ndarray::{Array2, ArrayView2, ArrayViewMut2, Axis};
-use serde::{Deserialize, Serialize};
 
-/// Which scaling to fit.
-#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize, Deserialize)]
-#[serde(rename_all = "snake_case")]
+/// Which scaling to fit, column by column, on the training rows:
+///
+/// ```text
+/// standardise:  x' = (x - mean) / sd        mean and population sd (divide by n) of the training rows
+/// min-max:      x' = (x - min) / (max - min) onto [0, 1] over the training rows
+/// none:         x' = x
+/// ```
+/// Common practice, no single source; the population form of the standard
+/// deviation is used so that a one-row fit is defined. A column constant in
+/// the training rows gets scale 1 (see the module docs).
+///
+/// Text form: `standardise`, `min-max`, `none`.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
 pub enum Scaling {
     /// Leave features as they are.
     None,
@@ -29,15 +38,19 @@ pub enum Scaling {
     MinMax,
 }
 
-/// A fitted scaler: `x' = (x - offset) / scale`, column by column.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+crate::error::text_forms!(Scaling, "scaling", {
+    Scaling::Standardise => "standardise",
+    Scaling::MinMax => "min-max",
+    Scaling::None => "none",
+});
+
+/// A scaler learnt from training rows: `x' = (x - offset) / scale`, column
+/// by column (see [`Scaling`]).
+#[derive(Clone, Debug, PartialEq)]
 pub struct Scaler {
-    /// The kind that was fitted.
-    pub kind: Scaling,
-    /// Subtracted from each column.
-    pub offset: Vec<f64>,
-    /// Each column is divided by this (never 0).
-    pub scale: Vec<f64>,
+    kind: Scaling,
+    offset: Vec<f64>,
+    scale: Vec<f64>,
 }
 
 /// The mean and population standard deviation of `n` values given by
@@ -52,11 +65,16 @@ fn mean_and_sd(n: usize, each: impl Fn(&mut dyn FnMut(f64))) -> (f64, f64) {
 }
 
 impl Scaler {
-    /// Fits a scaler of `kind` on the given rows of `x` (all rows when `rows` is `None`).
+    /// Learns a scaler of `kind` from the given rows of `x` (all rows when
+    /// `rows` is `None`).
     ///
     /// # Errors
-    /// When there are no rows to fit on.
-    pub fn fit(kind: Scaling, x: ArrayView2<'_, f64>, rows: Option<&[usize]>) -> Result<Scaler> {
+    /// When there are no rows to learn from, or (min-max) a range beyond f64.
+    pub fn from_rows(
+        kind: Scaling,
+        x: ArrayView2<'_, f64>,
+        rows: Option<&[usize]>,
+    ) -> Result<Scaler> {
         let n = rows.map_or(x.nrows(), <[usize]>::len);
         if n == 0 {
             return Err(Error::input(
@@ -151,16 +169,59 @@ impl Scaler {
         })
     }
 
+    /// A scaler from stored parts (a model file's), checked: as many scales
+    /// as offsets, every number finite, every scale non-zero.
+    ///
+    /// # Errors
+    /// The first part that breaks a rule, named.
+    pub fn from_parts(kind: Scaling, offset: Vec<f64>, scale: Vec<f64>) -> Result<Scaler> {
+        if offset.len() != scale.len() {
+            return Err(Error::shape("scaler", (1, offset.len()), (1, scale.len())));
+        }
+        if let Some(i) = offset.iter().position(|v| !v.is_finite()) {
+            return Err(Error::input(
+                "scaler",
+                format!("offset {} is not a finite number", i + 1),
+            ));
+        }
+        if let Some(i) = scale.iter().position(|v| !v.is_finite() || *v == 0.0) {
+            return Err(Error::input(
+                "scaler",
+                format!("scale {} is 0 or not a finite number", i + 1),
+            ));
+        }
+        Ok(Scaler {
+            kind,
+            offset,
+            scale,
+        })
+    }
+
+    /// The kind of scaling.
+    pub fn kind(&self) -> Scaling {
+        self.kind
+    }
+
+    /// What is subtracted from each column.
+    pub fn offsets(&self) -> &[f64] {
+        &self.offset
+    }
+
+    /// What each column is divided by (never 0).
+    pub fn scales(&self) -> &[f64] {
+        &self.scale
+    }
+
     /// Number of columns.
     pub fn n_columns(&self) -> usize {
         self.offset.len()
     }
 
-    /// Scales `x` in place.
+    /// Scales `x` in place: `x = (x - offset) / scale`.
     ///
     /// # Errors
     /// When the column count differs from the fitted one.
-    pub fn apply(&self, mut x: ArrayViewMut2<'_, f64>) -> Result<()> {
+    pub fn scale_in_place(&self, mut x: ArrayViewMut2<'_, f64>) -> Result<()> {
         self.check(x.ncols())?;
         if self.kind == Scaling::None {
             return Ok(());
@@ -184,9 +245,9 @@ impl Scaler {
     ///
     /// # Errors
     /// When the column count differs from the fitted one.
-    pub fn transform(&self, x: ArrayView2<'_, f64>) -> Result<Array2<f64>> {
+    pub fn scaled(&self, x: ArrayView2<'_, f64>) -> Result<Array2<f64>> {
         let mut out = x.to_owned();
-        self.apply(out.view_mut())?;
+        self.scale_in_place(out.view_mut())?;
         Ok(out)
     }
 
@@ -194,7 +255,7 @@ impl Scaler {
     ///
     /// # Errors
     /// When the column count differs from the fitted one.
-    pub fn invert(&self, mut x: ArrayViewMut2<'_, f64>) -> Result<()> {
+    pub fn unscale_in_place(&self, mut x: ArrayViewMut2<'_, f64>) -> Result<()> {
         self.check(x.ncols())?;
         if self.kind == Scaling::None {
             return Ok(());
@@ -229,10 +290,10 @@ mod tests {
     #[test]
     fn standardise_uses_training_rows_only() {
         let x = array![[1.0, 5.0], [3.0, 5.0], [100.0, 7.0]];
-        let s = Scaler::fit(Scaling::Standardise, x.view(), Some(&[0, 1])).unwrap();
+        let s = Scaler::from_rows(Scaling::Standardise, x.view(), Some(&[0, 1])).unwrap();
         assert_eq!(s.offset, vec![2.0, 5.0]);
         assert_eq!(s.scale, vec![1.0, 1.0]); // sd of [1,3] is 1; second column constant -> 1
-        let t = s.transform(x.view()).unwrap();
+        let t = s.scaled(x.view()).unwrap();
         assert_eq!(t, array![[-1.0, 0.0], [1.0, 0.0], [98.0, 2.0]]);
         assert!(t.iter().all(|v| v.is_finite()));
     }
@@ -240,10 +301,10 @@ mod tests {
     #[test]
     fn min_max_round_trip() {
         let x = array![[1.0, -2.0], [3.0, 2.0]];
-        let s = Scaler::fit(Scaling::MinMax, x.view(), None).unwrap();
-        let mut t = s.transform(x.view()).unwrap();
+        let s = Scaler::from_rows(Scaling::MinMax, x.view(), None).unwrap();
+        let mut t = s.scaled(x.view()).unwrap();
         assert_eq!(t, array![[0.0, 0.0], [1.0, 1.0]]);
-        s.invert(t.view_mut()).unwrap();
+        s.unscale_in_place(t.view_mut()).unwrap();
         assert_eq!(t, x);
     }
 
@@ -252,7 +313,7 @@ mod tests {
     #[test]
     fn population_standard_deviation() {
         let x = array![[2.0], [4.0], [4.0], [4.0], [5.0], [5.0], [7.0], [9.0]];
-        let s = Scaler::fit(Scaling::Standardise, x.view(), None).unwrap();
+        let s = Scaler::from_rows(Scaling::Standardise, x.view(), None).unwrap();
         assert_eq!(s.offset, vec![5.0]);
         assert_eq!(s.scale, vec![2.0]);
     }

@@ -12,10 +12,9 @@
 use crate::error::{Error, Result};
 use crate::rng;
 use rand::RngCore;
-use serde::{Deserialize, Serialize};
 
 /// A train / validation / test partition of row indices (each sorted).
-#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Eq)]
 pub struct Split {
     /// Rows to fit on.
     pub train: Vec<usize>,
@@ -26,7 +25,7 @@ pub struct Split {
 }
 
 /// One cross-validation fold: the rows to fit on and the rows to score.
-#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Eq)]
 pub struct Fold {
     /// Rows to fit on (sorted).
     pub train: Vec<usize>,
@@ -34,7 +33,7 @@ pub struct Fold {
     pub test: Vec<usize>,
 }
 
-fn check_fraction(name: &str, f: f64) -> Result<()> {
+fn check_share(name: &str, f: f64) -> Result<()> {
     if !(0.0..1.0).contains(&f) || !f.is_finite() {
         return Err(Error::option(name, f, "must be at least 0 and below 1"));
     }
@@ -51,23 +50,23 @@ fn rows_by_class(labels: &[usize]) -> Vec<Vec<usize>> {
 }
 
 /// Splits rows into train, validation and test sets, keeping each class's
-/// share (`round(n_c * fraction)` rows of class `c` go to each held-out set).
+/// share (`round(n_c * share)` rows of class `c` go to each held-out set).
 ///
 /// # Errors
 /// Fractions outside `[0, 1)` or adding up to 1 or more, or a split that
 /// would leave a class with no training rows.
 pub fn stratified_split<R: RngCore + ?Sized>(
     labels: &[usize],
-    validation_fraction: f64,
-    test_fraction: f64,
+    validation_share: f64,
+    test_share: f64,
     rng: &mut R,
 ) -> Result<Split> {
-    check_fraction("validation_fraction", validation_fraction)?;
-    check_fraction("test_fraction", test_fraction)?;
-    if validation_fraction + test_fraction >= 1.0 {
+    check_share("validation_share", validation_share)?;
+    check_share("test_share", test_share)?;
+    if validation_share + test_share >= 1.0 {
         return Err(Error::option(
-            "validation_fraction + test_fraction",
-            validation_fraction + test_fraction,
+            "validation_share + test_share",
+            validation_share + test_share,
             "must be below 1 so that rows remain for training",
         ));
     }
@@ -82,13 +81,13 @@ pub fn stratified_split<R: RngCore + ?Sized>(
         }
         rng::shuffle(rng, &mut rows);
         let n = rows.len() as f64;
-        let n_test = (n * test_fraction).round() as usize;
-        let n_val = (n * validation_fraction).round() as usize;
+        let n_test = (n * test_share).round() as usize;
+        let n_val = (n * validation_share).round() as usize;
         if n_test + n_val >= rows.len() {
             return Err(Error::input(
                 "stratified split",
                 format!(
-                    "class {class} has only {} rows, too few to give the validation and test sets a share and keep one for training; lower the fractions or collect more rows",
+                    "class {class} has only {} rows, too few to give the validation and test sets a share and keep one for training; lower the shares or collect more rows",
                     rows.len()
                 ),
             ));
@@ -111,11 +110,11 @@ pub fn stratified_split<R: RngCore + ?Sized>(
 /// As [`stratified_split`].
 pub fn random_split<R: RngCore + ?Sized>(
     n: usize,
-    validation_fraction: f64,
-    test_fraction: f64,
+    validation_share: f64,
+    test_share: f64,
     rng: &mut R,
 ) -> Result<Split> {
-    stratified_split(&vec![0; n], validation_fraction, test_fraction, rng)
+    stratified_split(&vec![0; n], validation_share, test_share, rng)
 }
 
 fn deal(groups: Vec<Vec<usize>>, n: usize, k: usize) -> Vec<Fold> {

@@ -7,35 +7,87 @@ use crate::data::{ColumnEncoding, Dataset, Scaler};
 use crate::error::{Error, Result};
 use crate::network::Network;
 use ndarray::{Array2, ArrayView2};
-use serde::{Deserialize, Serialize};
 
 /// A fitted network with everything needed to use it on new rows: the
 /// scaler, the column encoding, the class names and how it was made.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq)]
 pub struct Model {
     /// The trained network (works on scaled features).
-    pub network: Network,
-    /// The scaler fitted on the training rows.
-    pub scaler: Scaler,
+    pub(crate) network: Network,
+    /// The scaler learnt from the training rows.
+    pub(crate) scaler: Scaler,
     /// How source columns become features.
-    pub columns: Vec<ColumnEncoding>,
+    pub(crate) columns: Vec<ColumnEncoding>,
     /// Feature names in network input order.
-    pub feature_names: Vec<String>,
+    pub(crate) feature_names: Vec<String>,
     /// The target column's name.
-    pub target_name: String,
+    pub(crate) target_name: String,
     /// Class names (classification) or output names (regression).
-    pub target_names: Vec<String>,
+    pub(crate) target_names: Vec<String>,
     /// Whether the target holds classes.
-    pub is_classifier: bool,
-    /// The options used.
-    pub options: FitOptions,
+    pub(crate) is_classifier: bool,
+    /// The options used (nobody listening).
+    pub(crate) options: FitOptions,
     /// The seed all of the fit's draws came from.
-    pub seed: u64,
+    pub(crate) seed: u64,
     /// How and from what the model was made.
-    pub provenance: Provenance,
+    pub(crate) provenance: Provenance,
 }
 
 impl Model {
+    /// The trained network (it works on scaled features; the model's
+    /// prediction methods scale for it).
+    pub fn network(&self) -> &Network {
+        &self.network
+    }
+
+    /// The scaler learnt from the training rows.
+    pub fn scaler(&self) -> &Scaler {
+        &self.scaler
+    }
+
+    /// How the source columns become the network's inputs, in order.
+    pub fn columns(&self) -> &[ColumnEncoding] {
+        &self.columns
+    }
+
+    /// The network's input names, in order (one-hot columns read
+    /// `column=level`).
+    pub fn feature_names(&self) -> &[String] {
+        &self.feature_names
+    }
+
+    /// The target column's name.
+    pub fn target_name(&self) -> &str {
+        &self.target_name
+    }
+
+    /// Class names (classification) or output names (regression).
+    pub fn target_names(&self) -> &[String] {
+        &self.target_names
+    }
+
+    /// Does the model predict classes?
+    pub fn is_classifier(&self) -> bool {
+        self.is_classifier
+    }
+
+    /// The options it was fitted with.
+    pub fn options(&self) -> &FitOptions {
+        &self.options
+    }
+
+    /// The seed every draw of its fit came from ([`fit_with_seed`](super::fit_with_seed)
+    /// with it and the same table repeats the fit).
+    pub fn seed(&self) -> u64 {
+        self.seed
+    }
+
+    /// Where it came from.
+    pub fn provenance(&self) -> &Provenance {
+        &self.provenance
+    }
+
     /// Class names, or `None` for regression.
     pub fn class_names(&self) -> Option<&[String]> {
         self.is_classifier.then_some(&self.target_names[..])
@@ -49,7 +101,7 @@ impl Model {
                 x.dim(),
             ));
         }
-        let z = self.scaler.transform(x)?;
+        let z = self.scaler.scaled(x)?;
         if let Some(i) = z.iter().position(|v| !v.is_finite()) {
             let (row, col) = (i / z.ncols(), i % z.ncols());
             let value = x[[row, col]];

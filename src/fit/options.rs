@@ -3,18 +3,17 @@
 use crate::data::{Dataset, Scaling, Target};
 use crate::error::{Error, Result};
 use crate::network::{Activation, Head, Init, Precision};
-use crate::train::{EarlyStopping, Optimiser, TrainingOptions};
-use serde::{Deserialize, Serialize};
+use crate::observe::{Event, Observer};
+use crate::train::{BatchSize, EarlyStopping, Optimiser, TrainingOptions};
 
-/// Everything [`fit`] needs beyond the data.
+/// Everything [`fit`](super::fit()) needs beyond the data.
 ///
 /// ```
 /// use stratanet::prelude::*;
 /// let options = FitOptions::default().hidden(&[8, 4]).epochs(300).learning_rate(0.02);
 /// assert_eq!(options.hidden_layers, vec![8, 4]);
 /// ```
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-#[serde(default)]
+#[derive(Clone, Debug, PartialEq)]
 pub struct FitOptions {
     /// Widths of the hidden layers, input side first (empty: no hidden layer).
     pub hidden_layers: Vec<usize>,
@@ -26,8 +25,11 @@ pub struct FitOptions {
     pub init: Init,
     /// Feature scaling, fitted on the training rows.
     pub scaling: Scaling,
-    /// Share of rows held out for validation (early stopping), in `[0, 1)`.
-    pub validation_fraction: f64,
+    /// Share of rows held out as validation rows (for early stopping and
+    /// for choosing among restarts), in `[0, 1)`, stratified by class.
+    /// `None` takes [`FitOptions::VALIDATION_SHARE`] with early stopping and
+    /// 0 (every row trains) without it.
+    pub validation_share: Option<f64>,
     /// Networks trained from different seeds; the best is kept (>= 1).
     pub restarts: usize,
     /// The float type.
@@ -44,7 +46,7 @@ impl Default for FitOptions {
             head: None,
             init: Init::Auto,
             scaling: Scaling::Standardise,
-            validation_fraction: 0.2,
+            validation_share: None,
             restarts: 1,
             precision: Precision::F64,
             training: TrainingOptions::default(),
@@ -53,6 +55,10 @@ impl Default for FitOptions {
 }
 
 impl FitOptions {
+    /// The validation share used with early stopping when none is given
+    /// (common practice, no source).
+    pub const VALIDATION_SHARE: f64 = 0.2;
+
     /// Sets the hidden layer widths.
     pub fn hidden(mut self, widths: &[usize]) -> Self {
         self.hidden_layers = widths.to_vec();
@@ -73,9 +79,9 @@ impl FitOptions {
         self.training.learning_rate = rate;
         self
     }
-    /// Sets the batch size.
-    pub fn batch_size(mut self, rows: usize) -> Self {
-        self.training.batch_size = rows;
+    /// Sets the rows per update (`BatchSize::Full` for full-batch descent).
+    pub fn batch_size(mut self, batch: BatchSize) -> Self {
+        self.training.batch_size = Some(batch);
         self
     }
     /// Sets the L2 weight decay.
@@ -93,9 +99,9 @@ impl FitOptions {
         self.restarts = restarts;
         self
     }
-    /// Sets the validation share.
-    pub fn validation_fraction(mut self, fraction: f64) -> Self {
-        self.validation_fraction = fraction;
+    /// Sets the share of rows held out as validation rows.
+    pub fn validation_share(mut self, share: f64) -> Self {
+        self.validation_share = Some(share);
         self
     }
     /// Sets early stopping (`None` turns it off).
@@ -107,6 +113,33 @@ impl FitOptions {
     pub fn precision(mut self, precision: Precision) -> Self {
         self.precision = precision;
         self
+    }
+
+    /// Calls `f` with every progress [`Event`] of the fit (and of the
+    /// cross-validation or sweep these options are given to); see
+    /// [`observe`](crate::observe).
+    pub fn observe(mut self, f: impl Fn(&Event) + Send + Sync + 'static) -> Self {
+        self.training.observer = Observer::new(f);
+        self
+    }
+
+    /// The validation share in force: the one given, or the default for
+    /// the early-stopping setting.
+    pub fn validation_share_or_default(&self) -> f64 {
+        self.validation_share
+            .unwrap_or(if self.training.early_stopping.is_some() {
+                FitOptions::VALIDATION_SHARE
+            } else {
+                0.0
+            })
+    }
+
+    /// The same options with nobody listening (what a model records).
+    pub(crate) fn without_observer(&self) -> FitOptions {
+        FitOptions {
+            training: self.training.without_observer(),
+            ..self.clone()
+        }
     }
 
     /// The network's layer sizes for `data`, and its head.
@@ -126,7 +159,7 @@ impl FitOptions {
             (Target::Classes { names, .. }, Some(h)) => {
                 return Err(Error::option(
                     "head",
-                    h.name(),
+                    h,
                     format!(
                         "cannot predict {} classes; use softmax (or logistic for two classes)",
                         names.len()
@@ -140,17 +173,31 @@ impl FitOptions {
         Ok((sizes, head))
     }
 
-    /// Checks the options that `fit` adds to the training options.
+    /// Checks every option that does not depend on the data, once, before
+    /// any work: the front door of [`fit`](super::fit), cross-validation and
+    /// sweeps calls it, and nothing checks again.
     ///
     /// # Errors
-    /// The first invalid option, named.
+    /// The first invalid option, named, with its valid range.
     pub fn validate(&self) -> Result<()> {
-        if !(0.0..1.0).contains(&self.validation_fraction) {
-            return Err(Error::option(
-                "validation_fraction",
-                self.validation_fraction,
-                "must be at least 0 and below 1",
-            ));
+        if let Some(share) = self.validation_share {
+            if !(0.0..1.0).contains(&share) {
+                return Err(Error::option(
+                    "validation_share",
+                    share,
+                    "must be at least 0 and below 1",
+                ));
+            }
+            if share == 0.0 && self.training.early_stopping.is_some() {
+                return Err(Error::option(
+                    "validation_share",
+                    0,
+                    format!(
+                        "early stopping needs validation rows: set it above 0 ({} is usual) or turn early stopping off",
+                        FitOptions::VALIDATION_SHARE
+                    ),
+                ));
+            }
         }
         if self.restarts == 0 {
             return Err(Error::option("restarts", 0, "must be at least 1"));
@@ -172,15 +219,11 @@ impl FitOptions {
                 ),
             ));
         }
-        if self.training.early_stopping.is_some() && self.validation_fraction == 0.0 {
-            return Err(Error::option(
-                "validation_fraction",
-                0,
-                "early stopping needs validation rows: set validation_fraction above 0 (0.2 is usual) or turn early stopping off",
-            ));
+        if let Some(head) = self.head {
+            if let Some(loss) = self.training.loss {
+                loss.check_head(head)?;
+            }
         }
-        // Everything but the batch size against the row count, which needs data.
-        self.training
-            .validate(usize::MAX, self.validation_fraction > 0.0)
+        self.training.validate()
     }
 }

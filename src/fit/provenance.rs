@@ -1,13 +1,11 @@
 //! Where a model came from: [`Provenance`].
 
-use serde::{Deserialize, Serialize};
-
 /// Where a model came from: the library, the table and a summary of training.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq)]
 pub struct Provenance {
     /// The stratanet version that trained the model.
     pub library_version: String,
-    /// [`Dataset::fingerprint`] of the whole table given to `fit`.
+    /// [`Dataset::fingerprint`](crate::data::Dataset::fingerprint) of the whole table given to `fit`.
     pub table_fingerprint: String,
     /// Rows in that table.
     pub table_rows: usize,

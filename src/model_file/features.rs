@@ -39,9 +39,9 @@ pub enum TargetColumn {
 /// use stratanet::model_file::{FeatureOptions, TargetColumn};
 /// # let text = "a,b,y\n0,0,n\n0,1,y\n1,0,y\n1,1,y\n";
 /// # let data = CsvOptions::new("y").read_str(text, "or.csv")?;
-/// # let options = FitOptions::default().hidden(&[]).validation_fraction(0.0)
-/// #     .early_stopping(None).epochs(5).batch_size(4);
-/// # let model = fit(&data, &options, &mut seeded_rng(1))?.model;
+/// # let options = FitOptions::default().hidden(&[]).validation_share(0.0)
+/// #     .early_stopping(None).epochs(5).batch_size(stratanet::train::BatchSize::Rows(4));
+/// # let model = fit(&data, &options, &mut seeded_rng(1))?.into_model();
 /// // Columns in another order, the target column present, a note column.
 /// let new_rows = "note,y,b,a\nfirst,n,0,0\nsecond,y,1,1\n";
 /// let rows = FeatureOptions::default()

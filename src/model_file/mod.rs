@@ -1,6 +1,6 @@
-//! Model files: [`save`] a fitted [`Model`] as readable JSON, [`load`] it
-//! back with every field checked, and read new rows for it by column name
-//! ([`FeatureOptions`]).
+//! Model files: [`Model::save`] writes a fitted model as readable JSON,
+//! [`Model::load`] reads it back with every field checked, and
+//! [`FeatureOptions`] reads new rows for a model by column name.
 //!
 //! ```no_run
 //! use stratanet::model_file::FeatureOptions;
@@ -15,7 +15,7 @@
 //! # Ok::<(), stratanet::Error>(())
 //! ```
 //!
-//! # The format (version 1)
+//! # The format (version 2)
 //!
 //! One JSON object (RFC 8259), written by `serde_json::to_writer_pretty`.
 //! The schema is owned here, not derived from the in-memory types, so files
@@ -26,7 +26,7 @@
 //! ```json
 //! {
 //!   "format": "stratanet-model",
-//!   "format_version": 1,
+//!   "format_version": 2,
 //!   "target": { "name": "verdict", "is_classifier": true, "classes": ["accept", "reject"] },
 //!   "columns": [
 //!     { "encoding": "numeric", "name": "bore_um" },
@@ -34,7 +34,7 @@
 //!   ],
 //!   "feature_names": ["bore_um", "shift=early", "shift=late"],
 //!   "scaler": { "kind": "standardise", "offset": [12.5, 0.5, 0.5], "scale": [0.25, 0.5, 0.5] },
-//!   "training_options": { "hidden_layers": [4], "activation": "tanh", "...": "..." },
+//!   "training_options": { "hidden_layers": [4], "activation": "tanh", "optimiser": "adam:0.9:0.999:1e-8", "...": "..." },
 //!   "seed": 7,
 //!   "provenance": {
 //!     "library_version": "0.1.0", "table_fingerprint": "9f86d0...", "table_source": "parts.csv",
@@ -57,32 +57,39 @@
 //!
 //! `"hidden_activation": "leaky_relu"` comes with `"leaky_relu_slope"`.
 //! A regression model has `"is_classifier": false` and `"outputs"` (output
-//! names) instead of `"classes"`. `training_options` is [`FitOptions`](crate::FitOptions) in its
-//! serde form; fields it lacks take their defaults.
+//! names) instead of `"classes"`. `training_options` holds every
+//! [`FitOptions`](crate::FitOptions) field flat, each in the text form its
+//! `FromStr` reads (`"optimiser": "adam:0.9:0.999:1e-8"`, `"batch_size":
+//! "full"`, `null` for a default chosen from the data).
+//!
+//! **Version 1** files (written before version 2) differ only in
+//! `training_options`, which held the in-memory types' serde form of the time
+//! (nested, `"validation_fraction"`, `{"adam": {...}}`); they are still read,
+//! and `tests/data/model-v1.json` keeps that reader honest.
 //!
 //! **Exact numbers.** serde_json writes every `f64` in its shortest form that
 //! reads back to the same value, and this crate enables serde_json's
 //! `float_roundtrip` feature, whose parser is correctly rounded ("makes
 //! f64 -> JSON -> f64 produce output identical to the input", serde_json
 //! 1.0.54 release notes). So a loaded model predicts bit for bit what the
-//! saved one did; [`save`] checks this by reading its output back before
-//! writing it. f32 models hold f32 values, written as the f64 of the same
+//! saved one did; [`Model::save`] checks this by reading its output back
+//! before writing it. f32 models hold f32 values, written as the f64 of the same
 //! value. JSON has no NaN or infinity (RFC 8259, section 6), so a model with
 //! one is refused when saving. The seed is written as a JSON integer;
 //! serde_json reads all of `u64` exactly, though RFC 8259 notes that other
 //! tools may not beyond 2^53.
 //!
-//! **Versions.** A file states `"format_version"`. This library reads
-//! version [`FORMAT_VERSION`] and refuses others, naming both, rather than
-//! guess (as ndarray does with its `"v"` field). A change to the schema gets
-//! a new version, and `tests/data/model-v1.json` keeps the reader honest.
+//! **Versions.** A file states `"format_version"`. This library writes
+//! version [`FORMAT_VERSION`], reads it and every earlier version, and
+//! refuses a newer or unknown one by name rather than guess. A change to the
+//! schema gets a new version.
 //!
 //! # What loading refuses
 //!
 //! Every refusal is an [`ErrorKind::ModelFile`](crate::ErrorKind::ModelFile)
 //! naming the file and the reason, in this order:
 //! a file larger than [`MAX_FILE_BYTES`] (judged from its size before it is
-//! read; see [`LoadOptions`]), an empty file, text that is not JSON, or JSON
+//! read), an empty file, text that is not JSON, or JSON
 //! that is damaged or cut short (with serde_json's line and column), nesting
 //! deeper than serde_json's limit of 128 levels, numbers beyond the range of
 //! `f64`, JSON that is not a stratanet model (no `"format": "stratanet-model"`),
@@ -98,16 +105,18 @@
 //! column and class names are only compared with CSV headers and cells.
 
 mod features;
+pub(crate) mod options_schema;
 mod predictions;
 mod schema;
 
 pub use features::{FeatureOptions, FeatureTable, TargetColumn};
-pub use predictions::{prediction_columns, write_predictions};
+pub(crate) use predictions::{prediction_columns, write_predictions};
 pub use schema::{FORMAT_NAME, FORMAT_VERSION};
 
 use crate::error::{Error, Result};
 use crate::fit::Model;
-use schema::FileV1;
+use options_schema::{OptionsV1, OptionsV2};
+use schema::File;
 use serde::de::{self, Deserializer, IgnoredAny, MapAccess, SeqAccess, Visitor};
 use serde::Deserialize;
 use serde_json::error::Category;
@@ -116,148 +125,99 @@ use std::fmt;
 use std::io::Read;
 use std::path::Path;
 
-/// The largest model file [`load`] reads: 256 MiB (far more than a network
-/// of a few layers needs). [`LoadOptions::max_bytes`] changes it.
+/// The largest model file [`Model::load`] reads: 256 MiB (far more than a
+/// network of a few layers needs).
 pub const MAX_FILE_BYTES: u64 = 256 << 20;
 
 /// serde_json's default nesting limit, which loading keeps.
 const MAX_DEPTH: usize = 128;
 
-/// Writes `model` to `path` as a version-1 model file, atomically.
-///
-/// The model is checked, serialised, read back and compared before anything
-/// is written; then the file is written to a temporary file in the same
-/// folder, synced and renamed over `path`, so a reader never sees half a
-/// file and a failure leaves a previous file as it was.
-///
-/// # Errors
-/// A model that could not be loaded back (a NaN weight or loss, shapes that
-/// disagree: the reason names the field), or a failure to write `path`.
-pub fn save(model: &Model, path: impl AsRef<Path>) -> Result<()> {
-    let path = path.as_ref();
-    let bytes = to_bytes(model, &format!("saving a model to {}", path.display()))?;
-    crate::atomic::write_file(path, |w| {
-        w.write_all(&bytes)
-            .map_err(|e| Error::io(path, "writing", e))
-    })
-}
-
-/// Reads a model file written by [`save`] (any version this library knows),
-/// refusing anything damaged or inconsistent (see the module docs).
-///
-/// # Errors
-/// [`ErrorKind::ModelFile`](crate::ErrorKind::ModelFile) naming the file and
-/// the problem; [`ErrorKind::Io`](crate::ErrorKind::Io) when it cannot be read.
-pub fn load(path: impl AsRef<Path>) -> Result<Model> {
-    LoadOptions::default().load(path)
-}
-
-/// The model as model-file text (what [`save`] writes).
-///
-/// # Errors
-/// As [`save`], without the writing.
-pub fn to_json(model: &Model) -> Result<String> {
-    let bytes = to_bytes(model, "serialising a model")?;
-    Ok(String::from_utf8(bytes).expect("serde_json writes UTF-8"))
-}
-
-/// A model from model-file text; `name` stands for the file in messages.
-///
-/// # Errors
-/// As [`load`], except for the size limit.
-pub fn from_json(text: &str, name: impl AsRef<Path>) -> Result<Model> {
-    parse(text.as_bytes(), name.as_ref())
-}
-
-/// Options for [`load`]: the size limit.
-#[derive(Clone, Debug, PartialEq, Eq)]
-pub struct LoadOptions {
-    /// The largest file read, in bytes (default [`MAX_FILE_BYTES`]).
-    pub max_bytes: u64,
-}
-
-impl Default for LoadOptions {
-    fn default() -> Self {
-        LoadOptions {
-            max_bytes: MAX_FILE_BYTES,
-        }
-    }
-}
-
-impl LoadOptions {
-    /// Sets the size limit.
-    pub fn max_bytes(mut self, bytes: u64) -> Self {
-        self.max_bytes = bytes;
-        self
-    }
-
-    /// Reads a model file (see [`load`]).
+impl Model {
+    /// Writes the model to `path` as a model file (the current version),
+    /// atomically.
+    ///
+    /// The model is checked, serialised, read back and compared before
+    /// anything is written; then the file is written to a temporary file in
+    /// the same folder, synced and renamed over `path`, so a reader never
+    /// sees half a file and a failure leaves a previous file as it was.
     ///
     /// # Errors
-    /// As [`load`].
-    pub fn load(&self, path: impl AsRef<Path>) -> Result<Model> {
+    /// A model that could not be loaded back (a NaN weight or loss, shapes
+    /// that disagree: the reason names the field), or a failure to write
+    /// `path`.
+    pub fn save(&self, path: impl AsRef<Path>) -> Result<()> {
         let path = path.as_ref();
-        let file = std::fs::File::open(path).map_err(|e| Error::io(path, "opening", e))?;
-        let meta = file.metadata().map_err(|e| Error::io(path, "reading", e))?;
-        if meta.is_dir() {
-            return Err(Error::model_file(path, "it is a folder, not a file"));
-        }
-        if meta.len() > self.max_bytes {
-            return Err(too_large(path, meta.len(), self.max_bytes));
-        }
-        // The size can change after the check, and some files report none:
-        // never read more than the limit allows.
-        let mut bytes = Vec::with_capacity(meta.len() as usize);
-        file.take(self.max_bytes.saturating_add(1))
-            .read_to_end(&mut bytes)
-            .map_err(|e| Error::io(path, "reading", e))?;
-        if bytes.len() as u64 > self.max_bytes {
-            return Err(too_large(path, bytes.len() as u64, self.max_bytes));
-        }
-        parse(&bytes, path)
+        let bytes = to_bytes(self, &format!("saving a model to {}", path.display()))?;
+        crate::atomic::write_file(path, |w| {
+            w.write_all(&bytes)
+                .map_err(|e| Error::io(path, "writing", e))
+        })
     }
+
+    /// Reads a model file written by [`Model::save`] (any version this
+    /// library knows), refusing anything damaged or inconsistent (see the
+    /// module docs).
+    ///
+    /// # Errors
+    /// [`ErrorKind::ModelFile`](crate::ErrorKind::ModelFile) naming the file
+    /// and the problem; [`ErrorKind::Io`](crate::ErrorKind::Io) when it
+    /// cannot be read.
+    pub fn load(path: impl AsRef<Path>) -> Result<Model> {
+        load_with_limit(path.as_ref(), MAX_FILE_BYTES)
+    }
+
+    /// The model as model-file text (what [`Model::save`] writes).
+    ///
+    /// # Errors
+    /// As [`Model::save`], without the writing.
+    pub fn to_json(&self) -> Result<String> {
+        let bytes = to_bytes(self, "serialising a model")?;
+        Ok(String::from_utf8(bytes).expect("serde_json writes UTF-8"))
+    }
+
+    /// A model from model-file text; `name` stands for the file in messages.
+    ///
+    /// # Errors
+    /// As [`Model::load`], except for the size limit.
+    pub fn from_json(text: &str, name: impl AsRef<Path>) -> Result<Model> {
+        parse(text.as_bytes(), name.as_ref())
+    }
+}
+
+/// Reads a model file of at most `max_bytes` bytes.
+pub(crate) fn load_with_limit(path: &Path, max_bytes: u64) -> Result<Model> {
+    let file = std::fs::File::open(path).map_err(|e| Error::io(path, "opening", e))?;
+    let meta = file.metadata().map_err(|e| Error::io(path, "reading", e))?;
+    if meta.is_dir() {
+        return Err(Error::model_file(path, "it is a folder, not a file"));
+    }
+    if meta.len() > max_bytes {
+        return Err(too_large(path, meta.len(), max_bytes));
+    }
+    // The size can change after the check, and some files report none:
+    // never read more than the limit allows.
+    let mut bytes = Vec::with_capacity(meta.len() as usize);
+    file.take(max_bytes.saturating_add(1))
+        .read_to_end(&mut bytes)
+        .map_err(|e| Error::io(path, "reading", e))?;
+    if bytes.len() as u64 > max_bytes {
+        return Err(too_large(path, bytes.len() as u64, max_bytes));
+    }
+    parse(&bytes, path)
 }
 
 fn too_large(path: &Path, size: u64, limit: u64) -> Error {
     Error::model_file(
         path,
         format!(
-            "the file holds {size} bytes, more than the limit of {limit} bytes for model files; if it really is a model, raise the limit with LoadOptions::max_bytes"
+            "the file holds {size} bytes, more than the limit of {limit} bytes for model files; a model of a few layers is far smaller, so the file is not one, or is damaged"
         ),
     )
 }
 
-impl Model {
-    /// Saves the model as a model file; see [`save`].
-    ///
-    /// # Errors
-    /// As [`save`].
-    pub fn save(&self, path: impl AsRef<Path>) -> Result<()> {
-        save(self, path)
-    }
-
-    /// Loads a model file; see [`load`].
-    ///
-    /// # Errors
-    /// As [`load`].
-    pub fn load(path: impl AsRef<Path>) -> Result<Model> {
-        load(path)
-    }
-
-    /// Reads a CSV file's rows for this model, picking its columns by name
-    /// (with [`FeatureOptions::default`]: extra columns refused, the target
-    /// column skipped, missing cells an error).
-    ///
-    /// # Errors
-    /// See [`FeatureOptions::read`].
-    pub fn read_features(&self, path: impl AsRef<Path>) -> Result<FeatureTable> {
-        FeatureOptions::default().read(self, path)
-    }
-}
-
 /// Checks, serialises and reads back `model`; `what` heads refusals.
 fn to_bytes(model: &Model, what: &str) -> Result<Vec<u8>> {
-    let file = FileV1::from_model(model);
+    let file = File::from_model(model);
     file.check()
         .map_err(|reason| Error::input(what, format!("the model cannot be stored: {reason}")))?;
     let mut bytes = serde_json::to_vec_pretty(&file)
@@ -303,7 +263,7 @@ fn parse(bytes: &[u8], path: &Path) -> Result<Model> {
     }
     let header: FormatProbe =
         serde_json::from_slice(bytes).map_err(|e| json_error(path, first, &e))?;
-    check_format(&header).map_err(|reason| Error::model_file(path, reason))?;
+    let version = check_format(&header).map_err(|reason| Error::model_file(path, reason))?;
     // 3. Layer sizes, before any weight is allocated.
     let sizes: SizeProbe =
         serde_json::from_slice(bytes).map_err(|e| json_error(path, first, &e))?;
@@ -314,9 +274,16 @@ fn parse(bytes: &[u8], path: &Path) -> Result<Model> {
         .ok_or_else(|| Error::model_file(path, "\"network\" has no field \"layer_sizes\""))?;
     schema::check_layer_sizes(&sizes).map_err(|reason| Error::model_file(path, reason))?;
     // 4. Everything, then every consistency check.
-    let file: FileV1 = serde_json::from_slice(bytes).map_err(|e| json_error(path, first, &e))?;
-    file.into_model()
-        .map_err(|reason| Error::model_file(path, reason))
+    let model = if version == 1 {
+        let file: File<OptionsV1> =
+            serde_json::from_slice(bytes).map_err(|e| json_error(path, first, &e))?;
+        file.into_model()
+    } else {
+        let file: File<OptionsV2> =
+            serde_json::from_slice(bytes).map_err(|e| json_error(path, first, &e))?;
+        file.into_model()
+    };
+    model.map_err(|reason| Error::model_file(path, reason))
 }
 
 /// What a JSON document holds, from its first byte (it parsed).
@@ -362,7 +329,8 @@ fn show(v: &Value) -> String {
     }
 }
 
-fn check_format(header: &FormatProbe) -> std::result::Result<(), String> {
+/// Checks the format name and returns the version (one this library reads).
+fn check_format(header: &FormatProbe) -> std::result::Result<u32, String> {
     match &header.format {
         Some(Value::String(s)) if s == FORMAT_NAME => {}
         None | Some(Value::Null) => {
@@ -378,13 +346,13 @@ fn check_format(header: &FormatProbe) -> std::result::Result<(), String> {
         }
     }
     let supported = format!(
-        "stratanet {} reads format version {FORMAT_VERSION}",
+        "stratanet {} reads format versions 1 to {FORMAT_VERSION}",
         env!("CARGO_PKG_VERSION")
     );
     match &header.format_version {
         None | Some(Value::Null) => Err(format!("no \"format_version\" ({supported})")),
         Some(Value::Number(n)) => match n.as_u64() {
-            Some(v) if v == u64::from(FORMAT_VERSION) => Ok(()),
+            Some(v) if (1..=u64::from(FORMAT_VERSION)).contains(&v) => Ok(v as u32),
             Some(v) if v > u64::from(FORMAT_VERSION) => Err(format!(
                 "format_version {v} is newer than this library knows ({supported}); load the file with a newer stratanet"
             )),

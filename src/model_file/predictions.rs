@@ -8,7 +8,7 @@ use crate::fit::Model;
 use std::path::Path;
 
 /// The prediction table's column names for a model.
-pub fn prediction_columns(model: &Model) -> Vec<String> {
+pub(crate) fn prediction_columns(model: &Model) -> Vec<String> {
     let mut cols = vec!["line".to_string()];
     if model.is_classifier {
         cols.push("predicted".into());
@@ -23,9 +23,9 @@ pub fn prediction_columns(model: &Model) -> Vec<String> {
 ///
 /// # Errors
 /// Prediction or writing fails.
-pub fn write_predictions(model: &Model, table: &FeatureTable, out: &Path) -> Result<()> {
+pub(crate) fn write_predictions(model: &Model, table: &FeatureTable, out: &Path) -> Result<()> {
     let mut w = csv::Writer::from_writer(Vec::new());
-    let io = |e: csv::Error| Error::input(out.display().to_string(), e.to_string());
+    let io = |e: csv::Error| Error::csv(out, e);
     w.write_record(prediction_columns(model)).map_err(io)?;
     if model.is_classifier {
         // One forward pass gives both the classes and the probabilities.
@@ -51,6 +51,6 @@ pub fn write_predictions(model: &Model, table: &FeatureTable, out: &Path) -> Res
     }
     let bytes = w
         .into_inner()
-        .map_err(|e| Error::input(out.display().to_string(), e.to_string()))?;
+        .map_err(|e| Error::io(out, "writing", e.into_error()))?;
     write_text(out, std::str::from_utf8(&bytes).expect("CSV of UTF-8 text"))
 }

@@ -1,11 +1,10 @@
-//! The version-1 file schema: structs owned by this module, separate from
-//! the in-memory [`Model`] (whose own serde form may change with the
-//! library), and the conversions both ways with every consistency check.
-//!
-//! Only `training_options` reuses an in-memory type's serde form
-//! ([`FitOptions`]); it is informational (the network, scaler and encoding
-//! hold everything prediction needs) and defaults any field it lacks.
+//! The file schema: structs owned by this module, separate from the
+//! in-memory [`Model`], and the conversions both ways with every
+//! consistency check. Versions 1 and 2 share every part but
+//! `training_options` (see [`options_schema`](super::options_schema)), so
+//! [`File`] takes the options schema as a parameter.
 
+use super::options_schema::{OptionsV1, OptionsV2};
 use crate::data::{ColumnEncoding, Scaler, Scaling};
 use crate::fit::{FitOptions, Model, Provenance};
 use crate::network::{Activation, Head, Layer, Network, Precision, MAX_PARAMETERS};
@@ -15,20 +14,43 @@ use std::collections::HashSet;
 
 /// The value of the `"format"` field.
 pub const FORMAT_NAME: &str = "stratanet-model";
-/// The format version this library writes and reads.
-pub const FORMAT_VERSION: u32 = 1;
+/// The format version this library writes; it reads this one and every
+/// earlier one.
+pub const FORMAT_VERSION: u32 = 2;
 
-/// A whole model file.
+/// The options schema of each format version.
+pub(super) trait OptionsSchema {
+    /// The version whose files hold it.
+    const VERSION: u32;
+    /// The options, checked.
+    fn into_options(self) -> Result<FitOptions, String>;
+}
+
+impl OptionsSchema for OptionsV1 {
+    const VERSION: u32 = 1;
+    fn into_options(self) -> Result<FitOptions, String> {
+        OptionsV1::into_options(self)
+    }
+}
+
+impl OptionsSchema for OptionsV2 {
+    const VERSION: u32 = 2;
+    fn into_options(self) -> Result<FitOptions, String> {
+        OptionsV2::into_options(self)
+    }
+}
+
+/// A whole model file, its `training_options` in schema `O`.
 #[derive(Debug, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
-pub(super) struct FileV1 {
+pub(super) struct File<O> {
     pub format: String,
     pub format_version: u32,
     pub target: TargetV1,
     pub columns: Vec<ColumnV1>,
     pub feature_names: Vec<String>,
     pub scaler: ScalerV1,
-    pub training_options: FitOptions,
+    pub training_options: O,
     pub seed: u64,
     pub provenance: ProvenanceV1,
     pub network: NetworkV1,
@@ -202,9 +224,10 @@ fn first_repeat(names: &[String]) -> Option<&str> {
         .map(String::as_str)
 }
 
-impl FileV1 {
-    /// The file form of a model (no checks; see [`FileV1::check`]).
-    pub fn from_model(model: &Model) -> FileV1 {
+impl File<OptionsV2> {
+    /// The file form of a model, in the version written now (no checks;
+    /// see [`File::check`]).
+    pub fn from_model(model: &Model) -> File<OptionsV2> {
         let net = &model.network;
         let (hidden_activation, leaky_relu_slope) = match net.activation() {
             Activation::Identity => (ActivationV1::Identity, None),
@@ -237,7 +260,7 @@ impl FileV1 {
         };
         let names = model.target_names.clone();
         let p = &model.provenance;
-        FileV1 {
+        File {
             format: FORMAT_NAME.to_string(),
             format_version: FORMAT_VERSION,
             target: TargetV1 {
@@ -259,15 +282,15 @@ impl FileV1 {
                 .collect(),
             feature_names: model.feature_names.clone(),
             scaler: ScalerV1 {
-                kind: match model.scaler.kind {
+                kind: match model.scaler.kind() {
                     Scaling::None => ScalingV1::None,
                     Scaling::Standardise => ScalingV1::Standardise,
                     Scaling::MinMax => ScalingV1::MinMax,
                 },
-                offset: model.scaler.offset.clone(),
-                scale: model.scaler.scale.clone(),
+                offset: model.scaler.offsets().to_vec(),
+                scale: model.scaler.scales().to_vec(),
             },
-            training_options: model.options.clone(),
+            training_options: OptionsV2::from_options(&model.options),
             seed: model.seed,
             provenance: ProvenanceV1 {
                 library_version: p.library_version.clone(),
@@ -285,7 +308,9 @@ impl FileV1 {
             network,
         }
     }
+}
 
+impl<O: OptionsSchema> File<O> {
     /// Every consistency check; the reason names the field.
     pub fn check(&self) -> Result<(), String> {
         if self.format != FORMAT_NAME {
@@ -294,10 +319,11 @@ impl FileV1 {
                 self.format
             ));
         }
-        if self.format_version != FORMAT_VERSION {
+        if self.format_version != O::VERSION {
             return Err(format!(
-                "\"format_version\" is {}, but this library writes and reads {FORMAT_VERSION}",
-                self.format_version
+                "\"format_version\" is {}, but the file was read as version {}",
+                self.format_version,
+                O::VERSION
             ));
         }
         self.check_network()?;
@@ -557,7 +583,7 @@ impl FileV1 {
         Ok(())
     }
 
-    /// The in-memory model, after [`FileV1::check`].
+    /// The in-memory model, after [`File::check`].
     pub fn into_model(self) -> Result<Model, String> {
         self.check()?;
         let net = self.network;
@@ -596,19 +622,22 @@ impl FileV1 {
         let network = Network::from_layers(layers, activation, head)
             .map_err(|e| format!("network: {e}"))?
             .with_precision(precision);
+        let options = self
+            .training_options
+            .into_options()
+            .map_err(|e| format!("\"training_options\": {e}"))?;
         let t = self.target;
         let p = self.provenance;
+        let kind = match self.scaler.kind {
+            ScalingV1::None => Scaling::None,
+            ScalingV1::Standardise => Scaling::Standardise,
+            ScalingV1::MinMax => Scaling::MinMax,
+        };
+        let scaler = Scaler::from_parts(kind, self.scaler.offset, self.scaler.scale)
+            .map_err(|e| format!("\"scaler\": {e}"))?;
         Ok(Model {
             network,
-            scaler: Scaler {
-                kind: match self.scaler.kind {
-                    ScalingV1::None => Scaling::None,
-                    ScalingV1::Standardise => Scaling::Standardise,
-                    ScalingV1::MinMax => Scaling::MinMax,
-                },
-                offset: self.scaler.offset,
-                scale: self.scaler.scale,
-            },
+            scaler,
             columns: self.columns.iter().map(to_encoding).collect(),
             feature_names: self.feature_names,
             target_name: t.name,
@@ -618,7 +647,7 @@ impl FileV1 {
                 t.outputs.expect("checked")
             },
             is_classifier: t.is_classifier,
-            options: self.training_options,
+            options,
             seed: self.seed,
             provenance: Provenance {
                 library_version: p.library_version,

@@ -1,29 +1,32 @@
-//! Hidden-layer activations and output heads.
-//!
-//! ```text
-//! identity     f(z) = z                               f'(z) = 1
-//! sigmoid      f(z) = 1 / (1 + e^-z)                  f'(z) = f(z) (1 - f(z))
-//! tanh         f(z) = (e^z - e^-z) / (e^z + e^-z)     f'(z) = 1 - f(z)^2
-//! relu         f(z) = max(0, z)                       f'(z) = 1 if z > 0, else 0 (0 at the kink)
-//! leaky relu   f(z) = z if z > 0, else s z            f'(z) = 1 if z > 0, else s
-//! softmax      p_k = e^(z_k - m) / sum_j e^(z_j - m), m = max_j z_j (shifted for stability)
-//! ```
-//! Sources: the logistic unit and its derivative as used for backpropagation,
-//! Rumelhart, Hinton & Williams, "Learning representations by
-//! back-propagating errors", Nature 323 (1986); the rectifier, Nair & Hinton,
-//! "Rectified linear units improve restricted Boltzmann machines", ICML 2010;
-//! leaky rectifier, Maas, Hannun & Ng, "Rectifier nonlinearities improve
-//! neural network acoustic models", ICML workshop 2013 (slope 0.01 there);
-//! softmax, Bridle, "Probabilistic interpretation of feedforward
-//! classification network outputs", 1990. Every derivative is computed from
-//! the unit's *output* `a = f(z)`, which is what the forward pass keeps.
+//! Hidden-layer activations ([`Activation`]) and output heads ([`Head`]);
+//! each documents its formula and source.
 
 use super::Real;
-use serde::{Deserialize, Serialize};
+use crate::error::{Error, Result};
+use std::fmt;
+use std::str::FromStr;
 
-/// The activation of a hidden layer.
-#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
-#[serde(rename_all = "snake_case")]
+/// The activation `f` of a hidden layer, applied to each unit's sum `z`:
+///
+/// ```text
+/// identity     f(z) = z                               f'(z) = 1
+/// sigmoid      f(z) = 1 / (1 + e^-z)                  f'(z) = f(z) (1 - f(z))
+/// tanh         f(z) = (e^z - e^-z) / (e^z + e^-z)     f'(z) = 1 - f(z)^2
+/// relu         f(z) = max(0, z)                       f'(z) = 1 if z > 0, else 0 (0 at the kink)
+/// leaky_relu   f(z) = z if z > 0, else s z            f'(z) = 1 if z > 0, else s
+/// ```
+/// Sources: the logistic unit and its derivative as used for
+/// backpropagation, Rumelhart, Hinton & Williams, "Learning representations
+/// by back-propagating errors", Nature 323 (1986); the rectifier, Nair &
+/// Hinton, "Rectified linear units improve restricted Boltzmann machines",
+/// ICML 2010; the leaky rectifier, Maas, Hannun & Ng, "Rectifier
+/// nonlinearities improve neural network acoustic models", ICML workshop
+/// 2013 (slope 0.01 there). Derivatives are computed from the unit's output
+/// `a = f(z)`, which the forward pass keeps.
+///
+/// Text form: `identity`, `sigmoid`, `tanh`, `relu`, `leaky_relu` (slope
+/// 0.01) or `leaky_relu:SLOPE`.
+#[derive(Clone, Copy, Debug, PartialEq)]
 pub enum Activation {
     /// `f(z) = z`.
     Identity,
@@ -56,18 +59,6 @@ impl Activation {
             Activation::Relu => "relu",
             Activation::LeakyRelu(_) => "leaky_relu",
         }
-    }
-
-    /// Parses a name as [`Activation::name`] gives it (`leaky_relu` gets slope 0.01).
-    pub fn from_name(name: &str) -> Option<Activation> {
-        Some(match name {
-            "identity" | "linear" => Activation::Identity,
-            "sigmoid" | "logistic" => Activation::Sigmoid,
-            "tanh" => Activation::Tanh,
-            "relu" => Activation::Relu,
-            "leaky_relu" => Activation::LeakyRelu(0.01),
-            _ => return None,
-        })
     }
 
     /// `f(z)` for one value.
@@ -119,6 +110,60 @@ impl Activation {
     }
 }
 
+impl fmt::Display for Activation {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Activation::LeakyRelu(s) => write!(f, "leaky_relu:{s}"),
+            a => f.write_str(a.name()),
+        }
+    }
+}
+
+impl FromStr for Activation {
+    type Err = Error;
+
+    fn from_str(text: &str) -> Result<Activation> {
+        let t = text.trim();
+        let activation = match t {
+            "identity" => Activation::Identity,
+            "sigmoid" => Activation::Sigmoid,
+            "tanh" => Activation::Tanh,
+            "relu" => Activation::Relu,
+            "leaky_relu" => Activation::LeakyRelu(0.01),
+            _ => match t.strip_prefix("leaky_relu:") {
+                Some(slope) => Activation::LeakyRelu(slope.trim().parse().map_err(|_| {
+                    Error::option("activation", text, "SLOPE must be a number in (0, 1)")
+                })?),
+                None => {
+                    return Err(Error::choice(
+                        "activation",
+                        text,
+                        "identity, sigmoid, tanh, relu, leaky_relu[:SLOPE]",
+                    ))
+                }
+            },
+        };
+        activation.check()?;
+        Ok(activation)
+    }
+}
+
+impl Activation {
+    /// Checks the leaky slope.
+    pub(crate) fn check(self) -> Result<()> {
+        if let Activation::LeakyRelu(s) = self {
+            if !(s > 0.0 && s < 1.0) {
+                return Err(Error::option(
+                    "activation",
+                    self,
+                    "the leaky_relu slope must be between 0 and 1",
+                ));
+            }
+        }
+        Ok(())
+    }
+}
+
 /// The logistic sigmoid, evaluated without overflow for either sign.
 #[inline]
 pub(crate) fn sigmoid<F: Real>(z: F) -> F {
@@ -130,9 +175,21 @@ pub(crate) fn sigmoid<F: Real>(z: F) -> F {
     }
 }
 
-/// The output layer: how the last layer's sums become predictions.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
-#[serde(rename_all = "snake_case")]
+/// The output layer: how the last layer's sums `z` become predictions.
+///
+/// ```text
+/// logistic   a_k = 1 / (1 + e^-z_k)                    (each output on its own)
+/// softmax    a_k = e^(z_k - m) / sum_j e^(z_j - m),  m = max_j z_j
+/// identity   a_k = z_k
+/// ```
+/// The softmax is shifted by `m` so that no exponential overflows (the
+/// value is unchanged). Source for softmax outputs as class probabilities:
+/// Bridle, "Probabilistic interpretation of feedforward classification
+/// network outputs, with relationships to statistical pattern
+/// recognition", 1990.
+///
+/// Text form: `logistic`, `softmax`, `identity`.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Head {
     /// A logistic sigmoid on each output (one output for two classes: the
     /// probability of the second class).
@@ -154,6 +211,7 @@ impl Head {
     }
 
     /// Applies the head to one row of output sums in place.
+    #[inline]
     pub(crate) fn apply_row<F: Real>(self, z: &mut [F]) {
         match self {
             Head::Identity => {}
@@ -171,12 +229,19 @@ impl Head {
     }
 }
 
+crate::error::text_forms!(Head, "head", {
+    Head::Logistic => "logistic",
+    Head::Softmax => "softmax",
+    Head::Identity => "identity",
+});
+
 #[cfg(test)]
 mod tests {
     use super::*;
 
-    // CS231n course notes, "Linear classification" (softmax section), Stanford
-    // 2016-: softmax([1, 2, 3]) = [0.09003057, 0.24472847, 0.66524096].
+    // softmax([1, 2, 3]) = e^k / (e + e^2 + e^3) by the definition (Bridle
+    // 1990): [0.09003057, 0.24472847, 0.66524096] to 8 digits, values
+    // recomputed from the definition (e = 2.718281828...).
     #[test]
     fn softmax_reference_values() {
         let mut z = [1.0f64, 2.0, 3.0];
@@ -196,7 +261,25 @@ mod tests {
     #[test]
     fn names_round_trip() {
         for a in Activation::ALL {
-            assert_eq!(Activation::from_name(a.name()), Some(a));
+            assert_eq!(a.to_string().parse::<Activation>().unwrap(), a);
+        }
+        assert_eq!(
+            "leaky_relu:0.2".parse::<Activation>().unwrap(),
+            Activation::LeakyRelu(0.2)
+        );
+        assert_eq!(
+            "swish".parse::<Activation>().unwrap_err().to_string(),
+            "option activation = swish: must be one of identity, sigmoid, tanh, relu, leaky_relu[:SLOPE]"
+        );
+        assert_eq!(
+            "leaky_relu:2"
+                .parse::<Activation>()
+                .unwrap_err()
+                .to_string(),
+            "option activation = leaky_relu:2: the leaky_relu slope must be between 0 and 1"
+        );
+        for h in [Head::Logistic, Head::Softmax, Head::Identity] {
+            assert_eq!(h.to_string().parse::<Head>().unwrap(), h);
         }
     }
 }

@@ -26,7 +26,6 @@
 //! the thread count.
 
 use super::Real;
-use serde::{Deserialize, Serialize};
 
 /// How the engine's sums are computed.
 ///
@@ -51,8 +50,9 @@ use serde::{Deserialize, Serialize};
 ///   (vectorised across `j` or `k`, which changes no sum). Transcendental
 ///   functions (`exp`, `tanh`, `ln`, `ln_1p`) come from the pure-Rust `libm`
 ///   crate in both modes, never from the platform's C library.
-#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize, Deserialize)]
-#[serde(rename_all = "snake_case")]
+///
+/// Text form: `fast`, `portable`.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
 pub enum Arithmetic {
     /// The fastest kernels for this CPU (the default).
     #[default]
@@ -60,6 +60,11 @@ pub enum Arithmetic {
     /// Fixed-order sums, bit-identical across machines.
     Portable,
 }
+
+crate::error::text_forms!(Arithmetic, "arithmetic", {
+    Arithmetic::Fast => "fast",
+    Arithmetic::Portable => "portable",
+});
 
 impl Arithmetic {
     /// Is this the fast mode (the default)?

@@ -1,10 +1,9 @@
 //! [`Layer`]: one layer's weights and biases.
 
 use ndarray::{Array1, Array2};
-use serde::{Deserialize, Serialize};
 
 /// One layer: `z = a W + b`, then the layer's function.
-#[derive(Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, PartialEq)]
 pub struct Layer {
     /// Weights, `inputs x outputs`.
     pub weights: Array2<f64>,

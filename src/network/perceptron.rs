@@ -6,11 +6,11 @@ use crate::error::{Error, Result};
 use crate::rng;
 use ndarray::{Array1, Array2, ArrayView2, Axis};
 use rand::RngCore;
-use serde::{Deserialize, Serialize};
 
 /// The float type a network trains and predicts in.
-#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize, Deserialize)]
-#[serde(rename_all = "snake_case")]
+///
+/// Text form: `f64`, `f32`.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
 pub enum Precision {
     /// 64-bit floats (the default; used for all exact checks).
     #[default]
@@ -20,8 +20,13 @@ pub enum Precision {
     F32,
 }
 
+crate::error::text_forms!(Precision, "precision", {
+    Precision::F64 => "f64",
+    Precision::F32 => "f32",
+});
+
 /// A multi-layer perceptron.
-#[derive(Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, PartialEq)]
 pub struct Network {
     layers: Vec<Layer>,
     activation: Activation,
@@ -67,15 +72,7 @@ impl Network {
         rng: &mut R,
     ) -> Result<Network> {
         check_architecture(sizes, activation, head)?;
-        if let Init::SmallUniform { range } = init {
-            if !(range > 0.0 && range.is_finite()) {
-                return Err(Error::option(
-                    "init range",
-                    range,
-                    "must be a finite number greater than 0",
-                ));
-            }
-        }
+        init.check()?;
         let mut layers = Vec::with_capacity(sizes.len() - 1);
         for (l, pair) in sizes.windows(2).enumerate() {
             let (n_in, n_out) = (pair[0], pair[1]);
@@ -346,15 +343,7 @@ fn check_architecture(sizes: &[usize], activation: Activation, head: Head) -> Re
             format!("give {params} parameters, more than the limit of {MAX_PARAMETERS}"),
         ));
     }
-    if let Activation::LeakyRelu(s) = activation {
-        if !(s > 0.0 && s < 1.0) {
-            return Err(Error::option(
-                "leaky_relu slope",
-                s,
-                "must be between 0 and 1",
-            ));
-        }
-    }
+    activation.check()?;
     if head == Head::Softmax && sizes[sizes.len() - 1] < 2 {
         return Err(Error::option(
             "head",

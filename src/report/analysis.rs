@@ -3,7 +3,7 @@
 //! the tables and the charts embedded (evcxr shows only the last output of
 //! each kind per cell, so a combined report must be a single block).
 
-use crate::chart::{self, Chart};
+use crate::chart::Chart;
 use crate::data::{CsvOptions, Dataset};
 use crate::error::Result;
 use crate::fit::{fit_with_seed, FitOptions, Fitted};
@@ -52,25 +52,22 @@ pub fn fit_csv(
     analyse(data, options, seed)
 }
 
-/// [`fit_csv`] for a table already read.
-///
-/// # Errors
-/// As [`fit_csv`].
-pub fn analyse(data: Dataset, options: &FitOptions, seed: u64) -> Result<Analysis> {
+fn analyse(data: Dataset, options: &FitOptions, seed: u64) -> Result<Analysis> {
     let fitted = fit_with_seed(&data, options, seed)?;
-    let validation = if fitted.split.validation.is_empty() {
+    let split = fitted.split();
+    let validation = if split.validation.is_empty() {
         None
     } else {
-        Some(Scores::of(&fitted.model, &data.select(&fitted.split.validation))?.0)
+        Some(Scores::of(fitted.model(), &data.select(&split.validation))?.0)
     };
-    let learning_curves = chart::training_curves(&fitted)?;
+    let learning_curves = fitted.learning_curves_chart()?;
     let decision_map = match (
-        fitted.model.is_classifier,
+        fitted.model().is_classifier(),
         crate::chart::decision_features(&data),
     ) {
         (true, Some((x, y))) => {
-            let train = data.select(&fitted.split.train);
-            Some(chart::decision_boundary(&fitted.model, &train, &x, &y)?)
+            let train = data.select(&split.train);
+            Some(fitted.model().decision_map_chart(&train, &x, &y)?)
         }
         _ => None,
     };
@@ -87,11 +84,11 @@ impl Analysis {
     /// The whole report as one HTML fragment with the charts inline.
     pub fn to_html(&self) -> String {
         let mut h = self.data.to_html();
-        h.push_str(&self.fitted.report.to_html());
+        h.push_str(&self.fitted.report().to_html());
         if let Some(v) = &self.validation {
             h.push_str(&format!(
                 "<p style=\"font-family:sans-serif;font-size:13px\">Scores on the {} validation rows (held out from training, used for early stopping):</p>",
-                self.fitted.split.validation.len()
+                self.fitted.split().validation.len()
             ));
             h.push_str(&v.to_html());
         }
@@ -103,10 +100,10 @@ impl Analysis {
             h.push_str(m.as_svg());
             h.push_str("</div>");
         }
-        h.push_str(&self.fitted.model.network.to_html());
+        h.push_str(&self.fitted.model().network().to_html());
         h.push_str(&notes(&[format!(
             "Seed {}: a rerun gives the same numbers and charts.",
-            self.fitted.model.seed
+            self.fitted.model().seed()
         )]));
         h
     }

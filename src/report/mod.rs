@@ -3,4 +3,4 @@
 
 mod analysis;
 
-pub use analysis::{analyse, fit_csv, Analysis};
+pub use analysis::{fit_csv, Analysis};

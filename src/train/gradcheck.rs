@@ -1,27 +1,5 @@
-//! Gradient checking: backpropagated gradients against central differences.
-//!
-//! ```text
-//! numeric_i  = (8 [J(w + h e_i) - J(w - h e_i)] - [J(w + 2h e_i) - J(w - 2h e_i)]) / (12 h)
-//! rel_err_i  = |analytic_i - numeric_i| / max(|analytic_i|, |numeric_i|)
-//! ```
-//! with `J` the mean loss over the given rows (no penalties): the
-//! fourth-order central difference (five-point stencil; Abramowitz & Stegun,
-//! "Handbook of Mathematical Functions", 1964, formula 25.3.6), whose
-//! truncation error is O(h^4) rather than the O(h^2) of the two-point form,
-//! so that small gradients are checked to well below 1e-7. Pairs count as
-//! agreeing when both values are below `1e-10` in size, or when they differ
-//! by no more than the stencil's rounding noise, `64 eps max(|J|, 1) / h`
-//! (each loss is exact to a few ulps of |J|, and the stencil divides their
-//! differences by 12h): a gradient of 1e-8 checked with h = 1e-3 can
-//! differ from its difference quotient by 1e-13 from rounding alone, a
-//! relative error of 1e-5 that says nothing about the gradient. Below that
-//! noise no finite-difference check can see an error. Source: Stanford CS231n notes, "Neural
-//! Networks Part 3" (relative error; below 1e-7 is good in double
-//! precision; rectifier kinks need care: a parameter whose steps switch a
-//! rectifier unit on or off for some row is left out and counted in
-//! [`GradientCheck::at_kinks`]). With the five-point
-//! stencil a step near 1e-3 balances truncation and rounding. Always
-//! computed in f64.
+//! Gradient checking: backpropagated gradients against finite differences
+//! (the method is documented on [`check_gradients`]).
 
 use super::engine::Backprop;
 use super::Loss;
@@ -29,10 +7,9 @@ use crate::error::{Error, Result};
 use crate::network::{Activation, Head, Network};
 use crate::network::{Arithmetic, Params};
 use ndarray::ArrayView2;
-use serde::{Deserialize, Serialize};
 
 /// The outcome of [`check_gradients`].
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq)]
 pub struct GradientCheck {
     /// The largest relative error over all parameters.
     pub max_relative_error: f64,
@@ -47,7 +24,26 @@ pub struct GradientCheck {
 }
 
 /// Compares backpropagated gradients of the mean `loss` over rows `x`
-/// (targets `y` in output encoding) with central differences of step `h`.
+/// (targets `y` in output encoding) with central differences of step `h`:
+///
+/// ```text
+/// numeric_i  = (8 [J(w + h e_i) - J(w - h e_i)] - [J(w + 2h e_i) - J(w - 2h e_i)]) / (12 h)
+/// rel_err_i  = |analytic_i - numeric_i| / max(|analytic_i|, |numeric_i|)
+/// ```
+/// with `J` the mean loss over the given rows (no penalties): the
+/// fourth-order central difference (five-point stencil; Abramowitz & Stegun,
+/// "Handbook of Mathematical Functions", 1964, formula 25.3.6), whose
+/// truncation error is O(h^4) rather than the O(h^2) of the two-point form.
+/// Pairs count as agreeing when both values are below `1e-10` in size, or
+/// when they differ by no more than the stencil's rounding noise,
+/// `64 eps max(|J|, 1) / h` (each loss is exact to a few ulps of |J|, and the
+/// stencil divides their differences by 12h): below that noise no
+/// finite-difference check can see an error. A step near 1e-3 balances
+/// truncation and rounding; a relative error below 1e-7 is good in double
+/// precision (common practice, no source). A parameter whose steps switch a
+/// rectifier unit on or off for some row sits at a kink, where the loss has
+/// no derivative: it is left out and counted in [`GradientCheck::at_kinks`].
+/// Always computed in f64.
 ///
 /// # Errors
 /// Mismatched shapes, `h` not positive, cross-entropy with the identity head.

@@ -1,34 +1,37 @@
-//! Losses and the output layer's error signal.
-//!
-//! Per sample, with outputs `a = head(z)` and targets `y`:
-//!
-//! ```text
-//! squared error   E = 1/2 sum_k (y_k - a_k)^2
-//! cross-entropy   logistic head:  E = sum_k -[y_k ln a_k + (1 - y_k) ln(1 - a_k)]
-//!                                   = sum_k max(z_k, 0) - z_k y_k + ln(1 + e^-|z_k|)   (computed this way)
-//!                 softmax head:   E = -sum_k y_k ln a_k = logsumexp(z) - sum_k y_k z_k
-//! ```
-//! The training objective of a mini-batch `B` is the mean `1/|B| sum E` plus
-//! the penalties (see [`TrainingOptions`](super::TrainingOptions)). The
-//! error signal `delta = dE/dz` at the output is
+//! Losses and the output layer's error signal (the formulas are on
+//! [`Loss`]). Per row, the loss is computed in forms that cannot overflow:
 //!
 //! ```text
-//! cross-entropy with its matching head (logistic or softmax):  delta = a - y
-//! squared error, identity head:                                 delta = a - y
-//! squared error, logistic head:                                 delta = (a - y) a (1 - a)
-//! squared error, softmax head:                                  delta_j = a_j ((a_j - y_j) - sum_k (a_k - y_k) a_k)
+//! cross-entropy, logistic head:  E = sum_k max(z_k, 0) - z_k y_k + ln(1 + e^-|z_k|)
+//! cross-entropy, softmax head:   E = logsumexp(z) - sum_k y_k z_k
+//! squared error, logistic head:  delta = (a - y) a (1 - a)
+//! squared error, softmax head:   delta_j = a_j ((a_j - y_j) - sum_k (a_k - y_k) a_k)
 //! ```
-//! Sources: squared error with logistic units, Rumelhart, Hinton & Williams
-//! (Nature, 1986); cross-entropy with softmax, Bridle (1990) and the CS231n
-//! notes (Stanford, "Linear classification"); the stable forms are common
-//! practice (no source).
+//! (common practice, no source, for these stable forms).
 
+use crate::error::{Error, Result};
 use crate::network::{sigmoid, Head, Real};
-use serde::{Deserialize, Serialize};
 
-/// The loss minimised in training.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
-#[serde(rename_all = "snake_case")]
+/// The loss minimised in training, per row, with outputs `a = head(z)` and
+/// targets `y`:
+///
+/// ```text
+/// squared error   E = 1/2 sum_k (y_k - a_k)^2
+/// cross-entropy   logistic head:  E = sum_k -[y_k ln a_k + (1 - y_k) ln(1 - a_k)]
+///                 softmax head:   E = -sum_k y_k ln a_k
+/// ```
+/// Squared error carries the factor 1/2 (so its gradient is `a - y`):
+/// every loss stratanet reports for squared error, in training reports,
+/// charts and model files, is this half squared error, averaged over rows.
+/// Sources: squared error with logistic units, Rumelhart, Hinton & Williams,
+/// "Learning representations by back-propagating errors", Nature 1986;
+/// cross-entropy with softmax, Bridle, "Probabilistic interpretation of
+/// feedforward classification network outputs", 1990. The error signal at
+/// the output, `delta = dE/dz`, is `a - y` for cross-entropy with its
+/// matching head and for squared error with the identity head.
+///
+/// Text form: `squared_error`, `cross_entropy`.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Loss {
     /// Half the summed squared error (the classic backpropagation setup).
     SquaredError,
@@ -53,7 +56,28 @@ impl Loss {
             Head::Logistic | Head::Softmax => Loss::CrossEntropy,
         }
     }
+
+    /// Checks that the loss fits the head: cross-entropy needs outputs that
+    /// are probabilities.
+    ///
+    /// # Errors
+    /// Cross-entropy with the identity head.
+    pub fn check_head(self, head: Head) -> Result<()> {
+        if self == Loss::CrossEntropy && head == Head::Identity {
+            return Err(Error::option(
+                "loss",
+                self,
+                "needs a logistic or softmax head; use squared_error for the identity head",
+            ));
+        }
+        Ok(())
+    }
 }
+
+crate::error::text_forms!(Loss, "loss", {
+    Loss::SquaredError => "squared_error",
+    Loss::CrossEntropy => "cross_entropy",
+});
 
 /// For one row: turns output sums `z` into outputs (in place), writes
 /// `delta = scale * dE/dz` and returns the row's loss `E`.
@@ -146,10 +170,12 @@ pub(crate) fn row_loss_delta<F: Real>(
 mod tests {
     use super::*;
 
-    // CS231n course notes, "Linear classification" (Stanford): scores
-    // [-2.85, 0.86, 0.28], true class 2: loss 1.04019057 (printed 1.04),
-    // p = [0.01544932, 0.63116335, 0.35338733], dL/dz = p - y =
-    // [0.01544932, 0.63116335, -0.64661267].
+    // An illustration recomputed from the definitions (softmax and
+    // cross-entropy as in Bridle 1990; dE/dz = p - y): scores
+    // [-2.85, 0.86, 0.28], true class 2: loss 1.04019057,
+    // p = [0.01544932, 0.63116335, 0.35338733], dE/dz = p - y =
+    // [0.01544932, 0.63116335, -0.64661267] (values recomputed in double
+    // precision from the definitions).
     #[test]
     fn softmax_cross_entropy_reference() {
         let mut z = [-2.85f64, 0.86, 0.28];

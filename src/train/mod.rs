@@ -1,17 +1,12 @@
 //! Training by backpropagation and stochastic gradient descent.
 //!
 //! [`train`] runs mini-batch descent on one network with the options in
-//! [`TrainingOptions`]: online updates (batch 1), mini-batches or full batch;
-//! plain, momentum, Nesterov or Adam updates; a learning-rate schedule; L2
-//! and L1 penalties; shuffling every epoch; and early stopping on validation
-//! rows with the best weights restored. The per-epoch history goes into a
-//! [`TrainingReport`].
-//!
-//! **Reported losses.** `training_loss` of an epoch is the mean of the
-//! per-row losses computed during that epoch's forward passes, each before
-//! its batch's update (the running mean; it costs no extra pass).
-//! `validation_loss` is the mean loss over the validation rows after the
-//! epoch. Neither includes the penalty terms.
+//! [`TrainingOptions`]: online updates (batch 1), mini-batches or full batch
+//! ([`BatchSize`]); plain, momentum, Nesterov or Adam updates
+//! ([`Optimiser`]); a learning-rate [`Schedule`]; L2 and L1 penalties;
+//! shuffling every epoch; and [`EarlyStopping`] on validation rows with the
+//! best weights restored. The per-epoch history goes into a
+//! [`TrainingReport`]; the losses are in [`Loss`].
 
 mod engine;
 mod gradcheck;
@@ -20,21 +15,21 @@ mod options;
 
 pub use gradcheck::{check_gradients, GradientCheck};
 pub use loss::Loss;
-pub use options::{EarlyStopping, Optimiser, Schedule, TrainingOptions};
+pub use options::{BatchSize, EarlyStopping, Optimiser, Schedule, TrainingOptions};
 
 use crate::data::{Dataset, Target};
 use crate::error::{Error, ErrorKind, Result};
 use crate::network::{Arithmetic, Forward, Head, Network, Params, Precision, Real, EVAL_CHUNK};
+use crate::observe::Event;
 use crate::rng;
 use engine::{evaluate, Backprop};
 use ndarray::{Array2, ArrayView2};
 
 use rand::RngCore;
-use serde::{Deserialize, Serialize};
 use std::time::Instant;
 
 /// One epoch of the training history.
-#[derive(Clone, Debug, Serialize, Deserialize)]
+#[derive(Clone, Debug)]
 pub struct EpochRecord {
     /// The epoch, from 1.
     pub epoch: usize,
@@ -63,7 +58,7 @@ impl PartialEq for EpochRecord {
 }
 
 /// What happened in training.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq)]
 pub struct TrainingReport {
     /// One record per epoch run.
     pub history: Vec<EpochRecord>,
@@ -72,12 +67,16 @@ pub struct TrainingReport {
     /// The epoch whose weights were kept (the best validation loss with early
     /// stopping or validation rows; otherwise the last epoch).
     pub best_epoch: usize,
-    /// The best validation loss, when there were validation rows.
+    /// The validation loss of the weights kept (the best epoch's with
+    /// early stopping, the last epoch's without), when there were
+    /// validation rows.
     pub best_validation_loss: Option<f64>,
     /// Whether early stopping ended training before the last epoch.
     pub stopped_early: bool,
     /// The loss that was minimised.
     pub loss: Loss,
+    /// The last epoch's training loss.
+    pub final_training_loss: f64,
 }
 
 impl TrainingReport {
@@ -93,11 +92,6 @@ impl TrainingReport {
             .filter_map(|e| e.validation_loss)
             .collect()
     }
-
-    /// The last epoch's training loss.
-    pub fn final_training_loss(&self) -> f64 {
-        self.history.last().map_or(f64::NAN, |e| e.training_loss)
-    }
 }
 
 /// Encodes a target for a network head: one-hot rows for softmax, a 0/1
@@ -107,7 +101,7 @@ impl TrainingReport {
 /// # Errors
 /// When the head and target do not fit (e.g. softmax with the wrong number
 /// of outputs, or a logistic output for more than two classes).
-pub fn encode_target(target: &Target, head: Head, outputs: usize) -> Result<Array2<f64>> {
+pub(crate) fn encode_target(target: &Target, head: Head, outputs: usize) -> Result<Array2<f64>> {
     match target {
         Target::Classes { labels, names } => {
             let k = names.len();
@@ -149,6 +143,20 @@ pub fn encode_target(target: &Target, head: Head, outputs: usize) -> Result<Arra
 /// Trains `network` on `data` (features already scaled as wanted), stopping
 /// early on `validation` when the options ask for it.
 ///
+/// Each update computes the gradient of the mini-batch objective (see
+/// [`TrainingOptions`]) by backpropagation (Rumelhart, Hinton & Williams,
+/// "Learning representations by back-propagating errors", Nature 1986), for
+/// a batch of `m` rows held as matrices, `a_0` the inputs:
+///
+/// ```text
+/// forward    z_l = a_{l-1} W_l + b_l,   a_l = f_l(z_l)
+/// output     delta_L = dE/dz_L          (a - y for a loss with its matching head; see Loss)
+/// weights    dJ/dW_l = (1/m) a_{l-1}^T delta_l,   dJ/db_l = (1/m) column sums of delta_l
+/// backward   delta_{l-1} = (delta_l W_l^T) * f'(a_{l-1})      (element-wise product)
+/// ```
+/// then applies the [`Optimiser`]'s rule with the [`Schedule`]'s rate. Rows
+/// are shuffled every epoch (Fisher-Yates from `rng`) when the options ask.
+///
 /// # Errors
 /// Invalid options, mismatched shapes, or divergence (a non-finite loss).
 ///
@@ -162,11 +170,11 @@ pub fn encode_target(target: &Target, head: Head, outputs: usize) -> Result<Arra
 /// let data = Dataset::classification(x, vec![0, 1, 1, 1], vec!["no".into(), "yes".into()])?;
 /// let mut rng = seeded_rng(3);
 /// let mut net = Network::new(&[2, 1], Activation::Identity, Head::Logistic, Init::Auto, &mut rng)?;
-/// let options = TrainingOptions { epochs: 2000, batch_size: 4, learning_rate: 0.5,
+/// let options = TrainingOptions { epochs: 2000, batch_size: Some(stratanet::train::BatchSize::Rows(4)), learning_rate: 0.5,
 ///     optimiser: Optimiser::Sgd, early_stopping: None, ..Default::default() };
 /// let report = train(&mut net, &data, None, &options, &mut rng)?;
 /// assert_eq!(net.predict_classes(data.x())?, vec![0, 1, 1, 1]); // a single unit fits OR
-/// assert!(report.final_training_loss() < 0.1);
+/// assert!(report.final_training_loss < 0.1);
 /// # Ok::<(), stratanet::Error>(())
 /// ```
 pub fn train<R: RngCore + ?Sized>(
@@ -174,6 +182,28 @@ pub fn train<R: RngCore + ?Sized>(
     data: &Dataset,
     validation: Option<&Dataset>,
     options: &TrainingOptions,
+    rng: &mut R,
+) -> Result<TrainingReport> {
+    options.validate()?;
+    train_checked(network, data, validation, options, Scope::default(), rng)
+}
+
+/// Where a network trains, for its progress events.
+#[derive(Clone, Copy, Debug, Default)]
+pub(crate) struct Scope {
+    /// The cross-validation fold, if any.
+    pub fold: Option<usize>,
+    /// The restart.
+    pub restart: usize,
+}
+
+/// [`train`] with options already validated.
+pub(crate) fn train_checked<R: RngCore + ?Sized>(
+    network: &mut Network,
+    data: &Dataset,
+    validation: Option<&Dataset>,
+    options: &TrainingOptions,
+    scope: Scope,
     rng: &mut R,
 ) -> Result<TrainingReport> {
     let y = encode_target(&data.target, network.head(), network.n_outputs())?;
@@ -193,12 +223,14 @@ pub fn train<R: RngCore + ?Sized>(
         val_ref,
         classify,
         options,
+        scope,
         rng,
     )
 }
 
 /// Trains on plain arrays: `x` rows of inputs and `y` rows of targets in the
-/// network's output encoding (see [`encode_target`]).
+/// network's output encoding: one-hot rows for softmax, a 0/1 column for a
+/// single logistic output, the values themselves for regression.
 ///
 /// # Errors
 /// As [`train`].
@@ -210,10 +242,21 @@ pub fn train_arrays<R: RngCore + ?Sized>(
     options: &TrainingOptions,
     rng: &mut R,
 ) -> Result<TrainingReport> {
+    options.validate()?;
     let classify = network.head() != Head::Identity;
-    train_arrays_inner(network, x, y, validation, classify, options, rng)
+    train_arrays_inner(
+        network,
+        x,
+        y,
+        validation,
+        classify,
+        options,
+        Scope::default(),
+        rng,
+    )
 }
 
+#[allow(clippy::too_many_arguments)]
 fn train_arrays_inner<R: RngCore + ?Sized>(
     network: &mut Network,
     x: ArrayView2<'_, f64>,
@@ -221,25 +264,44 @@ fn train_arrays_inner<R: RngCore + ?Sized>(
     validation: Option<(ArrayView2<'_, f64>, ArrayView2<'_, f64>)>,
     classify: bool,
     options: &TrainingOptions,
+    scope: Scope,
     rng: &mut R,
 ) -> Result<TrainingReport> {
-    options.validate(x.nrows(), validation.is_some())?;
-    let loss = options.loss_for(network.head());
-    if loss == Loss::CrossEntropy && network.head() == Head::Identity {
+    let loss = options.loss_for(network.head())?;
+    let batch = options.batch_rows(x.nrows())?;
+    if options.early_stopping.is_some() && validation.is_none() {
         return Err(Error::option(
-            "loss",
-            "cross_entropy",
-            "needs a logistic or softmax head; use squared_error for the identity head",
+            "early_stopping",
+            "on",
+            format!(
+                "needs validation rows; give some (in fit: {} above 0) or turn early stopping off",
+                crate::error::opt("validation_share")
+            ),
         ));
     }
     check_xy(network, x, y, "training")?;
     if let Some((vx, vy)) = validation {
         check_xy(network, vx, vy, "validation")?;
     }
+    let run = Run {
+        classify,
+        loss,
+        batch,
+        scope,
+    };
     match network.precision() {
-        Precision::F64 => run::<f64, R>(network, x, y, validation, classify, options, loss, rng),
-        Precision::F32 => run::<f32, R>(network, x, y, validation, classify, options, loss, rng),
+        Precision::F64 => run_in::<f64, R>(network, x, y, validation, options, run, rng),
+        Precision::F32 => run_in::<f32, R>(network, x, y, validation, options, run, rng),
     }
+}
+
+/// What a run settled before it starts.
+#[derive(Clone, Copy)]
+struct Run {
+    classify: bool,
+    loss: Loss,
+    batch: usize,
+    scope: Scope,
 }
 
 fn check_xy(
@@ -301,17 +363,21 @@ struct State<F: Real> {
     updates: i32,
 }
 
-#[allow(clippy::too_many_arguments)]
-fn run<F: Real, R: RngCore + ?Sized>(
+fn run_in<F: Real, R: RngCore + ?Sized>(
     network: &mut Network,
     x: ArrayView2<'_, f64>,
     y: ArrayView2<'_, f64>,
     validation: Option<(ArrayView2<'_, f64>, ArrayView2<'_, f64>)>,
-    classify: bool,
     options: &TrainingOptions,
-    loss: Loss,
+    run: Run,
     rng: &mut R,
 ) -> Result<TrainingReport> {
+    let Run {
+        classify,
+        loss,
+        batch,
+        scope,
+    } = run;
     let start = Instant::now();
     let (activation, head) = (network.activation(), network.head());
     let mut params = Params::<F>::from_network(network);
@@ -320,7 +386,6 @@ fn run<F: Real, R: RngCore + ?Sized>(
     let val = validation.map(|(vx, vy)| (to_real::<F>(vx), to_real::<F>(vy)));
     let n = x.nrows();
     let network_outputs = y.ncols();
-    let batch = options.batch_size;
     let arithmetic = options.arithmetic;
     let mut bp = Backprop::new(&params, batch, arithmetic);
     let mut eval_ws =
@@ -391,17 +456,14 @@ fn run<F: Real, R: RngCore + ?Sized>(
             learning_rate: rate,
             elapsed_seconds: start.elapsed().as_secs_f64(),
         });
-        if options.progress_every > 0 && (epoch + 1) % options.progress_every == 0 {
-            let mut line = format!(
-                "epoch {}/{}: training loss {training_loss:.6}",
-                epoch + 1,
-                options.epochs
-            );
-            if let Some(v) = validation_loss {
-                line.push_str(&format!(", validation loss {v:.6}"));
-            }
-            eprintln!("{line}");
-        }
+        options.observer.notify(|| Event::Epoch {
+            fold: scope.fold,
+            restart: scope.restart,
+            epoch: epoch + 1,
+            epochs: options.epochs,
+            training_loss,
+            validation_loss,
+        });
         if let Some(v) = validation_loss {
             let min_improvement = options.early_stopping.map_or(0.0, |e| e.min_improvement);
             let improved = match &best {
@@ -435,14 +497,13 @@ fn run<F: Real, R: RngCore + ?Sized>(
             params.data = w;
             (e, Some(v))
         }
-        Some((v, e, _)) => {
-            // Validation rows without early stopping: report, keep the last weights.
-            let _ = e;
-            (epochs_run, Some(v))
-        }
+        // Validation rows without early stopping: the last weights are
+        // kept, so the loss reported is theirs.
+        Some(_) => (epochs_run, history.last().and_then(|e| e.validation_loss)),
         None => (epochs_run, None),
     };
     params.write_to_network(network);
+    let final_training_loss = history.last().map_or(f64::NAN, |e| e.training_loss);
     Ok(TrainingReport {
         history,
         epochs_run,
@@ -450,6 +511,7 @@ fn run<F: Real, R: RngCore + ?Sized>(
         best_validation_loss,
         stopped_early,
         loss,
+        final_training_loss,
     })
 }
 
@@ -571,13 +633,7 @@ pub fn mean_loss(
     loss: Loss,
 ) -> Result<f64> {
     check_xy(network, x, y, "loss")?;
-    if loss == Loss::CrossEntropy && network.head() == Head::Identity {
-        return Err(Error::option(
-            "loss",
-            "cross_entropy",
-            "needs a logistic or softmax head",
-        ));
-    }
+    loss.check_head(network.head())?;
     Ok(match network.precision() {
         Precision::F64 => mean_loss_in::<f64>(network, x, y, loss),
         Precision::F32 => mean_loss_in::<f32>(network, x, y, loss),

@@ -1,18 +1,17 @@
 //! Comparing two configurations on the same folds, and two fitted models on
 //! one shared test set.
 
-use super::cv::{cross_validate_with_plan, CrossValidation, CvOptions, FoldPlan};
+use super::cv::{run_plan, CrossValidation, CvOptions, FoldPlan};
 use super::metrics::Metric;
 use super::stats::{corrected_resampled_t_test, mcnemar_test, McNemar, ResampledTTest};
 use crate::data::Dataset;
 use crate::error::{Error, Result};
 use crate::fit::{FitOptions, Model};
 use rand::RngCore;
-use serde::{Deserialize, Serialize};
 
 /// Two configurations cross-validated on the same folds with the same fold
 /// seeds, and the corrected resampled t-test on their per-fold differences.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq)]
 pub struct Comparison {
     /// The metric compared.
     pub metric: Metric,
@@ -40,9 +39,12 @@ pub fn compare_configurations<R: RngCore + ?Sized>(
     metric: Metric,
     rng: &mut R,
 ) -> Result<Comparison> {
-    let plan = FoldPlan::draw(data, cv, rng)?;
-    let ra = cross_validate_with_plan(data, a, cv, &plan)?;
-    let rb = cross_validate_with_plan(data, b, cv, &plan)?;
+    a.validate().map_err(|e| e.context("configuration A"))?;
+    b.validate().map_err(|e| e.context("configuration B"))?;
+    cv.validate()?;
+    let plan = FoldPlan::draw_checked(data, cv, rng)?;
+    let ra = run_plan(data, a, cv, &plan)?;
+    let rb = run_plan(data, b, cv, &plan)?;
     let va = &ra.metric(metric)?.values;
     let vb = &rb.metric(metric)?.values;
     let differences: Vec<f64> = va.iter().zip(vb).map(|(x, y)| x - y).collect();

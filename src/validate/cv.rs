@@ -24,16 +24,16 @@ use super::stats::Summary;
 use crate::data::{kfold, repeated_stratified_folds, Dataset, Fold, Target};
 use crate::error::{Error, Result};
 use crate::fit::{FitOptions, Model};
+use crate::observe::{Event, Observer};
 use crate::rng;
 use crate::train::TrainingReport;
-use ndarray::Array2;
+use ndarray::{Array2, ArrayView2};
 use rand::RngCore;
 use rayon::prelude::*;
-use serde::{Deserialize, Serialize};
+use std::sync::atomic::{AtomicUsize, Ordering};
 
 /// How to cross-validate.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-#[serde(default)]
+#[derive(Clone, Debug, PartialEq)]
 pub struct CvOptions {
     /// Folds per repeat, `k` (>= 2).
     pub folds: usize,
@@ -41,8 +41,6 @@ pub struct CvOptions {
     pub repeats: usize,
     /// Run folds in parallel (the numbers are the same either way).
     pub parallel: bool,
-    /// Print one line per finished fold on stderr.
-    pub progress: bool,
 }
 
 /// The most fits one cross-validation may ask for (folds x repeats).
@@ -81,14 +79,12 @@ impl Default for CvOptions {
             folds: 5,
             repeats: 1,
             parallel: true,
-            progress: false,
         }
     }
 }
 
 /// Scores of one set of predictions.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-#[serde(rename_all = "snake_case")]
+#[derive(Clone, Debug, PartialEq)]
 pub enum Scores {
     /// A classifier's metrics.
     Classification(ClassificationMetrics),
@@ -103,19 +99,29 @@ impl Scores {
     /// When the table's features or target do not fit the model.
     pub fn of(model: &Model, data: &Dataset) -> Result<(Scores, Array2<f64>)> {
         model.check_features(data)?;
-        match &data.target {
-            Target::Classes { labels, names } => {
-                let p = model.predict_probabilities(data.x())?;
-                let m = ClassificationMetrics::from_probabilities(labels, p.view())?
-                    .with_class_names(names)?;
-                Ok((Scores::Classification(m), p))
-            }
+        let predictions = match &data.target {
+            Target::Classes { .. } => model.predict_probabilities(data.x())?,
+            Target::Values { .. } => model.predict(data.x())?,
+        };
+        let scores = Scores::from_predictions(&data.target, predictions.view())?;
+        Ok((scores, predictions))
+    }
+
+    /// Scores predictions against a target: class probabilities (one column
+    /// per class) for classes, values for numbers.
+    ///
+    /// # Errors
+    /// Shapes that disagree, probabilities that are not a distribution.
+    pub fn from_predictions(target: &Target, predictions: ArrayView2<'_, f64>) -> Result<Scores> {
+        Ok(match target {
+            Target::Classes { labels, names } => Scores::Classification(
+                ClassificationMetrics::from_probabilities(labels, predictions)?
+                    .with_class_names(names)?,
+            ),
             Target::Values { values, .. } => {
-                let out = model.predict(data.x())?;
-                let m = RegressionMetrics::from_arrays(values.view(), out.view())?;
-                Ok((Scores::Regression(m), out))
+                Scores::Regression(RegressionMetrics::from_arrays(values.view(), predictions)?)
             }
-        }
+        })
     }
 
     /// The value of one metric (undefined values are 0 and carry a note).
@@ -155,7 +161,7 @@ impl Scores {
 }
 
 /// One fold's outcome.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq)]
 pub struct FoldResult {
     /// The fold's index in the plan (from 0; repeat r's folds follow repeat r-1's).
     pub index: usize,
@@ -174,7 +180,7 @@ pub struct FoldResult {
 }
 
 /// One metric summarised over folds.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq)]
 pub struct MetricSummary {
     /// The metric.
     pub metric: Metric,
@@ -185,7 +191,7 @@ pub struct MetricSummary {
 }
 
 /// The outcome of [`cross_validate`].
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq)]
 pub struct CrossValidation {
     /// What was validated.
     pub options: FitOptions,
@@ -254,7 +260,7 @@ impl CrossValidation {
 }
 
 /// A fold plan and the seed of each fold, drawn from one generator.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq)]
 pub struct FoldPlan {
     /// The folds.
     pub folds: Vec<Fold>,
@@ -273,6 +279,15 @@ impl FoldPlan {
         rng: &mut R,
     ) -> Result<FoldPlan> {
         cv.validate()?;
+        FoldPlan::draw_checked(data, cv, rng)
+    }
+
+    /// [`FoldPlan::draw`] with the counts already validated.
+    pub(crate) fn draw_checked<R: RngCore + ?Sized>(
+        data: &Dataset,
+        cv: &CvOptions,
+        rng: &mut R,
+    ) -> Result<FoldPlan> {
         let folds = match data.labels() {
             Some(labels) => repeated_stratified_folds(labels, cv.folds, cv.repeats, rng)?,
             None => {
@@ -365,8 +380,20 @@ pub fn cross_validate<R: RngCore + ?Sized>(
     cv: &CvOptions,
     rng: &mut R,
 ) -> Result<CrossValidation> {
-    let plan = FoldPlan::draw(data, cv, rng)?;
-    cross_validate_with_plan(data, options, cv, &plan)
+    options.validate()?;
+    cv.validate()?;
+    cross_validate_checked(data, options, cv, rng)
+}
+
+/// [`cross_validate`] with options already validated.
+pub(crate) fn cross_validate_checked<R: RngCore + ?Sized>(
+    data: &Dataset,
+    options: &FitOptions,
+    cv: &CvOptions,
+    rng: &mut R,
+) -> Result<CrossValidation> {
+    let plan = FoldPlan::draw_checked(data, cv, rng)?;
+    run_plan(data, options, cv, &plan)
 }
 
 /// Cross-validates on a given plan (the same plan for several configurations
@@ -381,8 +408,24 @@ pub fn cross_validate_with_plan(
     plan: &FoldPlan,
 ) -> Result<CrossValidation> {
     options.validate()?;
+    cv.validate()?;
     plan.check(data.n_rows())?;
-    let run = |k: usize| -> Result<FoldResult> { run_fold(data, options, plan, k, cv.progress) };
+    run_plan(data, options, cv, plan)
+}
+
+/// Runs every fold of a plan already checked against `data`.
+pub(crate) fn run_plan(
+    data: &Dataset,
+    options: &FitOptions,
+    cv: &CvOptions,
+    plan: &FoldPlan,
+) -> Result<CrossValidation> {
+    let progress = FoldProgress::new(&options.training.observer, plan.folds.len());
+    let run = |k: usize| -> Result<FoldResult> {
+        let result = run_fold(data, options, plan, k)?;
+        progress.fold_finished(k);
+        Ok(result)
+    };
     let results: Vec<Result<FoldResult>> = if cv.parallel {
         (0..plan.folds.len()).into_par_iter().map(run).collect()
     } else {
@@ -391,7 +434,7 @@ pub fn cross_validate_with_plan(
     let folds: Vec<FoldResult> = results.into_iter().collect::<Result<_>>()?;
     let summary = summarise_folds(&folds)?;
     Ok(CrossValidation {
-        options: options.clone(),
+        options: options.without_observer(),
         cv: cv.clone(),
         n_rows: data.n_rows(),
         class_names: data
@@ -403,12 +446,38 @@ pub fn cross_validate_with_plan(
     })
 }
 
+/// Counts finished folds for [`Event::FoldFinished`].
+struct FoldProgress<'a> {
+    observer: &'a Observer,
+    folds: usize,
+    finished: AtomicUsize,
+}
+
+impl<'a> FoldProgress<'a> {
+    fn new(observer: &'a Observer, folds: usize) -> FoldProgress<'a> {
+        FoldProgress {
+            observer,
+            folds,
+            finished: AtomicUsize::new(0),
+        }
+    }
+
+    fn fold_finished(&self, fold: usize) {
+        let finished = self.finished.fetch_add(1, Ordering::Relaxed) + 1;
+        self.observer.notify(|| Event::FoldFinished {
+            fold,
+            folds: self.folds,
+            finished,
+        });
+    }
+}
+
+/// Fits and scores fold `k` of `plan` (options already validated).
 pub(crate) fn run_fold(
     data: &Dataset,
     options: &FitOptions,
     plan: &FoldPlan,
     k: usize,
-    progress: bool,
 ) -> Result<FoldResult> {
     let fold = &plan.folds[k];
     let train = data.select(&fold.train);
@@ -426,12 +495,14 @@ pub(crate) fn run_fold(
             ));
         }
     }
-    let fitted = crate::fit::fit_owned(train, options, plan.seeds[k])
-        .map_err(|e| Error::input(format!("cross-validation fold {}", k + 1), e.to_string()))?;
-    let (scores, predictions) = Scores::of(&fitted.model, &test)?;
-    if progress {
-        eprintln!("fold {}/{} done", k + 1, plan.folds.len());
-    }
+    let fitted = crate::fit::fit_checked(
+        std::borrow::Cow::Owned(train),
+        options,
+        plan.seeds[k],
+        Some(k),
+    )
+    .map_err(|e| e.context(format!("cross-validation fold {}", k + 1)))?;
+    let (scores, predictions) = Scores::of(fitted.model(), &test)?;
     Ok(FoldResult {
         index: k,
         seed: plan.seeds[k],
@@ -439,7 +510,7 @@ pub(crate) fn run_fold(
         test_rows: fold.test.clone(),
         scores,
         predictions,
-        report: fitted.report,
+        report: fitted.report().clone(),
     })
 }
 

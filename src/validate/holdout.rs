@@ -13,7 +13,6 @@ use crate::data::{random_split, stratified_split, Dataset};
 use crate::error::Result;
 use crate::fit::Model;
 use rand::RngCore;
-use serde::{Deserialize, Serialize};
 use std::sync::atomic::{AtomicUsize, Ordering};
 
 /// A held-out test set.
@@ -25,7 +24,7 @@ pub struct HoldOut {
 }
 
 /// A score on the held-out set, with how many times the set had been scored.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq)]
 pub struct HoldOutScore {
     /// The scores.
     pub scores: Scores,

@@ -50,7 +50,7 @@
 //! ];
 //! let summary = ClassificationMetrics::from_probabilities(&truth, probabilities.view())?;
 //! assert_eq!(summary.accuracy, 0.8);
-//! assert_eq!(summary.metric("macro_f1")?.value, summary.macro_f1);
+//! assert_eq!(summary.value(stratanet::validate::Metric::MacroF1)?.value, summary.macro_f1);
 //!
 //! let confusion = ConfusionMatrix::from_labels(&truth, &[0, 1, 1, 1, 2], 3)?;
 //! assert_eq!(confusion.counts()[0], vec![1, 1, 0]);
@@ -62,7 +62,6 @@ use std::fmt;
 use std::str::FromStr;
 
 use ndarray::ArrayView2;
-use serde::{Deserialize, Serialize};
 
 use crate::error::{Error, Result};
 
@@ -89,7 +88,7 @@ const ROW_SUM_TOLERANCE: f64 = 1e-6;
 
 // Log-loss clips probabilities to [EPSILON, 1 - EPSILON] so that one
 // confident mistake costs -ln(1e-15) = 34.5 rather than infinity
-// (common practice, no source; scikit-learn used the same 1e-15).
+// (common practice, no source).
 const LOG_LOSS_EPSILON: f64 = 1e-15;
 
 /// A metric's value, or the conventional 0 with the reason it is undefined.
@@ -98,7 +97,7 @@ const LOG_LOSS_EPSILON: f64 = 1e-15;
 /// defined:    Score { value, undefined: None }
 /// undefined:  Score { value: 0.0, undefined: Some("why, and that 0 was used") }
 /// ```
-#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Score {
     /// The value; 0 when undefined.
     pub value: f64,
@@ -262,8 +261,7 @@ fn check_binary_ranking(what: &str, scores: &[f64], labels: &[bool]) -> Result<(
 /// has at least 2 classes and at least one sample; the constructors check this.
 ///
 /// It serialises as the nested list of counts.
-#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
-#[serde(try_from = "Vec<Vec<u64>>", into = "Vec<Vec<u64>>")]
+#[derive(Debug, Clone, PartialEq, Eq)]
 pub struct ConfusionMatrix {
     counts: Vec<Vec<u64>>,
 }
@@ -475,8 +473,7 @@ impl ConfusionMatrix {
     /// macro_f1 = (1 / |K|) sum_{k in K} F1_k,   K = { k : support_k + predicted_k > 0 }
     /// ```
     ///
-    /// Common practice, no source (scikit-learn's `average="macro"` with its
-    /// default label set). This is the mean of per-class F1, not the F1 of
+    /// Common practice, no source. This is the mean of per-class F1, not the F1 of
     /// macro-averaged precision and recall; the two differ (J. Opitz & S. Burst,
     /// "Macro F1 and Macro F1", 2019, arXiv:1911.03347).
     pub fn macro_f1(&self) -> f64 {
@@ -495,7 +492,7 @@ impl ConfusionMatrix {
     /// weighted_f1 = sum_k support_k F1_k / total
     /// ```
     ///
-    /// Common practice, no source (scikit-learn's `average="weighted"`).
+    /// Common practice, no source.
     pub fn weighted_f1(&self) -> f64 {
         let total = self.total() as f64;
         self.per_class()
@@ -621,7 +618,7 @@ impl From<ConfusionMatrix> for Vec<Vec<u64>> {
 }
 
 /// The four counts of a two-class (positive against negative) confusion table.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub struct BinaryCounts {
     /// Positive samples predicted positive.
     pub true_positives: u64,
@@ -752,8 +749,8 @@ pub fn most_probable_classes(probabilities: ArrayView2<f64>) -> Vec<usize> {
 ///
 /// The natural logarithm is used. Clipping bounds the cost of one confident
 /// mistake at -ln(1e-15) = 34.54 instead of infinity; the other columns are
-/// not renormalised. Common practice, no source (the clipping bound is
-/// scikit-learn's former default). Also called cross-entropy loss.
+/// not renormalised. Common practice, no source, for the clipping bound.
+/// Also called cross-entropy loss.
 ///
 /// # Errors
 /// If the rows do not match the labels, are empty, have fewer than 2 columns,
@@ -951,9 +948,8 @@ pub struct OneVsRestAuc {
 /// construction with the class AUCs weighted by prevalence (after F. Provost
 /// & P. Domingos, "Well-trained PETs: improving probability estimation
 /// trees", NYU CeDER working paper IS-00-04, 2000). This function takes the
-/// unweighted mean instead, as scikit-learn's `multi_class="ovr",
-/// average="macro"` (common practice), so that rare classes count as much as
-/// common ones.
+/// unweighted mean instead (common practice, no source), so that rare
+/// classes count as much as common ones.
 ///
 /// # Errors
 /// As [`log_loss`] for the probabilities.
@@ -1019,8 +1015,8 @@ pub struct PrecisionRecallCurve {
 /// in recall is weighted by the precision reached with it. With no ties it is
 /// the mean of the precision at each positive's rank (Manning, Raghavan &
 /// Schütze, "Introduction to Information Retrieval", 2008, ch. 8.4, "average
-/// precision"); grouping ties this way is common practice (scikit-learn's
-/// `average_precision_score`). No point is added at recall 0.
+/// precision"); grouping tied scores into one step is common practice, no
+/// source. No point is added at recall 0.
 ///
 /// # Errors
 /// If the slices differ in length or are empty, a score is not finite, or there
@@ -1185,8 +1181,7 @@ fn r_squared_unchecked(truth: &[f64], predicted: &[f64]) -> Score {
 /// | `root_mean_squared_error` (`rmse`) | regression | lower |
 /// | `mean_absolute_error` (`mae`) | regression | lower |
 /// | `r_squared` (`r2`) | regression | higher |
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize, Deserialize)]
-#[serde(rename_all = "snake_case")]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
 pub enum Metric {
     /// Fraction of samples classified correctly.
     Accuracy,
@@ -1234,7 +1229,8 @@ impl Metric {
         Metric::RSquared,
     ];
 
-    /// The metric's name, as [`Metric::from_name`] reads it and serde writes it.
+    /// The metric's name, as its `FromStr` reads it and
+    /// [`Display`](std::fmt::Display) writes it.
     pub fn name(self) -> &'static str {
         match self {
             Metric::Accuracy => "accuracy",
@@ -1254,12 +1250,10 @@ impl Metric {
     }
 
     /// Reads a metric name: one of the names in the table above, or the
-    /// short forms `mse`, `rmse`, `mae`, `r2`. Case and surrounding spaces are
-    /// ignored, and `-` may stand for `_`.
-    ///
-    /// # Errors
-    /// For an unknown name; the message lists the valid names.
-    pub fn from_name(name: &str) -> Result<Metric> {
+    /// short forms `mse`, `rmse`, `mae`, `r2`. Case and surrounding spaces
+    /// are ignored, and `-` may stand for `_`; an unknown name is refused
+    /// with the list of valid names.
+    fn from_name(name: &str) -> Result<Metric> {
         let wanted = name.trim().to_ascii_lowercase().replace('-', "_");
         let alias = match wanted.as_str() {
             "mse" => Some(Metric::MeanSquaredError),
@@ -1270,16 +1264,7 @@ impl Metric {
         };
         alias
             .or_else(|| Metric::ALL.into_iter().find(|m| m.name() == wanted))
-            .ok_or_else(|| {
-                Error::option(
-                    "metric",
-                    format!("\"{name}\""),
-                    format!(
-                        "unknown metric; valid names are: {}",
-                        Metric::list(&Metric::ALL)
-                    ),
-                )
-            })
+            .ok_or_else(|| Error::choice("metric", name, &Metric::list(&Metric::ALL)))
     }
 
     fn list(metrics: &[Metric]) -> String {
@@ -1352,7 +1337,7 @@ impl FromStr for Metric {
 // Summaries.
 
 /// Why a value in a summary is undefined (and was set to 0).
-#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Eq)]
 pub struct Note {
     /// The metric: a [`Metric`] name, or `precision`, `recall`, `f1` for per-class values.
     pub metric: String,
@@ -1382,7 +1367,7 @@ impl fmt::Display for Note {
 }
 
 /// Precision, recall, F1 and support of one class, for a summary.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq)]
 pub struct ClassReport {
     /// The class's name (its index as text unless names were given).
     pub name: String,
@@ -1400,7 +1385,7 @@ pub struct ClassReport {
 ///
 /// Undefined values are 0 and listed in `notes`. `log_loss`, `brier` and `auc`
 /// are `None` when only predicted labels were given.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq)]
 pub struct ClassificationMetrics {
     /// The number of samples.
     pub n_samples: usize,
@@ -1597,18 +1582,10 @@ impl ClassificationMetrics {
             });
         Ok(Score { value, undefined })
     }
-
-    /// The value of a metric given by name (see [`Metric::from_name`]).
-    ///
-    /// # Errors
-    /// For an unknown name (listing the valid ones), and as [`ClassificationMetrics::value`].
-    pub fn metric(&self, name: &str) -> Result<Score> {
-        self.value(Metric::from_name(name)?)
-    }
 }
 
 /// Regression errors of one output (one target column).
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq)]
 pub struct OutputReport {
     /// See [`mean_squared_error`].
     pub mean_squared_error: f64,
@@ -1625,9 +1602,8 @@ pub struct OutputReport {
 /// With several outputs (target columns), each headline number is the
 /// unweighted mean of the per-output values; R^2 averages over the outputs
 /// where it is defined. (So RMSE is the mean of per-output RMSEs, not the root
-/// of the mean MSE; common practice, no source: scikit-learn's
-/// `multioutput="uniform_average"`.)
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+/// of the mean MSE; common practice, no source.)
+#[derive(Debug, Clone, PartialEq)]
 pub struct RegressionMetrics {
     /// The number of samples (rows).
     pub n_samples: usize,
@@ -1746,14 +1722,6 @@ impl RegressionMetrics {
                 .any(|n| n.class.is_none() && n.metric == "r_squared"))
         .then_some(R_SQUARED_CONSTANT);
         Ok(Score { value, undefined })
-    }
-
-    /// The value of a metric given by name (see [`Metric::from_name`]).
-    ///
-    /// # Errors
-    /// For an unknown name (listing the valid ones), and as [`RegressionMetrics::value`].
-    pub fn metric(&self, name: &str) -> Result<Score> {
-        self.value(Metric::from_name(name)?)
     }
 }
 
@@ -2030,8 +1998,9 @@ mod tests {
 
     #[test]
     fn log_loss_and_brier_by_hand() {
-        // CS231n softmax example (REFERENCES.md): p = [0.01544932, 0.63116335, 0.35338733],
-        // true class 2, loss 1.04019057 = -ln(0.35338733).
+        // An illustration recomputed from the definition (log-loss, Good
+        // 1952): p = [0.01544932, 0.63116335, 0.35338733], true class 2,
+        // loss 1.04019057 = -ln(0.35338733).
         let p = array![[0.01544932, 0.63116335, 0.35338733]];
         assert!(close(log_loss(&[2], p.view()).unwrap(), 1.04019057, 1e-7));
         // Brier by hand: 0.01544932^2 + 0.63116335^2 + (1 - 0.35338733)^2.
@@ -2077,19 +2046,19 @@ mod tests {
         // AUC by hand from column 1: positives (truth 1) .7 .8 .4, negatives .1 .6 -> pairs: .7>.1,.7>.6,.8>.1,.8>.6,.4>.1,.4<.6 -> U = 5, AUC 5/6.
         assert!(close(s.auc.unwrap(), 5.0 / 6.0, 1e-15));
         assert_eq!(s.per_class[1].name, "yes");
-        assert_eq!(s.metric("auc").unwrap(), Score::defined(s.auc.unwrap()));
         assert_eq!(
-            s.metric(" Balanced-Accuracy ").unwrap().value,
+            s.value("auc".parse().unwrap()).unwrap(),
+            Score::defined(s.auc.unwrap())
+        );
+        assert_eq!(
+            s.value(" Balanced-Accuracy ".parse().unwrap())
+                .unwrap()
+                .value,
             s.balanced_accuracy
         );
         assert!(s.notes.is_empty());
-        // Serde round trip.
-        let json = serde_json::to_string(&s).unwrap();
-        let back: ClassificationMetrics = serde_json::from_str(&json).unwrap();
-        assert_eq!(back, s);
-        // A malformed confusion matrix is refused on reading.
-        let bad = json.replace("\"confusion\":[[1,1],[1,2]]", "\"confusion\":[[1,1],[1]]");
-        assert!(serde_json::from_str::<ClassificationMetrics>(&bad).is_err());
+        // A malformed confusion matrix is refused.
+        assert!(ConfusionMatrix::from_counts(vec![vec![1, 1], vec![1]]).is_err());
     }
 
     #[test]
@@ -2099,28 +2068,30 @@ mod tests {
         assert!(lines
             .iter()
             .any(|l| l.starts_with("precision of class 1 (\"1\"): class never predicted")));
-        let mcc = s.metric("mcc").unwrap();
+        let mcc = s.value("mcc".parse().unwrap()).unwrap();
         assert_eq!(mcc, Score::undefined(MCC_ZERO_DENOMINATOR));
-        let kappa = s.metric("kappa").unwrap();
+        let kappa = s.value("kappa".parse().unwrap()).unwrap();
         assert_eq!(kappa, Score::undefined(KAPPA_NO_CHANCE_ROOM));
-        let err = s.metric("log_loss").unwrap_err().to_string();
+        let err = s
+            .value("log_loss".parse().unwrap())
+            .unwrap_err()
+            .to_string();
         assert!(err.contains("needs class probabilities"), "{err}");
-        let err = s.metric("rmse").unwrap_err().to_string();
+        let err = s.value("rmse".parse().unwrap()).unwrap_err().to_string();
         assert!(err.contains("is a regression metric"), "{err}");
         // The binary AUC of a one-class truth is flagged, not an error.
         let p = array![[0.9, 0.1], [0.4, 0.6]];
         let s = ClassificationMetrics::from_probabilities(&[0, 0], p.view()).unwrap();
-        assert_eq!(s.metric("auc").unwrap(), Score::undefined(AUC_ONE_CLASS));
+        assert_eq!(
+            s.value("auc".parse().unwrap()).unwrap(),
+            Score::undefined(AUC_ONE_CLASS)
+        );
     }
 
     #[test]
     fn metric_names_round_trip_and_direction() {
         for m in Metric::ALL {
             assert_eq!(Metric::from_name(m.name()).unwrap(), m);
-            assert_eq!(
-                serde_json::to_string(&m).unwrap(),
-                format!("\"{}\"", m.name())
-            );
             assert_eq!(m.to_string().parse::<Metric>().unwrap(), m);
         }
         assert_eq!(
@@ -2133,7 +2104,7 @@ mod tests {
         assert!(Metric::RSquared.is_regression() && Metric::RSquared.higher_is_better());
         let err = Metric::from_name("acuracy").unwrap_err().to_string();
         assert!(
-            err.starts_with("option metric = \"acuracy\": unknown metric; valid names are: accuracy, balanced_accuracy, macro_f1, weighted_f1, log_loss, brier, auc, mcc, kappa, mean_squared_error"),
+            err.starts_with("option metric = acuracy: must be one of accuracy, balanced_accuracy, macro_f1, weighted_f1, log_loss, brier, auc, mcc, kappa, mean_squared_error"),
             "{err}"
         );
         let mut aucs = vec![0.6, 0.9, 0.7];
@@ -2151,9 +2122,9 @@ mod tests {
         assert_eq!(mean_absolute_error(&truth, &predicted).unwrap(), 0.25);
         assert_eq!(r_squared(&truth, &predicted).unwrap(), Score::defined(0.8));
         let s = RegressionMetrics::from_slices(&truth, &predicted).unwrap();
-        assert_eq!(s.metric("r2").unwrap(), Score::defined(0.8));
-        assert_eq!(s.metric("mae").unwrap().value, 0.25);
-        assert!(s.metric("accuracy").is_err());
+        assert_eq!(s.value("r2".parse().unwrap()).unwrap(), Score::defined(0.8));
+        assert_eq!(s.value("mae".parse().unwrap()).unwrap().value, 0.25);
+        assert!(s.value("accuracy".parse().unwrap()).is_err());
         // Constant truth: R^2 flagged.
         assert_eq!(
             r_squared(&[2.0, 2.0], &[2.0, 3.0]).unwrap(),
@@ -2174,10 +2145,7 @@ mod tests {
             s.notes,
             vec![Note::new("r_squared", Some(1), R_SQUARED_CONSTANT)]
         );
-        assert!(s.metric("r_squared").unwrap().is_defined());
-        let back: RegressionMetrics =
-            serde_json::from_str(&serde_json::to_string(&s).unwrap()).unwrap();
-        assert_eq!(back, s);
+        assert!(s.value("r_squared".parse().unwrap()).unwrap().is_defined());
     }
 
     #[test]

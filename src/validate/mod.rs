@@ -17,16 +17,16 @@ pub mod stats;
 
 pub use metrics::{ClassificationMetrics, ConfusionMatrix, Metric, RegressionMetrics, Score};
 pub use stats::{corrected_resampled_t_test, mcnemar_test, McNemar, ResampledTTest, Summary};
-pub mod compare;
-pub mod cv;
-pub mod holdout;
-pub mod sweep;
+mod compare;
+pub(crate) mod cv;
+mod holdout;
+pub(crate) mod sweep;
 pub mod sweep_files;
 
 pub use compare::{compare_configurations, compare_models, Comparison};
 pub use cv::{
     cross_validate, cross_validate_with_plan, CrossValidation, CvOptions, FoldPlan, FoldResult,
-    MetricSummary, Scores,
+    MetricSummary, Scores, MAX_FOLD_FITS,
 };
 pub use holdout::{HoldOut, HoldOutScore};
-pub use sweep::{sweep, Grid, Sweep, SweepPlan, SweepRow, SweepTable, Trial};
+pub use sweep::{sweep, Grid, Sweep, SweepPlan, SweepRow, SweepTable, Trial, MAX_TRIALS};

@@ -1,14 +1,12 @@
 //! Distributions and tests used to compare models.
 //!
-//! - Distribution functions: [`normal_cdf`], [`erfc`], [`student_t_cdf`],
-//!   [`student_t_two_sided_p`], [`student_t_quantile`], [`chi_square_cdf`],
-//!   [`chi_square_upper_tail`] and the exact [`binomial_two_sided_p`].
 //! - [`Summary`]: the mean of per-fold scores with a t interval.
 //! - [`mcnemar_test`]: two classifiers on one test set.
 //! - [`corrected_resampled_t_test`]: two models over the same folds
 //!   (Nadeau & Bengio 2003), beside the naive paired t-test.
 //!
-//! The special functions are written out (no dependency): the regularised
+//! The distribution functions behind them (normal, Student t, chi-square,
+//! exact binomial; crate-internal) are written out (no dependency): the regularised
 //! incomplete beta function by its continued fraction, evaluated with the
 //! modified Lentz method, and the regularised incomplete gamma function by its
 //! series and continued fraction (W. H. Press, S. A. Teukolsky, W. T.
@@ -30,10 +28,7 @@
 //!
 //! # Example
 //! ```
-//! use stratanet::validate::stats::{mcnemar_test, student_t_quantile, Summary};
-//!
-//! let t = student_t_quantile(0.975, 9.0)?;
-//! assert!((t - 2.262157).abs() < 1e-6);
+//! use stratanet::validate::stats::{mcnemar_test, Summary};
 //!
 //! let folds = [0.93, 0.95, 0.96, 0.94, 0.97];
 //! let summary = Summary::from_values(&folds)?;
@@ -48,8 +43,6 @@
 
 use std::f64::consts::PI;
 use std::fmt;
-
-use serde::{Deserialize, Serialize};
 
 use crate::error::{Error, Result};
 
@@ -203,7 +196,8 @@ fn incomplete_beta(a: f64, b: f64, x: f64, y: f64) -> f64 {
 /// "Handbook of Mathematical Functions", 1964, 6.5.17 and 7.1.2), computed
 /// as in Numerical Recipes 3rd ed., 6.2. Relative accuracy about 1e-15, also
 /// far in the tail. `NaN` gives `NaN`.
-pub fn erfc(x: f64) -> f64 {
+#[cfg_attr(not(test), allow(dead_code))] // checked against references in the tests
+pub(crate) fn erfc(x: f64) -> f64 {
     if x.is_nan() {
         return f64::NAN;
     }
@@ -224,7 +218,8 @@ pub fn erfc(x: f64) -> f64 {
 /// Source: Abramowitz & Stegun, "Handbook of Mathematical Functions", 1964,
 /// 26.2.29. Accurate to about 1e-15 relative, also in the lower tail
 /// (Phi(-10) = 7.6e-24). `NaN` gives `NaN`.
-pub fn normal_cdf(x: f64) -> f64 {
+#[cfg_attr(not(test), allow(dead_code))] // checked against references in the tests
+pub(crate) fn normal_cdf(x: f64) -> f64 {
     0.5 * erfc(-x / std::f64::consts::SQRT_2)
 }
 
@@ -269,7 +264,8 @@ fn t_upper_tail(t: f64, df: f64) -> f64 {
 ///
 /// # Errors
 /// If `degrees_of_freedom` is not a finite number greater than 0, or `t` is NaN.
-pub fn student_t_cdf(t: f64, degrees_of_freedom: f64) -> Result<f64> {
+#[cfg_attr(not(test), allow(dead_code))] // checked against references in the tests
+pub(crate) fn student_t_cdf(t: f64, degrees_of_freedom: f64) -> Result<f64> {
     check_degrees_of_freedom(degrees_of_freedom)?;
     check_not_nan("Student t CDF", t)?;
     let tail = t_upper_tail(t, degrees_of_freedom);
@@ -286,7 +282,7 @@ pub fn student_t_cdf(t: f64, degrees_of_freedom: f64) -> Result<f64> {
 ///
 /// # Errors
 /// As [`student_t_cdf`].
-pub fn student_t_two_sided_p(t: f64, degrees_of_freedom: f64) -> Result<f64> {
+pub(crate) fn student_t_two_sided_p(t: f64, degrees_of_freedom: f64) -> Result<f64> {
     check_degrees_of_freedom(degrees_of_freedom)?;
     check_not_nan("Student t p-value", t)?;
     Ok((2.0 * t_upper_tail(t, degrees_of_freedom)).min(1.0))
@@ -305,7 +301,7 @@ pub fn student_t_two_sided_p(t: f64, degrees_of_freedom: f64) -> Result<f64> {
 ///
 /// # Errors
 /// If `probability` is not strictly between 0 and 1, or as [`student_t_cdf`].
-pub fn student_t_quantile(probability: f64, degrees_of_freedom: f64) -> Result<f64> {
+pub(crate) fn student_t_quantile(probability: f64, degrees_of_freedom: f64) -> Result<f64> {
     check_degrees_of_freedom(degrees_of_freedom)?;
     if !(probability > 0.0 && probability < 1.0) {
         return Err(Error::option(
@@ -352,7 +348,8 @@ pub fn student_t_quantile(probability: f64, degrees_of_freedom: f64) -> Result<f
 ///
 /// # Errors
 /// If `degrees_of_freedom` is not a finite number greater than 0, or `x` is NaN.
-pub fn chi_square_cdf(x: f64, degrees_of_freedom: f64) -> Result<f64> {
+#[cfg_attr(not(test), allow(dead_code))] // checked against references in the tests
+pub(crate) fn chi_square_cdf(x: f64, degrees_of_freedom: f64) -> Result<f64> {
     check_degrees_of_freedom(degrees_of_freedom)?;
     check_not_nan("chi-square CDF", x)?;
     Ok(incomplete_gamma(0.5 * degrees_of_freedom, 0.5 * x).0)
@@ -368,7 +365,7 @@ pub fn chi_square_cdf(x: f64, degrees_of_freedom: f64) -> Result<f64> {
 ///
 /// # Errors
 /// As [`chi_square_cdf`].
-pub fn chi_square_upper_tail(x: f64, degrees_of_freedom: f64) -> Result<f64> {
+pub(crate) fn chi_square_upper_tail(x: f64, degrees_of_freedom: f64) -> Result<f64> {
     check_degrees_of_freedom(degrees_of_freedom)?;
     check_not_nan("chi-square upper tail", x)?;
     Ok(incomplete_gamma(0.5 * degrees_of_freedom, 0.5 * x).1)
@@ -414,16 +411,16 @@ fn binomial_weights(n: u64, p: f64) -> Vec<f64> {
 /// The probabilities come from the ratio P(i + 1) / P(i) = (n - i) p / ((i + 1) (1 - p)),
 /// started at the mode and normalised by their sum; the work is O(n).
 ///
-/// The "sum of outcomes no more likely than the one observed" definition, as
-/// R's `binom.test` (whose relative tolerance 1e-7 is copied so that equal
-/// probabilities computed with rounding still count). For p = 1/2 it equals
+/// The "sum of outcomes no more likely than the one observed" definition,
+/// with a relative tolerance of 1e-7 so that probabilities equal up to
+/// rounding still count (common practice, no source). For p = 1/2 it equals
 /// min(1, 2 P(X <= min(k, n - k))), the exact form of McNemar's test
 /// (Dietterich 1998). Common practice, no source, for this two-sided
 /// definition (others exist, e.g. doubling the smaller tail for any p).
 ///
 /// # Errors
 /// If `successes > trials`, or `probability` is not in [0, 1].
-pub fn binomial_two_sided_p(successes: u64, trials: u64, probability: f64) -> Result<f64> {
+pub(crate) fn binomial_two_sided_p(successes: u64, trials: u64, probability: f64) -> Result<f64> {
     if successes > trials {
         return Err(Error::input(
             "binomial test",
@@ -499,7 +496,7 @@ fn verdict(p: f64) -> &'static str {
 ///
 /// With one value the standard deviation and the interval are undefined: they
 /// are set to 0 and the mean, with a note in `undefined`.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq)]
 pub struct Summary {
     /// The mean of the values.
     pub mean: f64,
@@ -620,7 +617,7 @@ fn sample_std_dev(values: &[f64], mean: f64) -> f64 {
 /// Dietterich recommends the continuity-corrected form for comparing two
 /// classifiers; the exact binomial p-value is better still when b + c is small
 /// (say below 25). The correction is clipped at 0 so that b = c gives
-/// chi-square 0 (as R's `mcnemar.test`, which drops it then).
+/// chi-square 0 (common practice, no source).
 ///
 /// Sources: Q. McNemar, "Note on the sampling error of the difference between
 /// correlated proportions or percentages", Psychometrika 12 (1947) 153-157;
@@ -629,7 +626,7 @@ fn sample_std_dev(values: &[f64], mean: f64) -> f64 {
 ///
 /// When b + c = 0 the two never disagree: the statistics are undefined and set
 /// to 0 with p-values 1, with a note in `undefined`.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq)]
 pub struct McNemar {
     /// b: samples that A classified correctly and B did not.
     pub first_only_correct: u64,
@@ -778,7 +775,7 @@ impl McNemar {
 ///
 /// If the differences do not vary (s = 0), t is undefined: it is set to 0 and
 /// the p-values to 1, with a note in `undefined`.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, PartialEq)]
 pub struct ResampledTTest {
     /// J, the number of folds (paired differences).
     pub n_folds: usize,

@@ -13,15 +13,15 @@ use super::metrics::Metric;
 use super::stats::Summary;
 use crate::data::Dataset;
 use crate::error::{Error, Result};
-use crate::fit::{fit, FitOptions, Fitted};
+use crate::fit::{FitOptions, Fitted};
 use crate::network::Activation;
+use crate::observe::Event;
 use rand::RngCore;
 use rayon::prelude::*;
-use serde::{Deserialize, Serialize};
+use std::sync::atomic::{AtomicUsize, Ordering};
 
 /// Values to try for each knob; an empty list keeps the base value.
-#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
-#[serde(default)]
+#[derive(Clone, Debug, Default, PartialEq)]
 pub struct Grid {
     /// Hidden layer widths to try.
     pub hidden_layers: Vec<Vec<usize>>,
@@ -30,7 +30,7 @@ pub struct Grid {
     /// Learning rates to try.
     pub learning_rates: Vec<f64>,
     /// Batch sizes to try.
-    pub batch_sizes: Vec<usize>,
+    pub batch_sizes: Vec<crate::train::BatchSize>,
     /// Weight decays to try.
     pub weight_decays: Vec<f64>,
 }
@@ -52,7 +52,10 @@ impl Grid {
         let (hidden, vary_h) = or_base(&self.hidden_layers, base.hidden_layers.clone());
         let (acts, vary_a) = or_base(&self.activations, base.activation);
         let (rates, vary_r) = or_base(&self.learning_rates, base.training.learning_rate);
-        let (batches, vary_b) = or_base(&self.batch_sizes, base.training.batch_size);
+        let (batches, vary_b) = match self.batch_sizes.is_empty() {
+            true => (vec![base.training.batch_size], false),
+            false => (self.batch_sizes.iter().map(|&b| Some(b)).collect(), true),
+        };
         let (decays, vary_d) = or_base(&self.weight_decays, base.training.weight_decay);
         let total = hidden.len() * acts.len() * rates.len() * batches.len() * decays.len();
         if total > 10_000 {
@@ -92,7 +95,7 @@ impl Grid {
                             if vary_r {
                                 parts.push(format!("rate {r}"));
                             }
-                            if vary_b {
+                            if let (true, Some(b)) = (vary_b, b) {
                                 parts.push(format!("batch {b}"));
                             }
                             if vary_d {
@@ -109,7 +112,7 @@ impl Grid {
 }
 
 /// One configuration's line in the results table.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq)]
 pub struct SweepRow {
     /// The configuration's index in the plan.
     pub index: usize,
@@ -122,7 +125,7 @@ pub struct SweepRow {
 }
 
 /// A sweep's results, best first.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq)]
 pub struct SweepTable {
     /// The metric the table is sorted by.
     pub metric: Metric,
@@ -140,7 +143,7 @@ pub struct Sweep {
 }
 
 /// One trial: a configuration on a fold.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub struct Trial {
     /// The trial's index in the plan.
     pub index: usize,
@@ -154,7 +157,7 @@ pub struct Trial {
 pub const MAX_TRIALS: usize = 1_000_000;
 
 /// Everything fixed before a sweep runs.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq)]
 pub struct SweepPlan {
     /// Named configurations.
     pub configurations: Vec<(String, FitOptions)>,
@@ -185,6 +188,23 @@ impl SweepPlan {
         rng: &mut R,
     ) -> Result<SweepPlan> {
         let configurations = grid.configurations(base)?;
+        cv.validate()?;
+        for (name, o) in &configurations {
+            o.validate()
+                .map_err(|e| e.context(format!("sweep configuration \"{name}\"")))?;
+        }
+        SweepPlan::new_checked(data, configurations, cv, metric, rng)
+    }
+
+    /// [`SweepPlan::new`] with every configuration and the counts already
+    /// validated.
+    pub(crate) fn new_checked<R: RngCore + ?Sized>(
+        data: &Dataset,
+        configurations: Vec<(String, FitOptions)>,
+        cv: &CvOptions,
+        metric: Metric,
+        rng: &mut R,
+    ) -> Result<SweepPlan> {
         if configurations.is_empty() {
             return Err(Error::option(
                 "grid",
@@ -195,7 +215,7 @@ impl SweepPlan {
         if metric.is_regression() == data.labels().is_some() {
             return Err(Error::option(
                 "metric",
-                metric.name(),
+                metric,
                 if data.labels().is_some() {
                     "is a regression metric, but the target holds classes"
                 } else {
@@ -203,12 +223,7 @@ impl SweepPlan {
                 },
             ));
         }
-        for (name, o) in &configurations {
-            o.validate().map_err(|e| {
-                Error::input(format!("sweep configuration \"{name}\""), e.to_string())
-            })?;
-        }
-        let folds = FoldPlan::draw(data, cv, rng)?;
+        let folds = FoldPlan::draw_checked(data, cv, rng)?;
         Ok(SweepPlan {
             configurations,
             cv: cv.clone(),
@@ -236,9 +251,9 @@ impl SweepPlan {
         }
         self.cv.validate()?;
         for (name, options) in &self.configurations {
-            options.validate().map_err(|e| {
-                Error::input(format!("sweep plan, configuration {name}"), e.to_string())
-            })?;
+            options
+                .validate()
+                .map_err(|e| e.context(format!("sweep plan, configuration {name}")))?;
         }
         let trials = self
             .configurations
@@ -292,9 +307,15 @@ impl SweepPlan {
         }
         self.check()?;
         self.folds.check(data.n_rows())?;
-        let trial = self.trials()[index];
-        let (_, options) = &self.configurations[trial.configuration];
-        run_fold(data, options, &self.folds, trial.fold, false)
+        self.run_trial_checked(data, index)
+    }
+
+    /// Runs trial `index` of a plan already checked against `data`.
+    fn run_trial_checked(&self, data: &Dataset, index: usize) -> Result<FoldResult> {
+        let k = self.folds.folds.len();
+        let (configuration, fold) = (index / k, index % k);
+        let (_, options) = &self.configurations[configuration];
+        run_fold(data, options, &self.folds, fold)
     }
 
     /// Builds the table from every trial's result (`results[i]` from trial `i`).
@@ -363,28 +384,47 @@ pub fn sweep<R: RngCore + ?Sized>(
     rng: &mut R,
 ) -> Result<Sweep> {
     let plan = SweepPlan::new(data, base, grid, cv, metric, rng)?;
-    let results: Vec<Result<FoldResult>> = plan
-        .trials()
+    sweep_plan_checked(data, &plan, &base.training.observer)
+}
+
+/// Runs every trial of a plan drawn from `data` here, in parallel, and
+/// refits the best configuration on all of `data`.
+pub(crate) fn sweep_plan_checked(
+    data: &Dataset,
+    plan: &SweepPlan,
+    observer: &crate::observe::Observer,
+) -> Result<Sweep> {
+    plan.folds.check(data.n_rows())?;
+    let trials = plan.trials().len();
+    let finished = AtomicUsize::new(0);
+    let results: Vec<Result<FoldResult>> = (0..trials)
         .into_par_iter()
         .map(|t| {
-            let r = plan.run_trial(data, t.index);
-            if cv.progress {
-                eprintln!(
-                    "trial {}/{} done",
-                    t.index + 1,
-                    plan.configurations.len() * plan.folds.folds.len()
-                );
-            }
+            let r = plan.run_trial_checked(data, t);
+            let done = finished.fetch_add(1, Ordering::Relaxed) + 1;
+            observer.notify(|| Event::TrialFinished {
+                trial: t,
+                trials,
+                finished: done,
+            });
             r
         })
         .collect();
     let results = results.into_iter().collect::<Result<Vec<_>>>()?;
     let table = plan.merge(data.n_rows(), data.class_names().unwrap_or(&[]), results)?;
-    let best_options = &plan.configurations[table.rows[0].index].1;
-    let best = fit(
-        data,
-        best_options,
-        &mut crate::rng::seeded_rng(plan.refit_seed),
-    )?;
+    let best = plan.refit_best(data, &table)?;
     Ok(Sweep { table, best })
+}
+
+impl SweepPlan {
+    /// The table's best configuration refitted on every row of `data`,
+    /// from the plan's refit seed.
+    ///
+    /// # Errors
+    /// As [`fit`](crate::fit::fit).
+    pub fn refit_best(&self, data: &Dataset, table: &SweepTable) -> Result<Fitted> {
+        let best_options = &self.configurations[table.rows[0].index].1;
+        let seed = crate::rng::child_seed(&mut crate::rng::seeded_rng(self.refit_seed));
+        crate::fit::fit_checked(std::borrow::Cow::Borrowed(data), best_options, seed, None)
+    }
 }

@@ -1,49 +1,220 @@
-//! Sweep plans and trial results as files, for running trials elsewhere.
+//! Sweep plans and trial results as files, for running trials elsewhere
+//! (an array job on a cluster, say).
 //!
-//! A plan file is JSON lines: a header line holding the whole plan and the
-//! CSV options it was made with, then one line per trial
-//! (`{"trial": i, "configuration": c, "fold": f, "name": ...}`) so that an
-//! array job can count and inspect trials with line tools. A trial file
-//! holds one trial's fold result and the plan's fingerprint, so results from
-//! another plan are refused when merging.
+//! **Plan files** are JSON lines: a header line holding the whole plan (the
+//! configurations, the folds, the seeds, how the table is read), then one
+//! line per trial (`{"trial": i, "configuration": c, "fold": f, "name": ...}`)
+//! so that an array job can count and inspect trials with line tools.
+//!
+//! **Trial files** hold one trial's outcome: the held-out rows' truth and
+//! predictions (the merge scores them again, so merged scores are exactly a
+//! local sweep's), and a summary of training. The per-epoch history is
+//! left out unless asked for, and nothing in a trial file depends on the
+//! clock, so rerunning a trial writes the same bytes.
+//!
+//! **Nothing a JSON tool can alter silently.** Every 64-bit seed is written
+//! as a decimal string (many JSON tools read numbers as doubles and would
+//! round seeds above 2^53), and the header carries a SHA-256 checksum
+//! (FIPS 180-4) of the plan's canonical JSON: a plan altered after it was
+//! written, a seed rounded or an option changed, is refused by name before
+//! any trial runs. A trial file carries the checksum of its plan, so results
+//! from another plan are refused when merging.
 
-use super::{FoldResult, SweepPlan};
+use super::cv::{FoldPlan, FoldResult, Scores};
+use super::sweep::SweepPlan;
+use super::CvOptions;
 use crate::atomic::write_text;
-use crate::data::CsvOptions;
+use crate::data::{CsvOptions, Fold, Missing, Target, TargetKind};
 use crate::error::{Error, Result};
+use crate::model_file::options_schema::OptionsV2;
+use crate::train::{EpochRecord, Loss, TrainingReport};
+use ndarray::Array2;
 use serde::{Deserialize, Serialize};
 use serde_json::json;
 use std::path::Path;
 
 const PLAN_FORMAT: &str = "stratanet-sweep-plan";
 const TRIAL_FORMAT: &str = "stratanet-sweep-trial";
+/// The version of plan and trial files this library writes and reads.
+pub const FILE_VERSION: u32 = 2;
 
+/// The first line of a plan file.
 #[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
 struct PlanHeader {
     format: String,
     format_version: u32,
-    plan: SweepPlan,
-    table: CsvOptions,
+    /// SHA-256 (hex) of `plan` written as compact JSON.
+    checksum: String,
+    plan: PlanBody,
+}
+
+/// The plan itself: everything a trial needs.
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct PlanBody {
+    table: TableV2,
+    table_fingerprint: String,
+    metric: String,
+    folds_per_repeat: usize,
+    repeats: usize,
+    refit_seed: String,
+    configurations: Vec<ConfigurationV2>,
+    folds: Vec<FoldV2>,
 }
 
 #[derive(Serialize, Deserialize)]
-struct TrialFile {
-    format: String,
-    format_version: u32,
-    plan_fingerprint: String,
-    trial: usize,
-    rows: usize,
-    classes: Vec<String>,
-    result: FoldResult,
+#[serde(deny_unknown_fields)]
+struct ConfigurationV2 {
+    name: String,
+    options: OptionsV2,
 }
 
-fn plan_fingerprint(plan: &SweepPlan) -> String {
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct FoldV2 {
+    seed: String,
+    train: Vec<usize>,
+    test: Vec<usize>,
+}
+
+/// How the table is read (the CSV options), as plan files write it.
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct TableV2 {
+    target: String,
+    features: Option<Vec<String>>,
+    drop: Vec<String>,
+    categorical: Vec<String>,
+    missing: String,
+    target_kind: String,
+    class_order: Option<Vec<String>>,
+    delimiter: u8,
+}
+
+impl TableV2 {
+    fn from_options(o: &CsvOptions) -> TableV2 {
+        TableV2 {
+            target: o.target.clone(),
+            features: o.features.clone(),
+            drop: o.drop.clone(),
+            categorical: o.categorical.clone(),
+            missing: o.missing.to_string(),
+            target_kind: o.target_kind.to_string(),
+            class_order: o.class_order.clone(),
+            delimiter: o.delimiter,
+        }
+    }
+
+    fn into_options(self) -> Result<CsvOptions> {
+        let mut o = CsvOptions::new(&self.target);
+        o.features = self.features;
+        o.drop = self.drop;
+        o.categorical = self.categorical;
+        o.missing = self.missing.parse::<Missing>()?;
+        o.target_kind = self.target_kind.parse::<TargetKind>()?;
+        o.class_order = self.class_order;
+        o.delimiter = self.delimiter;
+        Ok(o)
+    }
+}
+
+fn sha256_hex(bytes: &[u8]) -> String {
     use sha2::{Digest, Sha256};
-    let text = serde_json::to_string(plan).expect("plans serialise");
-    Sha256::digest(text.as_bytes())
+    Sha256::digest(bytes)
         .iter()
         .map(|b| format!("{b:02x}"))
         .collect()
+}
+
+fn seed_text(seed: u64) -> String {
+    seed.to_string()
+}
+
+fn read_seed(text: &str, what: &str) -> std::result::Result<u64, String> {
+    text.parse::<u64>().map_err(|_| {
+        format!("{what} \"{text}\" is not a whole number from 0 to 18446744073709551615")
+    })
+}
+
+impl PlanBody {
+    fn from_plan(plan: &SweepPlan, table: &CsvOptions) -> PlanBody {
+        PlanBody {
+            table: TableV2::from_options(table),
+            table_fingerprint: plan.table_fingerprint.clone(),
+            metric: plan.metric.to_string(),
+            folds_per_repeat: plan.cv.folds,
+            repeats: plan.cv.repeats,
+            refit_seed: seed_text(plan.refit_seed),
+            configurations: plan
+                .configurations
+                .iter()
+                .map(|(name, o)| ConfigurationV2 {
+                    name: name.clone(),
+                    options: OptionsV2::from_options(o),
+                })
+                .collect(),
+            folds: plan
+                .folds
+                .folds
+                .iter()
+                .zip(&plan.folds.seeds)
+                .map(|(f, &s)| FoldV2 {
+                    seed: seed_text(s),
+                    train: f.train.clone(),
+                    test: f.test.clone(),
+                })
+                .collect(),
+        }
+    }
+
+    fn checksum(&self) -> String {
+        sha256_hex(
+            serde_json::to_string(self)
+                .expect("plans serialise")
+                .as_bytes(),
+        )
+    }
+
+    fn into_plan(self) -> std::result::Result<(SweepPlan, CsvOptions), String> {
+        let table = self.table.into_options().map_err(|e| e.to_string())?;
+        let mut configurations = Vec::with_capacity(self.configurations.len());
+        for c in self.configurations {
+            let options = c
+                .options
+                .into_options()
+                .map_err(|e| format!("configuration \"{}\": {e}", c.name))?;
+            configurations.push((c.name, options));
+        }
+        let mut folds = Vec::with_capacity(self.folds.len());
+        let mut seeds = Vec::with_capacity(self.folds.len());
+        for (i, f) in self.folds.into_iter().enumerate() {
+            seeds.push(read_seed(&f.seed, &format!("fold {} seed", i + 1))?);
+            folds.push(Fold {
+                train: f.train,
+                test: f.test,
+            });
+        }
+        let plan = SweepPlan {
+            configurations,
+            cv: CvOptions {
+                folds: self.folds_per_repeat,
+                repeats: self.repeats,
+                ..Default::default()
+            },
+            folds: FoldPlan { folds, seeds },
+            metric: self.metric.parse().map_err(|e: Error| e.to_string())?,
+            refit_seed: read_seed(&self.refit_seed, "refit seed")?,
+            table_fingerprint: self.table_fingerprint,
+        };
+        Ok((plan, table))
+    }
+}
+
+/// The checksum a plan file made from `plan` and `table` carries: what trial
+/// files name their plan by.
+pub fn plan_checksum(plan: &SweepPlan, table: &CsvOptions) -> String {
+    PlanBody::from_plan(plan, table).checksum()
 }
 
 /// Writes `plan` (made from a table read with `table`) to `path`, atomically.
@@ -51,11 +222,12 @@ fn plan_fingerprint(plan: &SweepPlan) -> String {
 /// # Errors
 /// The file cannot be written.
 pub fn write_plan(plan: &SweepPlan, table: &CsvOptions, path: &Path) -> Result<()> {
+    let body = PlanBody::from_plan(plan, table);
     let header = PlanHeader {
         format: PLAN_FORMAT.into(),
-        format_version: 1,
-        plan: plan.clone(),
-        table: table.clone(),
+        format_version: FILE_VERSION,
+        checksum: body.checksum(),
+        plan: body,
     };
     let mut text = serde_json::to_string(&header).expect("plans serialise");
     text.push('\n');
@@ -67,11 +239,22 @@ pub fn write_plan(plan: &SweepPlan, table: &CsvOptions, path: &Path) -> Result<(
     write_text(path, &text)
 }
 
-/// Reads a plan file: the plan and the CSV options it was made with.
+/// A plan read from a file, with what the file says about it.
+#[derive(Clone, Debug)]
+pub struct PlanFile {
+    /// The plan.
+    pub plan: SweepPlan,
+    /// How the table is read.
+    pub table: CsvOptions,
+    /// The checksum the file carries (and that its content matches).
+    pub checksum: String,
+}
+
+/// Reads a plan file.
 ///
 /// # Errors
 /// A missing file, or one that is not a stratanet sweep plan.
-pub fn read_plan(path: &Path) -> Result<(SweepPlan, CsvOptions)> {
+pub fn read_plan(path: &Path) -> Result<PlanFile> {
     let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, "reading", e))?;
     parse_plan(&text, path)
 }
@@ -79,103 +262,299 @@ pub fn read_plan(path: &Path) -> Result<(SweepPlan, CsvOptions)> {
 /// Parses and checks the text of a plan file; `path` names it in errors.
 ///
 /// # Errors
-/// Text that is not a stratanet sweep plan, or a plan that breaks a rule of
+/// Text that is not a stratanet sweep plan, a plan whose content no longer
+/// matches its checksum, or a plan that breaks a rule of
 /// [`SweepPlan::check`].
-pub fn parse_plan(text: &str, path: &Path) -> Result<(SweepPlan, CsvOptions)> {
+pub fn parse_plan(text: &str, path: &Path) -> Result<PlanFile> {
     let first = text.lines().next().unwrap_or("");
-    let header: PlanHeader = serde_json::from_str(first).map_err(|e| {
-        Error::input(
-            format!("{}: line 1", path.display()),
-            format!("not a stratanet sweep plan ({e}); write one with `stratanet sweep ... --write-plan PATH`"),
+    let at = || format!("{}: line 1", path.display());
+    let probe: serde_json::Value = serde_json::from_str(first).map_err(|e| {
+        Error::json(
+            path,
+            "a stratanet sweep plan",
+            e,
+            "write the plan again from the table",
         )
     })?;
-    if header.format != PLAN_FORMAT || header.format_version != 1 {
+    if probe.get("format").and_then(|f| f.as_str()) != Some(PLAN_FORMAT)
+        || probe.get("format_version").and_then(|v| v.as_u64()) != Some(u64::from(FILE_VERSION))
+    {
         return Err(Error::input(
-            format!("{}: line 1", path.display()),
-            format!("format {} version {} is not a sweep plan this version reads ({PLAN_FORMAT} version 1)", header.format, header.format_version),
+            at(),
+            format!(
+                "not a sweep plan this version reads ({PLAN_FORMAT} version {FILE_VERSION}); write the plan again with this version"
+            ),
         ));
     }
-    header
+    let header: PlanHeader = serde_json::from_str(first).map_err(|e| {
+        Error::json(
+            path,
+            "a stratanet sweep plan",
+            e,
+            "write the plan again from the table",
+        )
+    })?;
+    let checksum = header.plan.checksum();
+    if checksum != header.checksum {
+        return Err(Error::input(
+            at(),
+            "the plan's content does not match its checksum: it was changed after it was written (a JSON tool may have rounded a number); write the plan again instead of editing it",
+        ));
+    }
+    let (plan, table) = header
         .plan
-        .check()
-        .map_err(|e| Error::input(format!("{}: line 1", path.display()), e.to_string()))?;
-    Ok((header.plan, header.table))
+        .into_plan()
+        .map_err(|reason| Error::input(at(), reason))?;
+    plan.check().map_err(|e| e.context(at()))?;
+    Ok(PlanFile {
+        plan,
+        table,
+        checksum,
+    })
 }
 
-/// Writes one trial's result, atomically.
+/// One trial's outcome as trial files write it.
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct TrialFile {
+    format: String,
+    format_version: u32,
+    plan_checksum: String,
+    trial: usize,
+    rows: usize,
+    classes: Vec<String>,
+    seed: String,
+    train_rows: usize,
+    test_rows: Vec<usize>,
+    /// Class labels of the held-out rows, or their target values.
+    truth: TruthV2,
+    /// Class probabilities or predicted values, one row per held-out row.
+    predictions: Vec<Vec<f64>>,
+    training: TrainingV2,
+}
+
+#[derive(Serialize, Deserialize)]
+#[serde(rename_all = "snake_case", deny_unknown_fields)]
+enum TruthV2 {
+    Labels(Vec<usize>),
+    Values(Vec<Vec<f64>>),
+}
+
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct TrainingV2 {
+    loss: String,
+    epochs_run: usize,
+    best_epoch: usize,
+    best_validation_loss: Option<f64>,
+    stopped_early: bool,
+    final_training_loss: f64,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    history: Option<Vec<EpochV2>>,
+}
+
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct EpochV2 {
+    epoch: usize,
+    training_loss: f64,
+    validation_loss: Option<f64>,
+    validation_accuracy: Option<f64>,
+    learning_rate: f64,
+}
+
+/// A trial's outcome read from a trial file.
+#[derive(Clone, Debug)]
+pub struct TrialResult {
+    /// The trial's index in the plan.
+    pub trial: usize,
+    /// The fold's result, scored again from the stored predictions.
+    pub result: FoldResult,
+    /// Rows in the table the trial ran on.
+    pub rows: usize,
+    /// Its class names (empty for regression).
+    pub classes: Vec<String>,
+}
+
+fn rows_of(a: &Array2<f64>) -> Vec<Vec<f64>> {
+    a.rows().into_iter().map(|r| r.to_vec()).collect()
+}
+
+fn matrix(rows: Vec<Vec<f64>>, what: &str) -> std::result::Result<Array2<f64>, String> {
+    let n = rows.len();
+    let k = rows.first().map_or(0, Vec::len);
+    if rows.iter().any(|r| r.len() != k) {
+        return Err(format!("\"{what}\" has rows of different lengths"));
+    }
+    Array2::from_shape_vec((n, k), rows.into_iter().flatten().collect())
+        .map_err(|_| format!("\"{what}\" is not a table of numbers"))
+}
+
+/// Writes one trial's result, atomically; `truth` is the target of the
+/// trial's held-out rows, and `history` keeps the per-epoch losses.
 ///
 /// # Errors
 /// The file cannot be written.
+#[allow(clippy::too_many_arguments)]
 pub fn write_trial(
-    plan: &SweepPlan,
+    plan_checksum: &str,
     trial: usize,
     rows: usize,
     classes: &[String],
+    truth: &Target,
     result: &FoldResult,
+    history: bool,
     path: &Path,
 ) -> Result<()> {
+    let r = &result.report;
     let file = TrialFile {
         format: TRIAL_FORMAT.into(),
-        format_version: 1,
-        plan_fingerprint: plan_fingerprint(plan),
+        format_version: FILE_VERSION,
+        plan_checksum: plan_checksum.to_string(),
         trial,
         rows,
         classes: classes.to_vec(),
-        result: result.clone(),
+        seed: seed_text(result.seed),
+        train_rows: result.train_rows,
+        test_rows: result.test_rows.clone(),
+        truth: match truth {
+            Target::Classes { labels, .. } => TruthV2::Labels(labels.clone()),
+            Target::Values { values, .. } => TruthV2::Values(rows_of(values)),
+        },
+        predictions: rows_of(&result.predictions),
+        training: TrainingV2 {
+            loss: r.loss.to_string(),
+            epochs_run: r.epochs_run,
+            best_epoch: r.best_epoch,
+            best_validation_loss: r.best_validation_loss,
+            stopped_early: r.stopped_early,
+            final_training_loss: r.final_training_loss,
+            history: history.then(|| {
+                r.history
+                    .iter()
+                    .map(|e| EpochV2 {
+                        epoch: e.epoch,
+                        training_loss: e.training_loss,
+                        validation_loss: e.validation_loss,
+                        validation_accuracy: e.validation_accuracy,
+                        learning_rate: e.learning_rate,
+                    })
+                    .collect()
+            }),
+        },
     };
     let mut text = serde_json::to_string(&file).expect("trial results serialise");
     text.push('\n');
     write_text(path, &text)
 }
 
-/// Reads a trial file made for `plan`: (trial index, result, table rows, class names).
+/// Reads a trial file made for the plan with checksum `plan_checksum` and
+/// `trials` trials.
 ///
 /// # Errors
 /// A missing or foreign file, or one made for another plan.
-pub fn read_trial(
-    path: &Path,
-    plan: &SweepPlan,
-) -> Result<(usize, FoldResult, usize, Vec<String>)> {
+pub fn read_trial(path: &Path, plan_checksum: &str, trials: usize) -> Result<TrialResult> {
     let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, "reading", e))?;
-    parse_trial(&text, path, plan)
+    parse_trial(&text, path, plan_checksum, trials)
 }
 
-/// Parses the text of a trial file made for `plan`; `path` names it in errors.
+/// Parses the text of a trial file (see [`read_trial`]).
 ///
 /// # Errors
 /// Text that is not a trial result, or one made for another plan.
 pub fn parse_trial(
     text: &str,
     path: &Path,
-    plan: &SweepPlan,
-) -> Result<(usize, FoldResult, usize, Vec<String>)> {
+    plan_checksum: &str,
+    trials: usize,
+) -> Result<TrialResult> {
     let file: TrialFile = serde_json::from_str(text).map_err(|e| {
-        Error::input(
-            path.display().to_string(),
-            format!("not a stratanet sweep trial result ({e})"),
+        Error::json(
+            path,
+            "a stratanet sweep trial result",
+            e,
+            "run the trial again; a result file is written whole or not at all",
         )
     })?;
-    if file.format != TRIAL_FORMAT || file.format_version != 1 {
-        return Err(Error::input(
-            path.display().to_string(),
-            "not a sweep trial result this version reads",
+    let bad = |reason: String| Error::input(path.display().to_string(), reason);
+    if file.format != TRIAL_FORMAT || file.format_version != FILE_VERSION {
+        return Err(bad(format!(
+            "not a sweep trial result this version reads ({TRIAL_FORMAT} version {FILE_VERSION})"
+        )));
+    }
+    if file.plan_checksum != plan_checksum {
+        return Err(bad(
+            "this trial result was made from a different plan; merge results of one plan only"
+                .into(),
         ));
     }
-    if file.plan_fingerprint != plan_fingerprint(plan) {
-        return Err(Error::input(
-            path.display().to_string(),
-            "this trial result was made from a different plan; merge results of one plan only",
-        ));
-    }
-    let trials = plan
-        .configurations
-        .len()
-        .saturating_mul(plan.folds.folds.len());
     if file.trial >= trials {
-        return Err(Error::input(
-            path.display().to_string(),
-            format!("trial {} is not in the plan", file.trial),
-        ));
+        return Err(bad(format!("trial {} is not in the plan", file.trial)));
     }
-    Ok((file.trial, file.result, file.rows, file.classes))
+    let predictions = matrix(file.predictions, "predictions").map_err(bad)?;
+    let target = match file.truth {
+        TruthV2::Labels(labels) => {
+            if labels.iter().any(|&l| l >= file.classes.len()) {
+                return Err(bad("a class label is beyond the class names".into()));
+            }
+            Target::Classes {
+                labels,
+                names: file.classes.clone(),
+            }
+        }
+        TruthV2::Values(values) => Target::Values {
+            names: (0..values.first().map_or(0, Vec::len))
+                .map(|i| format!("y{i}"))
+                .collect(),
+            values: matrix(values, "truth").map_err(bad)?,
+        },
+    };
+    if target.len() != file.test_rows.len() || predictions.nrows() != file.test_rows.len() {
+        return Err(bad(format!(
+            "it holds {} held-out rows but {} truths and {} predictions",
+            file.test_rows.len(),
+            target.len(),
+            predictions.nrows()
+        )));
+    }
+    let scores = Scores::from_predictions(&target, predictions.view())
+        .map_err(|e| e.context(path.display().to_string()))?;
+    let t = file.training;
+    let history = t
+        .history
+        .unwrap_or_default()
+        .into_iter()
+        .map(|e| EpochRecord {
+            epoch: e.epoch,
+            training_loss: e.training_loss,
+            validation_loss: e.validation_loss,
+            validation_accuracy: e.validation_accuracy,
+            learning_rate: e.learning_rate,
+            elapsed_seconds: 0.0,
+        })
+        .collect();
+    let report = TrainingReport {
+        history,
+        epochs_run: t.epochs_run,
+        best_epoch: t.best_epoch,
+        best_validation_loss: t.best_validation_loss,
+        stopped_early: t.stopped_early,
+        loss: t.loss.parse::<Loss>().map_err(|e| bad(e.to_string()))?,
+        final_training_loss: t.final_training_loss,
+    };
+    let seed = read_seed(&file.seed, "seed").map_err(bad)?;
+    Ok(TrialResult {
+        trial: file.trial,
+        result: FoldResult {
+            index: 0,
+            seed,
+            train_rows: file.train_rows,
+            test_rows: file.test_rows,
+            scores,
+            predictions,
+            report,
+        },
+        rows: file.rows,
+        classes: file.classes,
+    })
 }

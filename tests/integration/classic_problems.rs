@@ -17,7 +17,7 @@ fn xor() -> (Array2<f64>, Array2<f64>) {
 fn full_batch(epochs: usize, rate: f64, loss: Loss) -> TrainingOptions {
     TrainingOptions {
         epochs,
-        batch_size: 4,
+        batch_size: Some(stratanet::train::BatchSize::Rows(4)),
         learning_rate: rate,
         optimiser: Optimiser::Sgd,
         loss: Some(loss),
@@ -194,7 +194,7 @@ fn identity_encoder_8_3_8() {
     .unwrap();
     let options = TrainingOptions {
         epochs: 5_000,
-        batch_size: 8,
+        batch_size: Some(stratanet::train::BatchSize::Rows(8)),
         learning_rate: 0.05,
         optimiser: Optimiser::ADAM,
         early_stopping: None,
@@ -238,7 +238,7 @@ fn divergence_is_an_error_naming_the_epoch() {
     .unwrap();
     let options = TrainingOptions {
         epochs: 100,
-        batch_size: 8,
+        batch_size: Some(stratanet::train::BatchSize::Rows(8)),
         learning_rate: 10.0,
         optimiser: Optimiser::Sgd,
         early_stopping: None,

@@ -22,7 +22,7 @@ fn each_bad_file_has_its_exact_message() {
         ("not_a_number.csv", verdict(),
          "bad/not_a_number.csv: line 3, column \"bore_um\" (0): cannot read the cell as a number, and the column is numeric (its first value was a number); correct the cell, drop the column, or list it as categorical (`categorical`) (found \"12a\")"),
         ("missing.csv", verdict(),
-         "bad/missing.csv: line 3, column \"roughness_um\" (1): missing value \"NA\"; fill the cell, or pass the option missing = drop (`--missing drop`) to drop rows with missing cells"),
+         "bad/missing.csv: line 3, column \"roughness_um\" (1): missing value \"NA\"; fill the cell, or set missing = drop to drop rows with missing cells"),
         ("single_class.csv", verdict(),
          "bad/single_class.csv: target column \"verdict\" holds only one class (\"accept\"); a classifier needs at least two classes"),
         ("empty.csv", verdict(),
@@ -53,7 +53,7 @@ fn missing_cells_can_be_dropped_and_are_counted() {
         .read(&path)
         .unwrap();
     assert_eq!(data.n_rows(), 2);
-    assert_eq!(data.dropped_rows, 3);
+    assert_eq!(data.dropped_rows(), 3);
 }
 
 #[test]

@@ -20,7 +20,7 @@ fn blobs() -> Dataset {
 
 fn weights(model: &stratanet::Model) -> Vec<u64> {
     model
-        .network
+        .network()
         .layers()
         .iter()
         .flat_map(|l| {
@@ -39,11 +39,11 @@ fn same_seed_same_bits_other_seed_other_weights() {
     let options = FitOptions::default().hidden(&[6]).epochs(40).restarts(3);
     let a = fit(&data, &options, &mut seeded_rng(5)).unwrap();
     let b = fit(&data, &options, &mut seeded_rng(5)).unwrap();
-    assert_eq!(weights(&a.model), weights(&b.model));
-    assert_eq!(a.report, b.report);
-    assert_eq!(a.restarts, b.restarts);
+    assert_eq!(weights(a.model()), weights(b.model()));
+    assert_eq!(a.report(), b.report());
+    assert_eq!(a.restarts(), b.restarts());
     let c = fit(&data, &options, &mut seeded_rng(6)).unwrap();
-    assert_ne!(weights(&a.model), weights(&c.model));
+    assert_ne!(weights(a.model()), weights(c.model()));
 }
 
 // Restarts run in parallel on rayon's pool; the result must not depend on
@@ -62,8 +62,8 @@ fn thread_count_does_not_change_the_result() {
         .unwrap();
     let a = one.install(|| fit(&data, &options, &mut seeded_rng(9)).unwrap());
     let b = two.install(|| fit(&data, &options, &mut seeded_rng(9)).unwrap());
-    assert_eq!(weights(&a.model), weights(&b.model));
-    assert_eq!(a.restarts, b.restarts);
+    assert_eq!(weights(a.model()), weights(b.model()));
+    assert_eq!(a.restarts(), b.restarts());
 }
 
 fn first_losses(arithmetic: stratanet::network::Arithmetic) -> Vec<String> {
@@ -72,11 +72,11 @@ fn first_losses(arithmetic: stratanet::network::Arithmetic) -> Vec<String> {
         .hidden(&[4])
         .epochs(5)
         .early_stopping(None)
-        .validation_fraction(0.0);
+        .validation_share(0.0);
     options.training.arithmetic = arithmetic;
     let fitted = fit(&data, &options, &mut seeded_rng(42)).unwrap();
     fitted
-        .report
+        .report()
         .training_losses()
         .iter()
         .map(|v| format!("{v:.15}"))

@@ -158,12 +158,16 @@ fn write_seeds() {
         let result = plan.run_trial(&data, trial).unwrap();
         let path = scratch.join(format!("trial-{trial}.json"));
         let classes = data.class_names().unwrap().to_vec();
+        let checksum = stratanet::validate::sweep_files::plan_checksum(&plan, &table);
+        let truth = data.select(&result.test_rows);
         stratanet::validate::sweep_files::write_trial(
-            &plan,
+            &checksum,
             trial,
             data.n_rows(),
             &classes,
+            truth.target(),
             &result,
+            trial == 4,
             &path,
         )
         .unwrap();

@@ -1,8 +1,8 @@
 //! Backpropagated gradients against central finite differences.
 //!
-//! Bound: Stanford CS231n notes, "Neural Networks Part 3" (relative error
-//! below 1e-7 is good in double precision; rectifier kinks may need a looser
-//! bound). Differences: the five-point central stencil (Abramowitz & Stegun
+//! Bound: a relative error below 1e-7 in double precision (common practice,
+//! no source; rectifier kinks need care, as the loss has no derivative
+//! there). Differences: the five-point central stencil (Abramowitz & Stegun
 //! 1964, 25.3.6) with h = 1e-3; parameters whose steps cross a rectifier
 //! kink are left out by the check and counted.
 

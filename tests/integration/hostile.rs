@@ -42,7 +42,7 @@ fn quick() -> FitOptions {
         .hidden(&[6])
         .epochs(60)
         .learning_rate(0.05)
-        .batch_size(16)
+        .batch_size(stratanet::train::BatchSize::Rows(16))
 }
 
 fn all_finite(v: &Array2<f64>) -> bool {
@@ -65,10 +65,10 @@ fn values_near_the_limits_of_f64_are_scaled_and_fitted() {
         .read_str(&text, "limits.csv")
         .unwrap();
     // Every column scales to finite values of ordinary size.
-    let s = Scaler::fit(Scaling::Standardise, data.x(), None).unwrap();
-    let z = s.transform(data.x()).unwrap();
+    let s = Scaler::from_rows(Scaling::Standardise, data.x(), None).unwrap();
+    let z = s.scaled(data.x()).unwrap();
     assert!(all_finite(&z));
-    for (j, name) in data.feature_names.iter().enumerate() {
+    for (j, name) in data.feature_names().iter().enumerate() {
         let col = z.column(j);
         let big = col.iter().fold(0.0f64, |m, v| m.max(v.abs()));
         if name == "constant" {
@@ -78,9 +78,9 @@ fn values_near_the_limits_of_f64_are_scaled_and_fitted() {
         }
     }
     let fitted = fit_with_seed(&data, &quick(), 3).unwrap();
-    let p = fitted.model.predict_probabilities(data.x()).unwrap();
+    let p = fitted.model().predict_probabilities(data.x()).unwrap();
     assert!(all_finite(&p));
-    let accuracy = Scores::of(&fitted.model, &data)
+    let accuracy = Scores::of(fitted.model(), &data)
         .unwrap()
         .0
         .value(Metric::Accuracy)
@@ -94,7 +94,7 @@ fn values_near_the_limits_of_f64_are_scaled_and_fitted() {
 #[test]
 fn min_max_scaling_beyond_the_range_of_f64_is_refused_by_name() {
     let x = ndarray::array![[1.0, 1.7e308], [2.0, -1.7e308]];
-    let err = Scaler::fit(Scaling::MinMax, x.view(), None).unwrap_err();
+    let err = Scaler::from_rows(Scaling::MinMax, x.view(), None).unwrap_err();
     assert_eq!(
         err.to_string(),
         "min-max scaling of feature column 2: its values span -1.7e308 to 1.7e308, a range beyond the largest double; divide the column by a power of ten first, or use standardise"
@@ -127,9 +127,11 @@ fn one_positive_in_ten_thousand_fits_and_says_what_is_undefined() {
         .unwrap();
     assert_eq!(data.class_counts(), [1, 9999]);
     // The one positive goes to the training rows; fitting works.
-    let options = quick().epochs(5).batch_size(256);
+    let options = quick()
+        .epochs(5)
+        .batch_size(stratanet::train::BatchSize::Rows(256));
     let fitted = fit_with_seed(&data, &options, 9).unwrap();
-    let (scores, _) = Scores::of(&fitted.model, &data).unwrap();
+    let (scores, _) = Scores::of(fitted.model(), &data).unwrap();
     for metric in scores.metrics() {
         let v = scores.value(metric).unwrap();
         assert!(v.is_finite(), "{} is {v}", metric.name());
@@ -162,7 +164,7 @@ fn a_diverging_learning_rate_stops_with_the_epoch_and_the_rate() {
         .learning_rate(1e12)
         .optimiser(stratanet::train::Optimiser::Sgd)
         .early_stopping(None)
-        .validation_fraction(0.0)
+        .validation_share(0.0)
         .epochs(50);
     let err = fit_with_seed(&data, &options, 4).unwrap_err();
     let text = err.to_string();
@@ -189,12 +191,12 @@ fn five_hundred_classes_fit_predict_and_cross_validate() {
     let options = FitOptions::default()
         .hidden(&[16])
         .epochs(3)
-        .batch_size(64)
-        .validation_fraction(0.0)
+        .batch_size(stratanet::train::BatchSize::Rows(64))
+        .validation_share(0.0)
         .early_stopping(None);
     let fitted = fit_with_seed(&data, &options, 2).unwrap();
-    assert_eq!(fitted.model.network.sizes(), [3, 16, 500]);
-    let p = fitted.model.predict_probabilities(data.x()).unwrap();
+    assert_eq!(fitted.model().network().sizes(), [3, 16, 500]);
+    let p = fitted.model().predict_probabilities(data.x()).unwrap();
     assert_eq!(p.ncols(), 500);
     for row in p.rows() {
         let sum: f64 = row.sum();
@@ -217,7 +219,7 @@ fn an_input_far_outside_the_training_range_is_an_error_not_nan() {
         .read_str(&text, "train.csv")
         .unwrap();
     let options = quick().activation(stratanet::network::Activation::Relu);
-    let model = fit_with_seed(&data, &options, 1).unwrap().model;
+    let model = fit_with_seed(&data, &options, 1).unwrap().into_model();
     let far = ndarray::array![[0.5, 0.5], [1.7e308, -1.7e308]];
     match model.predict_probabilities(far.view()) {
         Ok(p) => assert!(all_finite(&p), "{p:?}"),
@@ -433,8 +435,8 @@ fn path_tricks_and_markup_in_names_stay_text() {
         "{html}"
     );
     // The names survive a model file unchanged, as data.
-    let json = stratanet::model_file::to_json(&fitted.model).unwrap();
-    let back = stratanet::model_file::from_json(&json, "names.json").unwrap();
-    assert_eq!(back.target_names, fitted.model.target_names);
-    assert_eq!(back.feature_names, ["<b>width</b>", "../../etc/passwd"]);
+    let json = fitted.model().to_json().unwrap();
+    let back = stratanet::Model::from_json(&json, "names.json").unwrap();
+    assert_eq!(back.target_names(), fitted.model().target_names());
+    assert_eq!(back.feature_names(), ["<b>width</b>", "../../etc/passwd"]);
 }

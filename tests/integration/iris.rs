@@ -44,7 +44,7 @@ fn stratified_ten_fold_accuracy() {
         .hidden(&[8])
         .epochs(300)
         .learning_rate(0.01)
-        .batch_size(16);
+        .batch_size(stratanet::train::BatchSize::Rows(16));
     let mut correct = 0;
     for (k, fold) in folds.iter().enumerate() {
         let fitted = fit(
@@ -54,7 +54,7 @@ fn stratified_ten_fold_accuracy() {
         )
         .unwrap();
         let test = data.select(&fold.test);
-        let predicted = fitted.model.predict_classes(test.x()).unwrap();
+        let predicted = fitted.model().predict_classes(test.x()).unwrap();
         correct += predicted
             .iter()
             .zip(test.labels().unwrap())

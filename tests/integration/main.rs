@@ -2,8 +2,10 @@
 //!
 //! Every check against an outside source names it beside the check.
 
+mod architecture;
 mod classic_problems;
 mod cli;
+mod cli_safety;
 mod csv_errors;
 mod demo_data;
 mod determinism;

@@ -93,7 +93,7 @@ fn a_model_save_killed_midway_leaves_the_previous_model() {
     .concat();
     killed_by_the_size_limit(&stratanet_limited(&dir, &big));
     assert_eq!(fs::read(dir.join("model.json")).unwrap(), before);
-    stratanet::model_file::load(dir.join("model.json")).unwrap();
+    stratanet::Model::load(dir.join("model.json")).unwrap();
     // The dead writer's partial temporary is left, hidden, beside it.
     let left = temporaries(&dir);
     assert_eq!(left.len(), 1, "{left:?}");

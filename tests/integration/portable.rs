@@ -45,11 +45,11 @@ fn portable_fit_is_the_same_on_one_and_two_threads() {
     };
     let a = pool(1).install(|| fit(&data, &options, &mut seeded_rng(2)).unwrap());
     let b = pool(2).install(|| fit(&data, &options, &mut seeded_rng(2)).unwrap());
-    assert_eq!(bits(&a.model.network), bits(&b.model.network));
-    assert_eq!(a.report, b.report);
+    assert_eq!(bits(a.model().network()), bits(b.model().network()));
+    assert_eq!(a.report(), b.report());
     // The mode is recorded in the model's options (and so in its file).
-    let json = serde_json::to_string(&a.model.options).unwrap();
-    assert!(json.contains("\"arithmetic\":\"portable\""), "{json}");
+    let json = a.model().to_json().unwrap();
+    assert!(json.contains("\"arithmetic\": \"portable\""), "{json}");
 }
 
 /// Plain row-major matrices for the reference.
@@ -180,7 +180,7 @@ fn portable_training_equals_the_naive_reference_loop_bit_for_bit() {
     let mut trained = net.clone();
     let options = TrainingOptions {
         epochs,
-        batch_size: batch,
+        batch_size: Some(stratanet::train::BatchSize::Rows(batch)),
         learning_rate: rate,
         optimiser: Optimiser::Sgd,
         loss: Some(Loss::SquaredError),

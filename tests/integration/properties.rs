@@ -9,7 +9,6 @@ use proptest::prelude::*;
 use proptest::test_runner::Config;
 use stratanet::data::{stratified_folds, Dataset, Scaler, Scaling};
 use stratanet::fit::{fit_with_seed, FitOptions};
-use stratanet::model_file;
 use stratanet::network::{Activation, Head, Init, Network};
 use stratanet::rng::{below, seeded_rng, uniform};
 use stratanet::train::{check_gradients, train_arrays, Loss, TrainingOptions};
@@ -62,10 +61,10 @@ proptest! {
     #[test]
     fn scaling_then_unscaling_returns_the_input(x in matrix(), minmax in any::<bool>()) {
         let kind = if minmax { Scaling::MinMax } else { Scaling::Standardise };
-        let s = Scaler::fit(kind, x.view(), None).unwrap();
-        let mut y = s.transform(x.view()).unwrap();
+        let s = Scaler::from_rows(kind, x.view(), None).unwrap();
+        let mut y = s.scaled(x.view()).unwrap();
         prop_assert!(y.iter().all(|v| v.is_finite()));
-        s.invert(y.view_mut()).unwrap();
+        s.unscale_in_place(y.view_mut()).unwrap();
         for j in 0..x.ncols() {
             let col = x.column(j);
             let big = col.iter().fold(0.0f64, |m, v| m.max(v.abs()));
@@ -217,16 +216,16 @@ proptest! {
             .hidden(&hidden)
             .activation(Activation::ALL[activation])
             .epochs(3)
-            .batch_size(8);
-        let model = fit_with_seed(&data, &options, seed).unwrap().model;
-        let text = model_file::to_json(&model).unwrap();
-        let back = model_file::from_json(&text, "roundtrip.json").unwrap();
+            .batch_size(stratanet::train::BatchSize::Rows(8));
+        let model = fit_with_seed(&data, &options, seed).unwrap().into_model();
+        let text = model.to_json().unwrap();
+        let back = stratanet::Model::from_json(&text, "roundtrip.json").unwrap();
         let probe = table(seed ^ 1, 25, 3, classes);
         let a = model.predict(probe.x()).unwrap();
         let b = back.predict(probe.x()).unwrap();
         prop_assert_eq!(a.iter().map(|v| v.to_bits()).collect::<Vec<_>>(),
                         b.iter().map(|v| v.to_bits()).collect::<Vec<_>>());
-        prop_assert_eq!(model_file::to_json(&back).unwrap(), text);
+        prop_assert_eq!(back.to_json().unwrap(), text);
     }
 
     /// Training visits rows in an order drawn from the seed. A table
@@ -251,7 +250,7 @@ proptest! {
         let y = Array2::from_shape_fn((rows, 1), |_| below(&mut rng, 2) as f64);
         let net = Network::new(&[3, hidden, 1], Activation::Tanh, Head::Logistic,
             Init::GlorotUniform, &mut rng).unwrap();
-        let options = TrainingOptions { epochs: 1, batch_size: batch.min(rows), learning_rate: 0.3, early_stopping: None, ..Default::default() };
+        let options = TrainingOptions { epochs: 1, batch_size: Some(stratanet::train::BatchSize::Rows(batch.min(rows))), learning_rate: 0.3, early_stopping: None, ..Default::default() };
         // The order the engine draws from this generator state.
         let shuffle_seed = stratanet::rng::child_seed(&mut rng);
         let mut order: Vec<usize> = (0..rows).collect();
@@ -268,7 +267,7 @@ proptest! {
         prop_assert_eq!(bits(&shuffled), bits(&in_order));
 
         // Full batch, several epochs, an arbitrary permutation.
-        let full = TrainingOptions { epochs: 20, batch_size: rows, shuffle: false, learning_rate: 0.3, early_stopping: None, ..Default::default() };
+        let full = TrainingOptions { epochs: 20, batch_size: Some(stratanet::train::BatchSize::Rows(rows)), shuffle: false, learning_rate: 0.3, early_stopping: None, ..Default::default() };
         let mut perm: Vec<usize> = (0..rows).collect();
         stratanet::rng::shuffle(&mut seeded_rng(seed ^ 7), &mut perm);
         let (qx, qy) = (x.select(ndarray::Axis(0), &perm), y.select(ndarray::Axis(0), &perm));
@@ -285,8 +284,8 @@ proptest! {
 
     /// Backpropagation agrees with five-point central differences
     /// (Abramowitz & Stegun 1964, 25.3.6) on random architectures, to the
-    /// relative error of 1e-7 that Stanford CS231n's notes ("Neural
-    /// Networks Part 3") call good in double precision; parameters whose
+    /// relative error of 1e-7 (common practice, no source, for double
+    /// precision); parameters whose
     /// steps cross a rectifier kink are left out by the check and counted.
     #[test]
     fn gradients_match_finite_differences_on_random_architectures(

@@ -3,7 +3,7 @@
 use crate::iris::iris;
 use ndarray::Axis;
 use stratanet::data::CsvOptions;
-use stratanet::fit_with_seed;
+use stratanet::fit::fit_with_seed;
 use stratanet::prelude::*;
 use stratanet::validate::{
     compare_configurations, cross_validate, cross_validate_with_plan, sweep, CvOptions, FoldPlan,
@@ -71,21 +71,26 @@ fn scaling_is_fitted_inside_each_fold() {
     };
     let plan = FoldPlan::draw(&data, &cv, &mut seeded_rng(8)).unwrap();
     let result = cross_validate_with_plan(&data, &quick(), &cv, &plan).unwrap();
-    let all_rows_mean = data.features.mean_axis(Axis(0)).unwrap();
+    let all_rows_mean = data.x().mean_axis(Axis(0)).unwrap();
     for (k, fold) in plan.folds.iter().enumerate() {
         let inside = fit_with_seed(&data.select(&fold.train), &quick(), plan.seeds[k]).unwrap();
-        let fitted_on: Vec<usize> = inside.split.train.iter().map(|&i| fold.train[i]).collect();
-        let expected_mean = data.select(&fitted_on).features.mean_axis(Axis(0)).unwrap();
+        let fitted_on: Vec<usize> = inside
+            .split()
+            .train
+            .iter()
+            .map(|&i| fold.train[i])
+            .collect();
+        let expected_mean = data.select(&fitted_on).x().mean_axis(Axis(0)).unwrap();
         for j in 0..data.n_features() {
-            assert!((inside.model.scaler.offset[j] - expected_mean[j]).abs() < 1e-12);
+            assert!((inside.model().scaler().offsets()[j] - expected_mean[j]).abs() < 1e-12);
         }
         assert_ne!(
-            inside.model.scaler.offset,
+            inside.model().scaler().offsets(),
             all_rows_mean.to_vec(),
             "fold {k}: same scaler as all rows"
         );
         let test = data.select(&fold.test);
-        let p = inside.model.predict_probabilities(test.x()).unwrap();
+        let p = inside.model().predict_probabilities(test.x()).unwrap();
         assert_eq!(
             p, result.folds[k].predictions,
             "fold {k}: the library did not use the inside-fold fit"
@@ -109,7 +114,7 @@ fn iris_repeated_ten_fold_accuracy() {
     let options = FitOptions::default()
         .hidden(&[8])
         .epochs(300)
-        .batch_size(16);
+        .batch_size(stratanet::train::BatchSize::Rows(16));
     let result = cross_validate(&data, &options, &cv, &mut seeded_rng(1936)).unwrap();
     let acc = result.metric(Metric::Accuracy).unwrap();
     assert_eq!(acc.values.len(), 30);
@@ -245,9 +250,9 @@ fn the_hold_out_set_counts_its_scorings() {
     assert_eq!(development.n_rows() + held.len(), data.n_rows());
     assert!(held.row_indices().iter().all(|&r| r < data.n_rows()));
     let fitted = fit(&development, &quick(), &mut seeded_rng(2)).unwrap();
-    let first = held.score(&fitted.model).unwrap();
+    let first = held.score(fitted.model()).unwrap();
     assert_eq!(first.times_scored, 1);
-    let second = held.score(&fitted.model).unwrap();
+    let second = held.score(fitted.model()).unwrap();
     assert_eq!(second.times_scored, 2);
     assert!(second.caution().contains("scored 2 times"));
 }
@@ -272,10 +277,10 @@ fn mcnemar_on_two_fitted_models() {
     )
     .unwrap();
     let test = data.select(held.row_indices());
-    let m = stratanet::validate::compare_models(&a.model, &b.model, &test).unwrap();
+    let m = stratanet::validate::compare_models(a.model(), b.model(), &test).unwrap();
     let (pa, pb) = (
-        a.model.predict_classes(test.x()).unwrap(),
-        b.model.predict_classes(test.x()).unwrap(),
+        a.model().predict_classes(test.x()).unwrap(),
+        b.model().predict_classes(test.x()).unwrap(),
     );
     let truth = test.labels().unwrap();
     let only_a = (0..truth.len())

@@ -30,7 +30,7 @@ fn mazur_data() -> (Array2<f64>, Array2<f64>) {
 fn one_step_options(epochs: usize, train_biases: bool) -> TrainingOptions {
     TrainingOptions {
         epochs,
-        batch_size: 1,
+        batch_size: Some(stratanet::train::BatchSize::Rows(1)),
         learning_rate: 0.5,
         optimiser: Optimiser::Sgd,
         loss: Some(Loss::SquaredError),
@@ -173,10 +173,10 @@ fn converge_logistic_unit(
     let options = FitOptions {
         hidden_layers: vec![],
         scaling,
-        validation_fraction: 0.0,
+        validation_share: Some(0.0),
         training: TrainingOptions {
             epochs,
-            batch_size: 23,
+            batch_size: Some(stratanet::train::BatchSize::Rows(23)),
             learning_rate: rate,
             optimiser: Optimiser::Nesterov { mu: momentum },
             early_stopping: None,
@@ -195,15 +195,15 @@ fn converge_logistic_unit(
 #[test]
 fn logistic_unit_is_logistic_regression_standardised() {
     let fitted = converge_logistic_unit(Scaling::Standardise, 3000, 0.5, 0.9);
-    let layer = &fitted.model.network.layers()[0];
+    let layer = &fitted.model().network().layers()[0];
     close(
-        fitted.model.scaler.offset[0],
+        fitted.model().scaler().offsets()[0],
         69.5652173913,
         1e-9,
         "mean temperature",
     );
     close(
-        fitted.model.scaler.scale[0],
+        fitted.model().scaler().scales()[0],
         6.9019599419,
         1e-9,
         "population SD",
@@ -215,10 +215,10 @@ fn logistic_unit_is_logistic_regression_standardised() {
         1e-4,
         "slope (standardised)",
     );
-    let x = fitted.model.scaler.transform(oring().x()).unwrap();
+    let x = fitted.model().scaler().scaled(oring().x()).unwrap();
     let y = Array2::from_shape_fn((23, 1), |(i, _)| DISTRESS[i] as f64);
     let loss = mean_loss(
-        &fitted.model.network,
+        fitted.model().network(),
         x.view(),
         y.view(),
         Loss::CrossEntropy,
@@ -234,7 +234,7 @@ fn logistic_unit_is_logistic_regression_raw() {
     // Raw temperatures make the problem ill-conditioned (condition number
     // near 5e5), so descent needs strong momentum and many epochs.
     let fitted = converge_logistic_unit(Scaling::None, 200_000, 0.001, 0.99);
-    let layer = &fitted.model.network.layers()[0];
+    let layer = &fitted.model().network().layers()[0];
     close(layer.biases[0], 15.042902, 1e-4, "intercept (raw)");
     close(layer.weights[[0, 0]], -0.232163, 1e-4, "slope (raw)");
 }

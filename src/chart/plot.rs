@@ -1,0 +1,13 @@
+//! The chart kinds on plain data (vectors, `ndarray` arrays and small input
+//! structs), for results that did not come from stratanet or for charts
+//! drawn differently. Stratanet's own results have chart methods instead
+//! (`fitted.learning_curves_chart()`, see [`chart`](super)).
+
+pub use super::compare::{cross_validation_comparison, ConfigurationScores};
+pub use super::confusion::confusion_matrix;
+pub use super::curves::{precision_recall_curves, roc_curves, Curve};
+pub use super::decision::{decision_map, ClassPoints, CONTOUR_STROKE, CONTOUR_WIDTH};
+pub use super::hidden::hidden_layer;
+pub use super::learning::{learning_curves, TrainingHistory, YScale};
+pub use super::network::{network_diagram, NetworkWeights, MAX_NODES_PER_LAYER};
+pub use super::pca::{principal_components_2, PrincipalComponents};
