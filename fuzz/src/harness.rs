@@ -254,8 +254,15 @@ fn fixed_plan() -> &'static (Dataset, SweepPlan) {
             ..CvOptions::default()
         };
         let mut rng = stratanet::rng::seeded_rng(11);
-        let plan = SweepPlan::new(&data, &base, &grid, &cv, Metric::Accuracy, &mut rng)
-            .expect("the fixed plan draws");
+        let plan = SweepPlan::new(
+            &data,
+            &base,
+            &grid.clone().into(),
+            &cv,
+            Metric::Accuracy,
+            &mut rng,
+        )
+        .expect("the fixed plan draws");
         (data, plan)
     })
 }

@@ -21,6 +21,7 @@ pub(crate) struct Cli {
 
 /// The subcommands.
 #[derive(Debug, Subcommand)]
+#[allow(clippy::large_enum_variant)] // parsed once per process
 pub(crate) enum Command {
     /// Train a network on a CSV file and save the model.
     #[command(
@@ -45,18 +46,24 @@ pub(crate) enum Command {
         after_help = "Example:\n  stratanet sweep demo-data/parts.csv --target verdict --drop part_id --grid-hidden 4,8,8-8 --grid-learning-rate 0.01,0.03\n\nRunning trials elsewhere (an array job):\n  stratanet sweep ... --write-plan plan.jsonl     # one JSON line per trial, folds and seeds fixed\n  stratanet sweep-trial plan.jsonl demo-data/parts.csv --trial 7 --out trial-7.json\n  stratanet sweep-merge plan.jsonl trial-*.json"
     )]
     Sweep(SweepArgs),
-    /// Run one trial of a sweep plan (for array jobs).
+    /// Run trials of a sweep plan (for array jobs): one, a list, or task I of N.
     #[command(
         name = "sweep-trial",
-        after_help = "Example:\n  stratanet sweep-trial plan.jsonl demo-data/parts.csv --trial 0 --out trial-0.json"
+        after_help = "Example:\n  stratanet sweep-trial plan.jsonl demo-data/parts.csv --trial 0 --out trial-0.json\n  stratanet sweep-trial plan.jsonl demo-data/parts.csv --task \"$SLURM_ARRAY_TASK_ID\" --tasks 20 --out-dir trials"
     )]
     SweepTrial(SweepTrialArgs),
-    /// Merge trial results into the sweep table.
+    /// Merge trial results into the sweep table (the same table and JSON as a local sweep).
     #[command(
         name = "sweep-merge",
-        after_help = "Example:\n  stratanet sweep-merge plan.jsonl trial-*.json"
+        after_help = "Example:\n  stratanet sweep-merge plan.jsonl trials/\n  stratanet sweep-merge plan.jsonl trials/ --data demo-data/parts.csv --out best-model.json"
     )]
     SweepMerge(SweepMergeArgs),
+    /// Say which trials of a plan are done, missing, failed or stale, and what to run again.
+    #[command(
+        name = "sweep-status",
+        after_help = "Example:\n  stratanet sweep-status plan.jsonl trials/ --tasks 20"
+    )]
+    SweepStatus(SweepStatusArgs),
     /// The whole job on the embedded demo data: fit, cross-validate, compare, chart.
     #[command(after_help = "Example:\n  stratanet demo --out stratanet-demo")]
     Demo(DemoArgs),
@@ -166,6 +173,63 @@ pub(crate) struct NetArgs {
 /// only the reason of a refusal (clap names the flag and the value).
 fn parsed<T: std::str::FromStr<Err = crate::Error>>(text: &str) -> Result<T, String> {
     text.parse::<T>().map_err(|e| super::errors::reason(&e))
+}
+
+/// Parses `LOW:HIGH` of numbers.
+fn float_range(value: &str) -> Result<(f64, f64), String> {
+    let (lo, hi) = value
+        .split_once(':')
+        .ok_or_else(|| "give LOW:HIGH, e.g. 0.0001:0.1".to_string())?;
+    let n = |t: &str| {
+        t.trim()
+            .parse::<f64>()
+            .ok()
+            .filter(|v| v.is_finite())
+            .ok_or_else(|| format!("\"{t}\" is not a number; give LOW:HIGH, e.g. 0.0001:0.1"))
+    };
+    Ok((n(lo)?, n(hi)?))
+}
+
+/// Parses `LOW:HIGH` of whole numbers.
+fn whole_range(value: &str) -> Result<(usize, usize), String> {
+    let (lo, hi) = value
+        .split_once(':')
+        .ok_or_else(|| "give LOW:HIGH, e.g. 4:64".to_string())?;
+    let n = |t: &str| {
+        t.trim()
+            .parse::<usize>()
+            .map_err(|_| format!("\"{t}\" is not a whole number; give LOW:HIGH, e.g. 4:64"))
+    };
+    Ok((n(lo)?, n(hi)?))
+}
+
+/// Trial indices as typed (`0-99,150`), sorted and distinct.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub(crate) struct Indices(pub Vec<usize>);
+
+/// Parses a list of indices: `0-99,150`.
+fn index_list(value: &str) -> Result<Indices, String> {
+    let mut out = Vec::new();
+    for part in value.split(',') {
+        let part = part.trim();
+        let bad = || format!("\"{part}\" is not an index or a range; give e.g. 0-99,150");
+        match part.split_once('-') {
+            Some((a, b)) => {
+                let (a, b) = (
+                    a.trim().parse::<usize>().map_err(|_| bad())?,
+                    b.trim().parse::<usize>().map_err(|_| bad())?,
+                );
+                if b < a || b - a > 10_000_000 {
+                    return Err(bad());
+                }
+                out.extend(a..=b);
+            }
+            None => out.push(part.parse::<usize>().map_err(|_| bad())?),
+        }
+    }
+    out.sort_unstable();
+    out.dedup();
+    Ok(Indices(out))
 }
 
 /// Hidden-layer widths as typed (`16`, `16,8`, `16-8`, `none`).
@@ -324,6 +388,27 @@ pub(crate) struct SweepArgs {
     /// Weight decays to try (comma-separated).
     #[arg(long, value_name = "LIST", value_delimiter = ',')]
     pub grid_weight_decay: Vec<f64>,
+    /// Random search: draw this many configurations from the --range-* options instead of a grid.
+    #[arg(long, value_name = "N", conflicts_with_all = ["grid_hidden", "grid_activation", "grid_learning_rate", "grid_batch_size", "grid_weight_decay"])]
+    pub random: Option<usize>,
+    /// Random search: learning rates drawn log-uniformly from LOW:HIGH.
+    #[arg(long, value_name = "LOW:HIGH", value_parser = float_range, requires = "random")]
+    pub range_learning_rate: Option<(f64, f64)>,
+    /// Random search: weight decays drawn log-uniformly from LOW:HIGH.
+    #[arg(long, value_name = "LOW:HIGH", value_parser = float_range, requires = "random")]
+    pub range_weight_decay: Option<(f64, f64)>,
+    /// Random search: L1 penalties drawn log-uniformly from LOW:HIGH.
+    #[arg(long, value_name = "LOW:HIGH", value_parser = float_range, requires = "random")]
+    pub range_l1_penalty: Option<(f64, f64)>,
+    /// Random search: hidden-layer widths drawn log-uniformly from LOW:HIGH (whole numbers).
+    #[arg(long, value_name = "LOW:HIGH", value_parser = whole_range, requires = "random")]
+    pub range_hidden: Option<(usize, usize)>,
+    /// Random search: batch sizes drawn log-uniformly from LOW:HIGH (whole numbers).
+    #[arg(long, value_name = "LOW:HIGH", value_parser = whole_range, requires = "random")]
+    pub range_batch_size: Option<(usize, usize)>,
+    /// Successive halving with this factor: every configuration gets a share of --epochs, the best 1/ETA go on with ETA times as many.
+    #[arg(long, value_name = "ETA")]
+    pub halving: Option<usize>,
     /// The metric that sorts the table [accuracy for classes, root_mean_squared_error for numbers].
     #[arg(long, value_name = "NAME", value_parser = parsed::<Metric>)]
     pub metric: Option<Metric>,
@@ -337,6 +422,24 @@ pub(crate) struct SweepArgs {
     pub output: OutputArgs,
 }
 
+/// Which trials a `sweep-trial` runs.
+#[derive(Debug, Args)]
+#[group(required = true, multiple = true)]
+pub(crate) struct TrialChoice {
+    /// One trial index (0-based).
+    #[arg(long, value_name = "INDEX", conflicts_with_all = ["trials", "task"])]
+    pub trial: Option<usize>,
+    /// A list of trial indices, e.g. 0-99,150.
+    #[arg(long, value_name = "LIST", value_parser = index_list, conflicts_with = "task")]
+    pub trials: Option<Indices>,
+    /// Task I of --tasks N runs trials I, I+N, I+2N, ... (an array job's task index).
+    #[arg(long, value_name = "I", requires = "tasks")]
+    pub task: Option<usize>,
+    /// How many tasks share the plan (keep it fixed when you rerun a task).
+    #[arg(long, value_name = "N", requires = "task")]
+    pub tasks: Option<usize>,
+}
+
 /// `stratanet sweep-trial`.
 #[derive(Debug, Args)]
 pub(crate) struct SweepTrialArgs {
@@ -344,13 +447,15 @@ pub(crate) struct SweepTrialArgs {
     pub plan: PathBuf,
     /// The same CSV file the plan was made from.
     pub data: PathBuf,
-    /// The trial index (0-based; an array job's task index).
-    #[arg(long, value_name = "INDEX")]
-    pub trial: usize,
-    /// Where to write the trial's result (JSON).
-    #[arg(long, value_name = "PATH")]
-    pub out: PathBuf,
-    /// Keep the per-epoch losses in the result file.
+    #[command(flatten)]
+    pub choice: TrialChoice,
+    /// Where to write the result of the one trial (JSON).
+    #[arg(long, value_name = "PATH", conflicts_with = "out_dir")]
+    pub out: Option<PathBuf>,
+    /// The folder for the results, one file per trial (trial-000007.json).
+    #[arg(long, value_name = "DIR")]
+    pub out_dir: Option<PathBuf>,
+    /// Keep the per-epoch losses in the result files.
     #[arg(long)]
     pub history: bool,
     #[command(flatten)]
@@ -362,9 +467,32 @@ pub(crate) struct SweepTrialArgs {
 pub(crate) struct SweepMergeArgs {
     /// The plan.
     pub plan: PathBuf,
-    /// The trial result files, in any order.
+    /// The trial result files, or folders of them, in any order.
     #[arg(required = true)]
     pub results: Vec<PathBuf>,
+    /// The CSV file the plan was made from (to refit the best with --out).
+    #[arg(long, value_name = "PATH", requires = "out")]
+    pub data: Option<PathBuf>,
+    /// Save the best configuration, refitted on all rows of --data, here.
+    #[arg(long, value_name = "PATH", requires = "data")]
+    pub out: Option<PathBuf>,
+    /// Successive halving: write the next round's plan here.
+    #[arg(long, value_name = "PATH")]
+    pub next_plan: Option<PathBuf>,
+    #[command(flatten)]
+    pub output: OutputArgs,
+}
+
+/// `stratanet sweep-status`.
+#[derive(Debug, Args)]
+pub(crate) struct SweepStatusArgs {
+    /// The plan.
+    pub plan: PathBuf,
+    /// The folder of trial results.
+    pub dir: PathBuf,
+    /// The number of array tasks the trials were spread over (--tasks of sweep-trial), to list tasks to resubmit.
+    #[arg(long, value_name = "N")]
+    pub tasks: Option<usize>,
     #[command(flatten)]
     pub output: OutputArgs,
 }
@@ -393,6 +521,7 @@ impl Command {
             Command::Sweep(a) => &a.output,
             Command::SweepTrial(a) => &a.output,
             Command::SweepMerge(a) => &a.output,
+            Command::SweepStatus(a) => &a.output,
             Command::Demo(a) => &a.output,
         }
     }

@@ -3,7 +3,7 @@
 
 use super::args::{
     CheckArgs, Cli, Command, CvArgs, DemoArgs, FitArgs, FoldArgs, NetArgs, PredictArgs, SweepArgs,
-    SweepMergeArgs, SweepTrialArgs, TableArgs,
+    SweepMergeArgs, SweepStatusArgs, SweepTrialArgs, TableArgs,
 };
 use super::charts;
 use super::paths::Outputs;
@@ -12,7 +12,7 @@ use crate::error::{Error, Result};
 use crate::fit::FitOptions;
 use crate::model_file::{FeatureOptions, TargetColumn};
 use crate::train::EarlyStopping;
-use crate::validate::{CvOptions, Grid, Metric};
+use crate::validate::{Candidates, CvOptions, Grid, Halving, Metric, RandomSearch, Search};
 use std::path::PathBuf;
 
 /// A command, checked and ready to run.
@@ -25,6 +25,7 @@ pub(crate) enum Job {
     WritePlan(SweepJob, PathBuf),
     SweepTrial(TrialJob),
     SweepMerge(MergeJob),
+    SweepStatus(StatusJob),
     Demo(DemoJob),
 }
 
@@ -63,7 +64,7 @@ pub(crate) struct SweepJob {
     pub data: PathBuf,
     pub table: CsvOptions,
     pub base: FitOptions,
-    pub grid: Grid,
+    pub search: Search,
     pub cv: CvOptions,
     /// `None`: accuracy for classes, root mean squared error for numbers.
     pub metric: Option<Metric>,
@@ -71,17 +72,42 @@ pub(crate) struct SweepJob {
     pub out: Option<PathBuf>,
 }
 
+/// Which trials a `sweep-trial` runs.
+pub(crate) enum Trials {
+    /// These indices.
+    List(Vec<usize>),
+    /// Task `task` of `tasks`: indices task, task + tasks, ...
+    Stride { task: usize, tasks: usize },
+}
+
+/// Where `sweep-trial` writes.
+pub(crate) enum TrialOut {
+    /// One trial's file.
+    File(PathBuf),
+    /// A folder of `trial-NNNNNN.json` files.
+    Folder(PathBuf),
+}
+
 pub(crate) struct TrialJob {
     pub plan: PathBuf,
     pub data: PathBuf,
-    pub trial: usize,
-    pub out: PathBuf,
+    pub trials: Trials,
+    pub out: TrialOut,
     pub history: bool,
 }
 
 pub(crate) struct MergeJob {
     pub plan: PathBuf,
     pub results: Vec<PathBuf>,
+    /// The table to refit on, and where to save the best model.
+    pub refit: Option<(PathBuf, PathBuf)>,
+    pub next_plan: Option<PathBuf>,
+}
+
+pub(crate) struct StatusJob {
+    pub plan: PathBuf,
+    pub dir: PathBuf,
+    pub tasks: Option<usize>,
 }
 
 pub(crate) struct DemoJob {
@@ -103,6 +129,7 @@ pub(crate) fn prepare(cli: Cli) -> Result<Job> {
         Command::Sweep(a) => sweep(a)?,
         Command::SweepTrial(a) => Job::SweepTrial(sweep_trial(a)?),
         Command::SweepMerge(a) => Job::SweepMerge(sweep_merge(a)?),
+        Command::SweepStatus(a) => Job::SweepStatus(sweep_status(a)?),
         Command::Demo(a) => Job::Demo(demo(a)?),
     })
 }
@@ -276,24 +303,44 @@ fn cv(a: CvArgs) -> Result<CvJob> {
     })
 }
 
-fn grid(a: &SweepArgs) -> Result<Grid> {
-    let mut g = Grid::default();
-    if let Some(l) = &a.grid_hidden {
-        g.hidden_layers = l.0.clone();
-    }
-    g.activations = a.grid_activation.clone();
-    g.learning_rates = a.grid_learning_rate.clone();
-    g.batch_sizes = a.grid_batch_size.clone();
-    g.weight_decays = a.grid_weight_decay.clone();
-    Ok(g)
+fn search(a: &SweepArgs) -> Result<Search> {
+    let candidates = match a.random {
+        Some(n) => Candidates::Random(RandomSearch {
+            configurations: n,
+            learning_rate: a.range_learning_rate,
+            weight_decay: a.range_weight_decay,
+            l1_penalty: a.range_l1_penalty,
+            hidden_width: a.range_hidden,
+            batch_size: a.range_batch_size,
+        }),
+        None => {
+            let mut g = Grid::default();
+            if let Some(l) = &a.grid_hidden {
+                g.hidden_layers = l.0.clone();
+            }
+            g.activations = a.grid_activation.clone();
+            g.learning_rates = a.grid_learning_rate.clone();
+            g.batch_sizes = a.grid_batch_size.clone();
+            g.weight_decays = a.grid_weight_decay.clone();
+            Candidates::Grid(g)
+        }
+    };
+    let search = Search {
+        candidates,
+        halving: a.halving.map(|eta| Halving { eta }),
+    };
+    search.validate()?;
+    Ok(search)
 }
 
 fn sweep(a: SweepArgs) -> Result<Job> {
     let base = fit_options(&a.net)?;
-    let grid = grid(&a)?;
-    for (name, o) in grid.configurations(&base)? {
-        o.validate()
-            .map_err(|e| e.context(format!("sweep configuration \"{name}\"")))?;
+    let search = search(&a)?;
+    if let Candidates::Grid(grid) = &search.candidates {
+        for (name, o) in grid.configurations(&base)? {
+            o.validate()
+                .map_err(|e| e.context(format!("sweep configuration \"{name}\"")))?;
+        }
     }
     let cv = fold_options(&a.folds)?;
     let mut outputs = Outputs::default();
@@ -308,7 +355,7 @@ fn sweep(a: SweepArgs) -> Result<Job> {
         data: a.data,
         table: table(a.table),
         base,
-        grid,
+        search,
         cv,
         metric: a.metric,
         seed: a.net.seed,
@@ -321,22 +368,96 @@ fn sweep(a: SweepArgs) -> Result<Job> {
 }
 
 fn sweep_trial(a: SweepTrialArgs) -> Result<TrialJob> {
-    Outputs::default()
-        .file("out", &a.out)
-        .check(&[&a.plan, &a.data])?;
+    let c = a.choice;
+    let trials = match (c.trial, c.trials, c.task, c.tasks) {
+        (Some(t), _, _, _) => Trials::List(vec![t]),
+        (None, Some(list), _, _) => Trials::List(list.0),
+        (None, None, Some(task), Some(tasks)) => {
+            if tasks == 0 || task >= tasks {
+                return Err(Error::option(
+                    "task",
+                    task,
+                    format!(
+                        "must be below {} ({}), counting from 0",
+                        crate::error::opt("tasks"),
+                        tasks
+                    ),
+                ));
+            }
+            Trials::Stride { task, tasks }
+        }
+        _ => unreachable!("clap requires one of --trial, --trials, --task with --tasks"),
+    };
+    let single = matches!(&trials, Trials::List(l) if l.len() == 1);
+    let out = match (a.out, a.out_dir) {
+        (Some(file), None) if single => TrialOut::File(file),
+        (Some(_), None) => {
+            return Err(Error::option(
+                "out",
+                "one file",
+                format!(
+                    "holds one trial, but several are asked for; give {} for one file per trial",
+                    crate::error::opt("out_dir")
+                ),
+            ))
+        }
+        (None, Some(dir)) => TrialOut::Folder(dir),
+        _ => {
+            return Err(Error::option(
+                "out_dir",
+                "missing",
+                format!(
+                    "say where the results go: {} for a folder (or {} for a single trial)",
+                    crate::error::opt("out_dir"),
+                    crate::error::opt("out")
+                ),
+            ))
+        }
+    };
+    match &out {
+        TrialOut::File(f) => Outputs::default().file("out", f),
+        TrialOut::Folder(d) => Outputs::default().folder("out_dir", d, Vec::new()),
+    }
+    .check(&[&a.plan, &a.data])?;
     Ok(TrialJob {
         plan: a.plan,
         data: a.data,
-        trial: a.trial,
-        out: a.out,
+        trials,
+        out,
         history: a.history,
     })
 }
 
 fn sweep_merge(a: SweepMergeArgs) -> Result<MergeJob> {
+    let mut inputs: Vec<&std::path::Path> = vec![&a.plan];
+    inputs.extend(a.results.iter().map(PathBuf::as_path));
+    if let Some(d) = &a.data {
+        inputs.push(d);
+    }
+    let mut outputs = Outputs::default();
+    if let Some(p) = &a.out {
+        outputs = outputs.file("out", p);
+    }
+    if let Some(p) = &a.next_plan {
+        outputs = outputs.file("next_plan", p);
+    }
+    outputs.check(&inputs)?;
     Ok(MergeJob {
         plan: a.plan,
         results: a.results,
+        refit: a.data.zip(a.out),
+        next_plan: a.next_plan,
+    })
+}
+
+fn sweep_status(a: SweepStatusArgs) -> Result<StatusJob> {
+    if a.tasks == Some(0) {
+        return Err(Error::option("tasks", 0, "must be at least 1"));
+    }
+    Ok(StatusJob {
+        plan: a.plan,
+        dir: a.dir,
+        tasks: a.tasks,
     })
 }
 

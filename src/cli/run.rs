@@ -5,7 +5,8 @@
 use super::charts;
 use super::output::{cv_json, cv_text, scores_json, scores_text, table_json, table_text, Outcome};
 use super::prepare::{
-    CheckJob, CvJob, DemoJob, FitJob, Job, MergeJob, PredictJob, SweepJob, TrialJob,
+    CheckJob, CvJob, DemoJob, FitJob, Job, MergeJob, PredictJob, StatusJob, SweepJob, TrialJob,
+    TrialOut, Trials,
 };
 use super::progress::Progress;
 use crate::data::{Dataset, Target};
@@ -13,8 +14,9 @@ use crate::error::{Error, Result};
 use crate::fit::{fit_checked, FitOptions, CAUTION};
 use crate::model_file;
 use crate::rng::{child_seed, seeded_rng};
-use crate::validate::sweep_files::{self, TrialResult};
-use crate::validate::{cv, sweep as sweeps, Metric, Scores, SweepPlan};
+use crate::validate::sweep_files::{self, index_list, PlanFile};
+use crate::validate::{cv, sweep as sweeps, Metric, Scores, Sweep, SweepPlan, SweepTable};
+use rayon::prelude::*;
 use serde_json::json;
 use std::borrow::Cow;
 use std::fmt::Write as _;
@@ -33,6 +35,7 @@ pub(crate) fn run(job: Job, progress: &Progress) -> Result<Outcome> {
         Job::WritePlan(j, path) => write_plan(j, &path),
         Job::SweepTrial(j) => sweep_trial(j),
         Job::SweepMerge(j) => sweep_merge(j),
+        Job::SweepStatus(j) => sweep_status(j),
         Job::Demo(j) => demo(j, progress),
     }
 }
@@ -203,129 +206,385 @@ fn metric_for(asked: Option<Metric>, data: &Dataset) -> Metric {
 /// The plan of a sweep job, drawn from the table.
 fn plan_of(j: &SweepJob, data: &Dataset) -> Result<SweepPlan> {
     let metric = metric_for(j.metric, data);
-    let configurations = j.grid.configurations(&j.base)?;
-    SweepPlan::new_checked(data, configurations, &j.cv, metric, &mut seeded_rng(j.seed))
+    SweepPlan::new_checked(
+        data,
+        &j.base,
+        &j.search,
+        &j.cv,
+        metric,
+        &mut seeded_rng(j.seed),
+    )
 }
 
-fn sweep(j: SweepJob, progress: &Progress) -> Result<Outcome> {
-    let data = j.table.read(&j.data)?;
-    let plan = plan_of(&j, &data)?;
-    let result = sweeps::sweep_plan_checked(&data, &plan, &progress.observer())?;
-    if let Some(out) = &j.out {
-        result.best.model().save(out)?;
-    }
-    let mut json = table_json(&result.table);
+/// The JSON and text of a sweep's table (the same from a local sweep and
+/// from merged trial files).
+fn sweep_outcome(
+    table: &SweepTable,
+    rounds: &[crate::validate::RoundSummary],
+    best_saved: Option<&std::path::Path>,
+) -> Outcome {
+    let mut json = table_json(table);
     json["command"] = json!("sweep");
-    json["best"] = json!(result.table.rows[0].name);
-    json["model"] = json!(j.out);
-    let mut text = format!(
-        "sweep of {} configurations on shared folds, sorted by {}\n",
-        result.table.rows.len(),
-        plan.metric.name()
+    json["best"] = json!(table.rows[0].name);
+    json["model"] = json!(best_saved);
+    let mut text = String::new();
+    if !rounds.is_empty() {
+        json["rounds"] = json!(rounds
+            .iter()
+            .map(|r| json!({
+                "round": r.round + 1,
+                "epochs": r.epochs,
+                "configurations": r.results.len(),
+                "kept": r.kept,
+                "results": r.results.iter().map(|(name, mean)| json!({"name": name, "mean": mean})).collect::<Vec<_>>(),
+            }))
+            .collect::<Vec<_>>());
+        for r in rounds {
+            let _ = writeln!(
+                text,
+                "round {}: {} configurations at {} epochs, kept the best {}",
+                r.round + 1,
+                r.results.len(),
+                r.epochs,
+                r.kept
+            );
+        }
+    }
+    let _ = writeln!(
+        text,
+        "sweep of {} configurations on shared folds, sorted by {}",
+        table.rows.len(),
+        table.metric.name()
     );
-    table_text(&result.table, &mut text);
-    if let Some(out) = &j.out {
+    table_text(table, &mut text);
+    if let Some(out) = best_saved {
         let _ = writeln!(
             text,
             "refitted the best on all rows and saved it to {}",
             out.display()
         );
     }
-    Ok(Outcome { json, text })
+    Outcome { json, text }
+}
+
+fn sweep(j: SweepJob, progress: &Progress) -> Result<Outcome> {
+    let data = j.table.read(&j.data)?;
+    let plan = plan_of(&j, &data)?;
+    let Sweep {
+        table,
+        rounds,
+        best,
+    } = sweeps::sweep_plan_checked(&data, plan, &progress.observer())?;
+    if let Some(out) = &j.out {
+        best.model().save(out)?;
+    }
+    Ok(sweep_outcome(&table, &rounds, j.out.as_deref()))
 }
 
 fn write_plan(j: SweepJob, path: &std::path::Path) -> Result<Outcome> {
     let data = j.table.read(&j.data)?;
     let plan = plan_of(&j, &data)?;
     sweep_files::write_plan(&plan, &j.table, path)?;
+    Ok(plan_outcome(&plan, path, &j.data))
+}
+
+/// What writing a plan prints: how many trials, and how to run them.
+fn plan_outcome(plan: &SweepPlan, path: &std::path::Path, data: &std::path::Path) -> Outcome {
     let trials = plan.trials().len();
-    let json = json!({"command": "sweep", "plan": path, "trials": trials, "configurations": plan.configurations.len()});
-    let text = format!(
-        "wrote a plan of {trials} trials ({} configurations x {} folds) to {}\nrun each with: stratanet sweep-trial {} {} --trial INDEX --out trial-INDEX.json",
+    let mut json = json!({"command": "sweep", "plan": path, "trials": trials, "configurations": plan.configurations.len()});
+    let mut text = String::new();
+    if let Some(r) = &plan.round {
+        json["round"] = json!(r.index + 1);
+        json["rounds"] = json!(r.total);
+        json["epochs"] = json!(plan.configurations[0].1.training.epochs);
+        let _ = writeln!(
+            text,
+            "successive halving, round {} of {}: {} configurations at {} epochs",
+            r.index + 1,
+            r.total,
+            plan.configurations.len(),
+            plan.configurations[0].1.training.epochs
+        );
+    }
+    let _ = write!(
+        text,
+        "wrote a plan of {trials} trials ({} configurations x {} folds) to {}\nrun them, e.g. as {trials} tasks: stratanet sweep-trial {} {} --trial INDEX --out-dir trials\nor in N tasks: stratanet sweep-trial {} {} --task I --tasks N --out-dir trials",
         plan.configurations.len(),
         plan.folds.folds.len(),
         path.display(),
         path.display(),
-        j.data.display()
+        data.display(),
+        path.display(),
+        data.display()
     );
-    Ok(Outcome { json, text })
+    Outcome { json, text }
 }
 
 fn sweep_trial(j: TrialJob) -> Result<Outcome> {
     let file = sweep_files::read_plan(&j.plan)?;
+    let all = file.plan.trials().len();
+    let indices: Vec<usize> = match &j.trials {
+        Trials::List(list) => {
+            if let Some(&bad) = list.iter().find(|&&t| t >= all) {
+                return Err(Error::option(
+                    "trial",
+                    bad,
+                    format!("must be below {all}, the number of trials in the plan"),
+                ));
+            }
+            list.clone()
+        }
+        Trials::Stride { task, tasks } => (*task..all).step_by(*tasks).collect(),
+    };
     let data = file.table.read(&j.data)?;
-    let result = file.plan.run_trial(&data, j.trial)?;
-    let test = data.select(&result.test_rows);
-    sweep_files::write_trial(
-        &file.checksum,
-        j.trial,
-        data.n_rows(),
-        data.class_names().unwrap_or(&[]),
-        test.target(),
-        &result,
-        j.history,
-        &j.out,
-    )?;
-    let json = json!({"command": "sweep-trial", "trial": j.trial, "out": j.out});
+    if data.fingerprint() != file.plan.table_fingerprint {
+        return Err(Error::input(
+            j.data.display().to_string(),
+            "is not the table the plan was made from (its fingerprint differs); run every trial on that same file",
+        ));
+    }
+    file.plan.check()?;
+    file.plan.folds.check(data.n_rows())?;
+    if let TrialOut::Folder(dir) = &j.out {
+        std::fs::create_dir_all(dir).map_err(|e| Error::io(dir, "creating the folder", e))?;
+    }
+    let path_of = |t: usize| match &j.out {
+        TrialOut::File(f) => f.clone(),
+        TrialOut::Folder(d) => d.join(sweep_files::trial_file_name(t)),
+    };
+    // Trials of one task run in parallel; each depends on its own seed only.
+    let outcomes: Vec<Result<Option<String>>> = indices
+        .par_iter()
+        .map(|&t| {
+            let path = path_of(t);
+            match file.plan.run_trial(&data, t) {
+                Ok(result) => {
+                    let test = data.select(&result.test_rows);
+                    sweep_files::write_trial(
+                        &file.checksum,
+                        t,
+                        data.n_rows(),
+                        data.class_names().unwrap_or(&[]),
+                        test.target(),
+                        &result,
+                        j.history,
+                        &path,
+                    )?;
+                    Ok(None)
+                }
+                Err(e) if !e.is_io() => {
+                    let reason = e.to_string();
+                    sweep_files::write_failed_trial(&file.checksum, t, &reason, &path)?;
+                    Ok(Some(format!("trial {t}: {reason}")))
+                }
+                Err(e) => Err(e),
+            }
+        })
+        .collect();
+    let mut failed = Vec::new();
+    for o in outcomes {
+        if let Some(f) = o? {
+            failed.push(f);
+        }
+    }
+    if !failed.is_empty() {
+        return Err(Error::input(
+            "sweep-trial",
+            format!(
+                "{} of {} trials failed and were recorded as failed ({})",
+                failed.len(),
+                indices.len(),
+                failed.join("; ")
+            ),
+        ));
+    }
+    let where_ = match &j.out {
+        TrialOut::File(f) => f.display().to_string(),
+        TrialOut::Folder(d) => d.display().to_string(),
+    };
+    let json = json!({"command": "sweep-trial", "trials": indices, "out": where_});
     Ok(Outcome {
         json,
-        text: format!("trial {} done; wrote {}", j.trial, j.out.display()),
+        text: format!(
+            "{} trial{} done ({}); wrote {}",
+            indices.len(),
+            if indices.len() == 1 { "" } else { "s" },
+            index_list(&indices),
+            where_
+        ),
     })
 }
 
+/// Every trial file named directly or found in a named folder.
+fn trial_files(results: &[std::path::PathBuf]) -> Result<Vec<std::path::PathBuf>> {
+    let mut files = Vec::new();
+    for r in results {
+        if r.is_dir() {
+            files.extend(sweep_files::json_files(r)?);
+        } else {
+            files.push(r.clone());
+        }
+    }
+    Ok(files)
+}
+
 fn sweep_merge(j: MergeJob) -> Result<Outcome> {
-    let file = sweep_files::read_plan(&j.plan)?;
-    let plan = &file.plan;
-    let trials = plan.trials().len();
-    let k = plan.folds.folds.len();
-    let mut results: Vec<Option<TrialResult>> = vec![None; trials];
-    for path in &j.results {
-        let mut r = sweep_files::read_trial(path, &file.checksum, trials)?;
-        let fold = r.trial % k;
-        if r.result.test_rows != plan.folds.folds[fold].test {
-            return Err(Error::input(
-                path.display().to_string(),
+    let file: PlanFile = sweep_files::read_plan(&j.plan)?;
+    let files = trial_files(&j.results)?;
+    let (table, _, _) = sweep_files::merge_trial_files(&file, &files)?;
+    if let Some(next) = file.plan.next_round(&table) {
+        let Some(path) = &j.next_plan else {
+            let r = next.round.as_ref().expect("a next round has one");
+            return Err(Error::option(
+                "next_plan",
+                "missing",
                 format!(
-                    "trial {} holds other held-out rows than the plan's fold {}; run the trial again",
-                    r.trial,
-                    fold + 1
+                    "this plan is round {} of {} of successive halving; give the path for round {}'s plan",
+                    r.index,
+                    r.total,
+                    r.index + 1
                 ),
             ));
-        }
-        r.result.index = fold;
-        let index = r.trial;
-        if results[index].is_some() {
-            return Err(Error::input(
-                path.display().to_string(),
-                format!("trial {index} appears twice"),
+        };
+        if j.refit.is_some() {
+            return Err(Error::option(
+                "out",
+                "given",
+                "the best configuration is known only after the last round of successive halving; refit when merging that round",
             ));
         }
-        results[index] = Some(r);
+        sweep_files::write_plan(&next, &file.table, path)?;
+        let mut outcome = plan_outcome(&next, path, std::path::Path::new("DATA"));
+        let mut text = String::new();
+        table_text(&table, &mut text);
+        outcome.text = format!(
+            "round {} merged:\n{text}{}",
+            next.round.as_ref().map_or(0, |r| r.index),
+            outcome.text
+        );
+        outcome.json["merged"] = table_json(&table);
+        return Ok(outcome);
     }
-    let missing: Vec<String> = results
-        .iter()
-        .enumerate()
-        .filter(|(_, r)| r.is_none())
-        .map(|(i, _)| i.to_string())
-        .collect();
-    if !missing.is_empty() {
-        return Err(Error::input(
-            "merging sweep trials",
-            format!("no results for trials {}", missing.join(", ")),
+    if j.next_plan.is_some() {
+        return Err(Error::option(
+            "next_plan",
+            "given",
+            "this plan is the last (or only) round; there is no next plan to write",
         ));
     }
-    let results: Vec<TrialResult> = results.into_iter().map(|r| r.expect("checked")).collect();
-    let rows = results[0].rows;
-    let classes = results[0].classes.clone();
-    let table = plan.merge(
-        rows,
-        &classes,
-        results.into_iter().map(|r| r.result).collect(),
-    )?;
-    let mut json = table_json(&table);
-    json["command"] = json!("sweep-merge");
-    let mut text = format!("merged {} trials\n", j.results.len());
-    table_text(&table, &mut text);
+    let rounds = file
+        .plan
+        .round
+        .as_ref()
+        .map(|r| r.history.clone())
+        .unwrap_or_default();
+    let saved = match &j.refit {
+        Some((data_path, out)) => {
+            let data = file.table.read(data_path)?;
+            if data.fingerprint() != file.plan.table_fingerprint {
+                return Err(Error::input(
+                    data_path.display().to_string(),
+                    "is not the table the plan was made from (its fingerprint differs)",
+                ));
+            }
+            let mut best = file.plan.refit_best(&data, &table)?;
+            let how = best
+                .model()
+                .provenance()
+                .selected_by
+                .clone()
+                .unwrap_or_default();
+            best.set_selected_by(format!(
+                "{how}; plan {} (SHA-256 {})",
+                j.plan.display(),
+                file.checksum
+            ));
+            best.model().save(out)?;
+            Some(out.as_path())
+        }
+        None => None,
+    };
+    Ok(sweep_outcome(&table, &rounds, saved))
+}
+
+fn sweep_status(j: StatusJob) -> Result<Outcome> {
+    let file = sweep_files::read_plan(&j.plan)?;
+    let files = sweep_files::json_files(&j.dir)?;
+    let status = sweep_files::trial_status(&file, &files);
+    let rerun = status.to_rerun();
+    let tasks: Option<Vec<usize>> = j.tasks.map(|n| {
+        let mut t: Vec<usize> = rerun.iter().map(|&i| i % n).collect();
+        t.sort_unstable();
+        t.dedup();
+        t
+    });
+    let trials = file.plan.trials().len();
+    let json = json!({
+        "command": "sweep-status",
+        "plan": j.plan,
+        "trials": trials,
+        "done": status.done.len(),
+        "missing": status.missing,
+        "failed": status.failed.iter().map(|(t, why)| json!({"trial": t, "reason": why})).collect::<Vec<_>>(),
+        "stale": status.stale,
+        "unreadable": status.unreadable.iter().map(|(p, why)| json!({"file": p, "reason": why})).collect::<Vec<_>>(),
+        "rerun_trials": index_list(&rerun),
+        "rerun_tasks": tasks.as_ref().map(|t| index_list(t)),
+    });
+    let mut text = format!(
+        "{} of {trials} trials done, {} missing, {} failed",
+        status.done.len(),
+        status.missing.len(),
+        status.failed.len()
+    );
+    if !status.stale.is_empty() {
+        let _ = write!(
+            text,
+            ", {} stale file{} (made for another plan: {})",
+            status.stale.len(),
+            if status.stale.len() == 1 { "" } else { "s" },
+            status
+                .stale
+                .iter()
+                .map(|p| p.display().to_string())
+                .collect::<Vec<_>>()
+                .join(", ")
+        );
+    }
+    text.push('\n');
+    for (t, why) in &status.failed {
+        let _ = writeln!(text, "  trial {t} failed: {why}");
+    }
+    for (p, why) in &status.unreadable {
+        let _ = writeln!(text, "  {} is not a trial result: {why}", p.display());
+    }
+    if rerun.is_empty() {
+        let _ = write!(
+            text,
+            "every trial is done; merge with: stratanet sweep-merge {} {}",
+            j.plan.display(),
+            j.dir.display()
+        );
+    } else {
+        match &tasks {
+            Some(t) => {
+                let _ = write!(
+                    text,
+                    "resubmit array tasks: --array={} (each reruns its trials with --tasks {})",
+                    index_list(t),
+                    j.tasks.unwrap_or(1)
+                );
+            }
+            None => {
+                let _ = write!(
+                    text,
+                    "run again: --trials {} (or as array tasks: --array={})",
+                    index_list(&rerun),
+                    index_list(&rerun)
+                );
+            }
+        }
+    }
     Ok(Outcome { json, text })
 }
 

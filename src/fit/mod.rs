@@ -71,6 +71,11 @@ impl Fitted {
         self.chosen_restart
     }
 
+    /// Records how a sweep chose the options (in the model's provenance).
+    pub(crate) fn set_selected_by(&mut self, how: String) {
+        self.model.provenance.selected_by = Some(how);
+    }
+
     /// The rows trained on and the validation rows (indices into the table
     /// given to [`fit`]; the validation rows chose the stopping epoch and
     /// the restart, so scores on them are not fresh).
@@ -224,6 +229,7 @@ pub(crate) fn fit_checked(
             best_validation_loss: report.best_validation_loss,
             stopped_early: report.stopped_early,
             final_training_loss: report.final_training_loss,
+            selected_by: None,
         },
     };
     Ok(Fitted {

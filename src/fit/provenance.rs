@@ -23,4 +23,8 @@ pub struct Provenance {
     pub stopped_early: bool,
     /// The final training loss of the kept restart.
     pub final_training_loss: f64,
+    /// How the options were chosen, when a sweep chose them (the search,
+    /// the metric, the configuration, and the plan file's checksum when the
+    /// sweep ran from one).
+    pub selected_by: Option<String>,
 }

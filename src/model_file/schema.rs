@@ -104,6 +104,9 @@ pub(super) struct ProvenanceV1 {
     pub best_validation_loss: Option<f64>,
     pub stopped_early: bool,
     pub final_training_loss: f64,
+    /// How a sweep chose the options (version 2 only; absent otherwise).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub selected_by: Option<String>,
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
@@ -304,6 +307,7 @@ impl File<OptionsV2> {
                 best_validation_loss: p.best_validation_loss,
                 stopped_early: p.stopped_early,
                 final_training_loss: p.final_training_loss,
+                selected_by: p.selected_by.clone(),
             },
             network,
         }
@@ -660,6 +664,7 @@ impl<O: OptionsSchema> File<O> {
                 best_validation_loss: p.best_validation_loss,
                 stopped_early: p.stopped_early,
                 final_training_loss: p.final_training_loss,
+                selected_by: p.selected_by,
             },
         })
     }

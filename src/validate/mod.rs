@@ -20,6 +20,7 @@ pub use stats::{corrected_resampled_t_test, mcnemar_test, McNemar, ResampledTTes
 mod compare;
 pub(crate) mod cv;
 mod holdout;
+mod search;
 pub(crate) mod sweep;
 pub mod sweep_files;
 
@@ -29,4 +30,7 @@ pub use cv::{
     MetricSummary, Scores, MAX_FOLD_FITS,
 };
 pub use holdout::{HoldOut, HoldOutScore};
-pub use sweep::{sweep, Grid, Sweep, SweepPlan, SweepRow, SweepTable, Trial, MAX_TRIALS};
+pub use search::{Candidates, Grid, Halving, RandomSearch, Search, MAX_CONFIGURATIONS};
+pub use sweep::{
+    sweep, Round, RoundSummary, Sweep, SweepPlan, SweepRow, SweepTable, Trial, MAX_TRIALS,
+};

@@ -21,7 +21,8 @@
 //! from another plan are refused when merging.
 
 use super::cv::{FoldPlan, FoldResult, Scores};
-use super::sweep::SweepPlan;
+use super::search::Halving;
+use super::sweep::{Round, RoundSummary, SweepPlan};
 use super::CvOptions;
 use crate::atomic::write_text;
 use crate::data::{CsvOptions, Fold, Missing, Target, TargetKind};
@@ -61,6 +62,34 @@ struct PlanBody {
     refit_seed: String,
     configurations: Vec<ConfigurationV2>,
     folds: Vec<FoldV2>,
+    /// With successive halving: this plan's round and the rounds before.
+    halving: Option<HalvingV2>,
+}
+
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct HalvingV2 {
+    eta: usize,
+    round: usize,
+    rounds: usize,
+    full_epochs: usize,
+    history: Vec<RoundV2>,
+}
+
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RoundV2 {
+    round: usize,
+    epochs: usize,
+    kept: usize,
+    results: Vec<ResultV2>,
+}
+
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct ResultV2 {
+    name: String,
+    mean: f64,
 }
 
 #[derive(Serialize, Deserialize)]
@@ -165,6 +194,29 @@ impl PlanBody {
                     test: f.test.clone(),
                 })
                 .collect(),
+            halving: plan.round.as_ref().map(|r| HalvingV2 {
+                eta: r.halving.eta,
+                round: r.index,
+                rounds: r.total,
+                full_epochs: r.full_epochs,
+                history: r
+                    .history
+                    .iter()
+                    .map(|h| RoundV2 {
+                        round: h.round,
+                        epochs: h.epochs,
+                        kept: h.kept,
+                        results: h
+                            .results
+                            .iter()
+                            .map(|(name, mean)| ResultV2 {
+                                name: name.clone(),
+                                mean: *mean,
+                            })
+                            .collect(),
+                    })
+                    .collect(),
+            }),
         }
     }
 
@@ -206,6 +258,37 @@ impl PlanBody {
             metric: self.metric.parse().map_err(|e: Error| e.to_string())?,
             refit_seed: read_seed(&self.refit_seed, "refit seed")?,
             table_fingerprint: self.table_fingerprint,
+            round: match self.halving {
+                None => None,
+                Some(h) => {
+                    let halving = Halving { eta: h.eta };
+                    halving.validate().map_err(|e| e.to_string())?;
+                    if h.rounds == 0 || h.round >= h.rounds || h.history.len() != h.round {
+                        return Err(format!(
+                            "\"halving\": round {} of {} with {} earlier rounds recorded does not add up",
+                            h.round,
+                            h.rounds,
+                            h.history.len()
+                        ));
+                    }
+                    Some(Round {
+                        index: h.round,
+                        total: h.rounds,
+                        halving,
+                        full_epochs: h.full_epochs,
+                        history: h
+                            .history
+                            .into_iter()
+                            .map(|r| RoundSummary {
+                                round: r.round,
+                                epochs: r.epochs,
+                                kept: r.kept,
+                                results: r.results.into_iter().map(|x| (x.name, x.mean)).collect(),
+                            })
+                            .collect(),
+                    })
+                }
+            },
         };
         Ok((plan, table))
     }
@@ -363,6 +446,18 @@ struct EpochV2 {
     learning_rate: f64,
 }
 
+/// A trial that could not finish (training diverged, say), as trial files
+/// record it, so that a status report and a merge can name it and why.
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct FailedTrialFile {
+    format: String,
+    format_version: u32,
+    plan_checksum: String,
+    trial: usize,
+    failed: String,
+}
+
 /// A trial's outcome read from a trial file.
 #[derive(Clone, Debug)]
 pub struct TrialResult {
@@ -448,14 +543,247 @@ pub fn write_trial(
     write_text(path, &text)
 }
 
+/// The name of trial `index`'s file in an output folder: `trial-000007.json`.
+pub fn trial_file_name(index: usize) -> String {
+    format!("trial-{index:06}.json")
+}
+
+/// Writes a record that trial `trial` failed, with the reason, atomically.
+///
+/// # Errors
+/// The file cannot be written.
+pub fn write_failed_trial(
+    plan_checksum: &str,
+    trial: usize,
+    reason: &str,
+    path: &Path,
+) -> Result<()> {
+    let file = FailedTrialFile {
+        format: TRIAL_FORMAT.into(),
+        format_version: FILE_VERSION,
+        plan_checksum: plan_checksum.to_string(),
+        trial,
+        failed: reason.to_string(),
+    };
+    let mut text = serde_json::to_string(&file).expect("trial records serialise");
+    text.push('\n');
+    write_text(path, &text)
+}
+
+/// What a trial file says.
+#[derive(Clone, Debug)]
+pub enum TrialOutcome {
+    /// The trial ran; its result.
+    Done(Box<TrialResult>),
+    /// The trial failed; its index and the reason.
+    Failed(usize, String),
+}
+
 /// Reads a trial file made for the plan with checksum `plan_checksum` and
 /// `trials` trials.
 ///
 /// # Errors
 /// A missing or foreign file, or one made for another plan.
-pub fn read_trial(path: &Path, plan_checksum: &str, trials: usize) -> Result<TrialResult> {
+pub fn read_trial(path: &Path, plan_checksum: &str, trials: usize) -> Result<TrialOutcome> {
     let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, "reading", e))?;
-    parse_trial(&text, path, plan_checksum, trials)
+    if let Ok(failed) = serde_json::from_str::<FailedTrialFile>(&text) {
+        if failed.format == TRIAL_FORMAT
+            && failed.format_version == FILE_VERSION
+            && failed.plan_checksum == plan_checksum
+            && failed.trial < trials
+        {
+            return Ok(TrialOutcome::Failed(failed.trial, failed.failed));
+        }
+    }
+    parse_trial(&text, path, plan_checksum, trials).map(|r| TrialOutcome::Done(Box::new(r)))
+}
+
+/// Every `.json` file in `dir`, sorted by name.
+///
+/// # Errors
+/// The folder cannot be read.
+pub fn json_files(dir: &Path) -> Result<Vec<std::path::PathBuf>> {
+    let entries = std::fs::read_dir(dir).map_err(|e| Error::io(dir, "reading the folder", e))?;
+    let mut files: Vec<std::path::PathBuf> = entries
+        .filter_map(|e| e.ok().map(|e| e.path()))
+        .filter(|p| p.is_file() && p.extension().is_some_and(|x| x == "json"))
+        .collect();
+    files.sort();
+    Ok(files)
+}
+
+/// Where each trial of a plan stands, from a set of trial files.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct TrialStatus {
+    /// Trials with a result for this plan.
+    pub done: Vec<usize>,
+    /// Trials recorded as failed, with the reason.
+    pub failed: Vec<(usize, String)>,
+    /// Trials with no file at all.
+    pub missing: Vec<usize>,
+    /// Files made for another plan (or another version): left out.
+    pub stale: Vec<std::path::PathBuf>,
+    /// Files that are not readable trial results, with the reason.
+    pub unreadable: Vec<(std::path::PathBuf, String)>,
+}
+
+impl TrialStatus {
+    /// The trials to run again: missing and failed, sorted.
+    pub fn to_rerun(&self) -> Vec<usize> {
+        let mut v: Vec<usize> = self
+            .missing
+            .iter()
+            .copied()
+            .chain(self.failed.iter().map(|(t, _)| *t))
+            .collect();
+        v.sort_unstable();
+        v.dedup();
+        v
+    }
+}
+
+/// Classifies every trial of `plan` from the trial files `files` (a file
+/// for another plan is stale; a trial with two files counts once).
+pub fn trial_status(plan: &PlanFile, files: &[std::path::PathBuf]) -> TrialStatus {
+    let trials = plan.plan.trials().len();
+    let mut seen = vec![false; trials];
+    let mut status = TrialStatus::default();
+    for path in files {
+        match read_trial(path, &plan.checksum, trials) {
+            Ok(TrialOutcome::Done(r)) => {
+                if !seen[r.trial] {
+                    seen[r.trial] = true;
+                    status.done.push(r.trial);
+                }
+            }
+            Ok(TrialOutcome::Failed(t, why)) => {
+                if !seen[t] {
+                    seen[t] = true;
+                    status.failed.push((t, why));
+                }
+            }
+            Err(e) => {
+                let text = std::fs::read_to_string(path).unwrap_or_default();
+                let other_plan = serde_json::from_str::<serde_json::Value>(&text)
+                    .ok()
+                    .filter(|v| v.get("format").and_then(|f| f.as_str()) == Some(TRIAL_FORMAT))
+                    .is_some_and(|v| {
+                        v.get("plan_checksum").and_then(|c| c.as_str()) != Some(&plan.checksum)
+                            || v.get("format_version").and_then(|x| x.as_u64())
+                                != Some(u64::from(FILE_VERSION))
+                    });
+                if other_plan {
+                    status.stale.push(path.clone());
+                } else {
+                    status.unreadable.push((path.clone(), e.to_string()));
+                }
+            }
+        }
+    }
+    status.done.sort_unstable();
+    status.failed.sort_by_key(|(t, _)| *t);
+    status.missing = (0..trials).filter(|&t| !seen[t]).collect();
+    status
+}
+
+/// Merges the trial files of `plan` into its table, checking that every
+/// trial is there once, none failed, and each held out the plan's rows.
+/// Returns the table, the table's row count and its class names.
+///
+/// # Errors
+/// A missing, failed or repeated trial (all named), a file for another
+/// plan, or one whose held-out rows differ from the plan's.
+pub fn merge_trial_files(
+    plan: &PlanFile,
+    files: &[std::path::PathBuf],
+) -> Result<(super::SweepTable, usize, Vec<String>)> {
+    let p = &plan.plan;
+    let trials = p.trials().len();
+    let k = p.folds.folds.len();
+    let mut results: Vec<Option<Box<TrialResult>>> = vec![None; trials];
+    let mut failed = Vec::new();
+    for path in files {
+        match read_trial(path, &plan.checksum, trials)? {
+            TrialOutcome::Failed(t, why) => failed.push(format!("trial {t}: {why}")),
+            TrialOutcome::Done(mut r) => {
+                let fold = r.trial % k;
+                if r.result.test_rows != p.folds.folds[fold].test {
+                    return Err(Error::input(
+                        path.display().to_string(),
+                        format!(
+                            "trial {} holds other held-out rows than the plan's fold {}; run the trial again",
+                            r.trial,
+                            fold + 1
+                        ),
+                    ));
+                }
+                r.result.index = fold;
+                let index = r.trial;
+                if results[index].is_some() {
+                    return Err(Error::input(
+                        path.display().to_string(),
+                        format!("trial {index} appears twice; merge one file per trial"),
+                    ));
+                }
+                results[index] = Some(r);
+            }
+        }
+    }
+    if !failed.is_empty() {
+        return Err(Error::input(
+            "merging sweep trials",
+            format!(
+                "{} failed ({}); fix the cause and run them again",
+                if failed.len() == 1 {
+                    "a trial"
+                } else {
+                    "trials"
+                },
+                failed.join("; ")
+            ),
+        ));
+    }
+    let missing: Vec<usize> = (0..trials).filter(|&t| results[t].is_none()).collect();
+    if !missing.is_empty() {
+        return Err(Error::input(
+            "merging sweep trials",
+            format!(
+                "no results for trials {}; run them (sweep-trial --trials {}) and merge again",
+                index_list(&missing),
+                index_list(&missing)
+            ),
+        ));
+    }
+    let results: Vec<TrialResult> = results.into_iter().map(|r| *r.expect("checked")).collect();
+    let rows = results[0].rows;
+    let classes = results[0].classes.clone();
+    let table = p.merge(
+        rows,
+        &classes,
+        results.into_iter().map(|r| r.result).collect(),
+    )?;
+    Ok((table, rows, classes))
+}
+
+/// Indices as a compact list: `0-3,7,9-10`.
+pub fn index_list(indices: &[usize]) -> String {
+    let mut parts = Vec::new();
+    let mut i = 0;
+    while i < indices.len() {
+        let start = indices[i];
+        let mut end = start;
+        while i + 1 < indices.len() && indices[i + 1] == end + 1 {
+            i += 1;
+            end = indices[i];
+        }
+        parts.push(if start == end {
+            start.to_string()
+        } else {
+            format!("{start}-{end}")
+        });
+        i += 1;
+    }
+    parts.join(",")
 }
 
 /// Parses the text of a trial file (see [`read_trial`]).

@@ -253,10 +253,7 @@ fn sweep_plan_trials_and_merge_equal_a_local_sweep() {
     args.extend(files.iter().map(String::as_str));
     args.push("--json");
     let merged = json(&stratanet(&args));
-    assert_eq!(
-        merged["rows"], local["rows"],
-        "merged trials differ from the local sweep"
-    );
+    assert_eq!(merged, local, "merged trials differ from the local sweep");
 }
 
 #[test]
@@ -331,6 +328,7 @@ fn usage_errors_exit_2_and_help_exits_0() {
         "sweep",
         "sweep-trial",
         "sweep-merge",
+        "sweep-status",
         "demo",
     ] {
         let out = stratanet(&[sub, "--help"]);

@@ -184,6 +184,10 @@ fn write_seeds() {
         "sweep demo-data/parts.csv --target verdict --drop part_id --grid-hidden 4,12,12-6 --grid-learning-rate 0.003,0.01",
         "sweep data.csv --target y --grid-hidden 8,16,32 --write-plan plan.jsonl",
         "sweep-trial plan.jsonl data.csv --trial 3 --out trial-3.json",
+        "sweep-trial plan.jsonl data.csv --task 2 --tasks 20 --out-dir trials",
+        "sweep-merge plan.jsonl trials --data data.csv --out best-model.json",
+        "sweep-status plan.jsonl trials --tasks 20",
+        "sweep data.csv --target y --random 20 --range-learning-rate 0.0001:0.1 --range-hidden 4:64 --halving 3",
         "fit data.csv --target y --learning-rate 0 --epochs 10",
         "demo --seed 7 --json",
     ];

@@ -271,7 +271,7 @@ fn edited_sweep_plans_are_refused_before_any_trial_runs() {
     let plan = SweepPlan::new(
         &data,
         &quick(),
-        &grid,
+        &grid.clone().into(),
         &cv,
         Metric::Accuracy,
         &mut seeded_rng(1),

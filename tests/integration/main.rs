@@ -18,5 +18,6 @@ mod nothing_lost;
 mod portable;
 mod properties;
 mod support;
+mod sweeps;
 mod validation;
 mod worked_examples;

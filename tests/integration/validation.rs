@@ -191,7 +191,7 @@ fn sweep_is_sorted_and_distributed_trials_merge_to_the_same_table() {
     let local = sweep(
         &data,
         &base,
-        &grid,
+        &grid.clone().into(),
         &cv,
         Metric::Accuracy,
         &mut seeded_rng(12),
@@ -206,7 +206,7 @@ fn sweep_is_sorted_and_distributed_trials_merge_to_the_same_table() {
     let plan = SweepPlan::new(
         &data,
         &base,
-        &grid,
+        &grid.clone().into(),
         &cv,
         Metric::Accuracy,
         &mut seeded_rng(12),
@@ -231,7 +231,7 @@ fn sweep_is_sorted_and_distributed_trials_merge_to_the_same_table() {
     let e = sweep(
         &data,
         &base,
-        &grid,
+        &grid.clone().into(),
         &cv,
         Metric::RSquared,
         &mut seeded_rng(12),
