@@ -378,11 +378,11 @@ impl CrossValidation {
         );
         let mut h = table(
             &caption,
-            &["metric", "mean", "sd", "95% interval (t)", "per fold"],
+            &["metric", "mean", "sd", "95% interval", "per fold"],
             &rows,
         );
         let mut n = vec![
-            "The interval treats folds as independent; they share training rows, so it is too narrow (Bengio & Grandvalet 2004)."
+            "The interval allows for the folds sharing training rows (corrected resampled variance, Nadeau & Bengio 2003) and stays within each metric's range."
                 .to_string(),
         ];
         n.extend(self.notes());
@@ -414,7 +414,7 @@ impl Comparison {
         }
         let mut h = table(
             &format!("{} over shared folds", self.metric.name()),
-            &["configuration", "mean", "sd", "95% interval (t)"],
+            &["configuration", "mean", "sd", "95% interval"],
             &rows,
         );
         let t = &self.test;
@@ -465,7 +465,7 @@ impl SweepTable {
             .collect();
         let mut table_html = table(
             &format!("Sweep sorted by {}", self.metric.name()),
-            &["rank", "configuration", "mean", "sd", "95% interval (t)"],
+            &["rank", "configuration", "mean", "sd", "95% interval"],
             &rows,
         );
         // Left-align the configuration column's text as well.

@@ -61,7 +61,7 @@ pub(crate) fn cv_json(cv: &CrossValidation) -> Value {
 pub(crate) fn cv_text(cv: &CrossValidation, out: &mut String) {
     let _ = writeln!(
         out,
-        "  {:<26} {:>8} {:>8}   95% interval (t over {} folds)",
+        "  {:<26} {:>8} {:>8}   95% interval ({} folds, corrected for shared training rows)",
         "metric",
         "mean",
         "sd",

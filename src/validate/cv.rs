@@ -13,11 +13,10 @@
 //! absent from a fold's training rows is a column of zeros there.)
 //!
 //! Each metric is summarised over folds as mean, sample standard deviation
-//! and a 95% interval `mean +- t_{0.975, k-1} sd / sqrt(k)` (Student t over
-//! folds). Caveat: folds share training rows, so their scores are not
-//! independent and this interval is too narrow; there is no unbiased
-//! estimator of the variance of k-fold cross-validation (Bengio & Grandvalet,
-//! JMLR 5, 2004). Read it as a guide to the spread, not as a guarantee.
+//! and a 95% interval that allows for the overlap of the folds' training
+//! sets and stays inside the metric's range (the corrected resampled
+//! variance of Nadeau & Bengio 2003, applied to repeated k-fold as Bouckaert
+//! & Frank 2004; see [`Summary`] for the formula and the coverage check).
 
 use super::metrics::{ClassificationMetrics, Metric, RegressionMetrics};
 use super::stats::Summary;
@@ -518,6 +517,9 @@ pub(crate) fn summarise_folds(folds: &[FoldResult]) -> Result<Vec<MetricSummary>
     let Some(first) = folds.first() else {
         return Err(Error::input("cross-validation", "there are no folds"));
     };
+    let k = folds.len() as f64;
+    let n_train = folds.iter().map(|f| f.train_rows as f64).sum::<f64>() / k;
+    let n_test = folds.iter().map(|f| f.test_rows.len() as f64).sum::<f64>() / k;
     first
         .scores
         .metrics()
@@ -529,7 +531,7 @@ pub(crate) fn summarise_folds(folds: &[FoldResult]) -> Result<Vec<MetricSummary>
                 .collect::<Result<Vec<f64>>>()?;
             Ok(MetricSummary {
                 metric,
-                summary: Summary::from_values(&values)?,
+                summary: Summary::for_cross_validation(&values, n_train, n_test, metric.range())?,
                 values,
             })
         })

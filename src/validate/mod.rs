@@ -16,7 +16,10 @@ pub mod metrics;
 pub mod stats;
 
 pub use metrics::{ClassificationMetrics, ConfusionMatrix, Metric, RegressionMetrics, Score};
-pub use stats::{corrected_resampled_t_test, mcnemar_test, McNemar, ResampledTTest, Summary};
+pub use stats::{
+    corrected_resampled_t_test, mcnemar_test, IntervalMethod, McNemar, Range, ResampledTTest,
+    Summary,
+};
 mod compare;
 pub(crate) mod cv;
 mod holdout;

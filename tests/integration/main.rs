@@ -6,6 +6,7 @@ mod architecture;
 mod classic_problems;
 mod cli;
 mod cli_safety;
+mod coverage;
 mod csv_errors;
 mod demo_data;
 mod determinism;

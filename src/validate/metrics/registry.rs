@@ -120,6 +120,25 @@ impl Metric {
             .join(", ")
     }
 
+    /// The values the metric can take (intervals stay inside them).
+    pub fn range(self) -> crate::validate::stats::Range {
+        use crate::validate::stats::Range;
+        match self {
+            Metric::Accuracy
+            | Metric::BalancedAccuracy
+            | Metric::MacroF1
+            | Metric::WeightedF1
+            | Metric::Auc => Range::Unit,
+            Metric::Mcc | Metric::Kappa => Range::Signed,
+            Metric::RSquared => Range::AtMostOne,
+            Metric::LogLoss
+            | Metric::Brier
+            | Metric::MeanSquaredError
+            | Metric::RootMeanSquaredError
+            | Metric::MeanAbsoluteError => Range::NonNegative,
+        }
+    }
+
     /// Is a higher value better? (False for the losses and errors.)
     pub fn higher_is_better(self) -> bool {
         !matches!(

@@ -1,4 +1,3 @@
-
 use super::score::*;
 use super::*;
 use crate::rng::{below, seeded_rng};
