@@ -584,9 +584,12 @@ pub enum Range {
     Unbounded,
 }
 
+/// A map of one number to another.
+type Map = fn(f64) -> f64;
+
 impl Range {
     /// The scale `g`, its derivative `g'` and the inverse, as in [`Summary`].
-    fn scale(self) -> (fn(f64) -> f64, fn(f64) -> f64, fn(f64) -> f64) {
+    fn scale(self) -> (Map, Map, Map) {
         match self {
             Range::Unit => (
                 |m| (m / (1.0 - m)).ln(),
