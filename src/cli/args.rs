@@ -46,6 +46,11 @@ pub(crate) enum Command {
         after_help = "Example:\n  stratanet sweep demo-data/parts.csv --target verdict --drop part_id --grid-hidden 4,8,8-8 --grid-learning-rate 0.01,0.03\n\nRunning trials elsewhere (an array job):\n  stratanet sweep ... --write-plan plan.jsonl     # one JSON line per trial, folds and seeds fixed\n  stratanet sweep-trial plan.jsonl demo-data/parts.csv --trial 7 --out trial-7.json\n  stratanet sweep-merge plan.jsonl trial-*.json"
     )]
     Sweep(SweepArgs),
+    /// Estimate a tuned procedure honestly: a sweep inside each outer fold (nested cross-validation).
+    #[command(
+        after_help = "Example:\n  stratanet nested demo-data/parts.csv --target verdict --drop part_id --grid-hidden 4,12 --grid-learning-rate 0.003,0.01 --folds 5 --inner-folds 3"
+    )]
+    Nested(NestedArgs),
     /// Run trials of a sweep plan (for array jobs): one, a list, or task I of N.
     #[command(
         name = "sweep-trial",
@@ -373,6 +378,42 @@ pub(crate) struct SweepArgs {
     pub net: NetArgs,
     #[command(flatten)]
     pub folds: FoldArgs,
+    #[command(flatten)]
+    pub search: SearchArgs,
+    /// The metric that sorts the table [accuracy for classes, root_mean_squared_error for numbers].
+    #[arg(long, value_name = "NAME", value_parser = parsed::<Metric>)]
+    pub metric: Option<Metric>,
+    /// Write the plan (one JSON line per trial after a header line) and stop.
+    #[arg(long, value_name = "PATH", conflicts_with = "out")]
+    pub write_plan: Option<PathBuf>,
+    /// Save the best configuration, refitted on all rows, here.
+    #[arg(long, value_name = "PATH")]
+    pub out: Option<PathBuf>,
+    #[command(flatten)]
+    pub output: OutputArgs,
+}
+
+/// Which trials a `sweep-trial` runs.
+#[derive(Debug, Args)]
+#[group(required = true, multiple = true)]
+pub(crate) struct TrialChoice {
+    /// One trial index (0-based).
+    #[arg(long, value_name = "INDEX", conflicts_with_all = ["trials", "task"])]
+    pub trial: Option<usize>,
+    /// A list of trial indices, e.g. 0-99,150.
+    #[arg(long, value_name = "LIST", value_parser = index_list, conflicts_with = "task")]
+    pub trials: Option<Indices>,
+    /// Task I of --tasks N runs trials I, I+N, I+2N, ... (an array job's task index).
+    #[arg(long, value_name = "I", requires = "tasks")]
+    pub task: Option<usize>,
+    /// How many tasks share the plan (keep it fixed when you rerun a task).
+    #[arg(long, value_name = "N", requires = "task")]
+    pub tasks: Option<usize>,
+}
+
+/// What a sweep (or a nested cross-validation's sweeps) tries.
+#[derive(Debug, Args)]
+pub(crate) struct SearchArgs {
     /// Hidden layouts to try, comma-separated, layers joined by '-' (e.g. 4,8,8-8; "none" for no hidden layer).
     #[arg(long, value_name = "LIST", value_parser = layouts)]
     pub grid_hidden: Option<Layouts>,
@@ -409,35 +450,30 @@ pub(crate) struct SweepArgs {
     /// Successive halving with this factor: every configuration gets a share of --epochs, the best 1/ETA go on with ETA times as many.
     #[arg(long, value_name = "ETA")]
     pub halving: Option<usize>,
-    /// The metric that sorts the table [accuracy for classes, root_mean_squared_error for numbers].
-    #[arg(long, value_name = "NAME", value_parser = parsed::<Metric>)]
-    pub metric: Option<Metric>,
-    /// Write the plan (one JSON line per trial after a header line) and stop.
-    #[arg(long, value_name = "PATH", conflicts_with = "out")]
-    pub write_plan: Option<PathBuf>,
-    /// Save the best configuration, refitted on all rows, here.
-    #[arg(long, value_name = "PATH")]
-    pub out: Option<PathBuf>,
-    #[command(flatten)]
-    pub output: OutputArgs,
 }
 
-/// Which trials a `sweep-trial` runs.
+/// `stratanet nested`.
 #[derive(Debug, Args)]
-#[group(required = true, multiple = true)]
-pub(crate) struct TrialChoice {
-    /// One trial index (0-based).
-    #[arg(long, value_name = "INDEX", conflicts_with_all = ["trials", "task"])]
-    pub trial: Option<usize>,
-    /// A list of trial indices, e.g. 0-99,150.
-    #[arg(long, value_name = "LIST", value_parser = index_list, conflicts_with = "task")]
-    pub trials: Option<Indices>,
-    /// Task I of --tasks N runs trials I, I+N, I+2N, ... (an array job's task index).
-    #[arg(long, value_name = "I", requires = "tasks")]
-    pub task: Option<usize>,
-    /// How many tasks share the plan (keep it fixed when you rerun a task).
-    #[arg(long, value_name = "N", requires = "task")]
-    pub tasks: Option<usize>,
+pub(crate) struct NestedArgs {
+    /// The CSV file.
+    pub data: PathBuf,
+    #[command(flatten)]
+    pub table: TableArgs,
+    #[command(flatten)]
+    pub net: NetArgs,
+    /// Outer folds (and --repeats of them).
+    #[command(flatten)]
+    pub folds: FoldArgs,
+    /// Folds of the sweep inside each outer training set.
+    #[arg(long, value_name = "J", default_value_t = 3)]
+    pub inner_folds: usize,
+    #[command(flatten)]
+    pub search: SearchArgs,
+    /// The metric the inner sweeps choose by [accuracy for classes, root_mean_squared_error for numbers].
+    #[arg(long, value_name = "NAME", value_parser = parsed::<Metric>)]
+    pub metric: Option<Metric>,
+    #[command(flatten)]
+    pub output: OutputArgs,
 }
 
 /// `stratanet sweep-trial`.
@@ -519,6 +555,7 @@ impl Command {
             Command::Predict(a) => &a.output,
             Command::Cv(a) => &a.output,
             Command::Sweep(a) => &a.output,
+            Command::Nested(a) => &a.output,
             Command::SweepTrial(a) => &a.output,
             Command::SweepMerge(a) => &a.output,
             Command::SweepStatus(a) => &a.output,

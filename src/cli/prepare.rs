@@ -2,8 +2,8 @@
 //! [`Job`] before any work starts (see the module docs of `cli`).
 
 use super::args::{
-    CheckArgs, Cli, Command, CvArgs, DemoArgs, FitArgs, FoldArgs, NetArgs, PredictArgs, SweepArgs,
-    SweepMergeArgs, SweepStatusArgs, SweepTrialArgs, TableArgs,
+    CheckArgs, Cli, Command, CvArgs, DemoArgs, FitArgs, FoldArgs, NestedArgs, NetArgs, PredictArgs,
+    SearchArgs, SweepArgs, SweepMergeArgs, SweepStatusArgs, SweepTrialArgs, TableArgs,
 };
 use super::charts;
 use super::paths::Outputs;
@@ -23,6 +23,7 @@ pub(crate) enum Job {
     Cv(CvJob),
     Sweep(SweepJob),
     WritePlan(SweepJob, PathBuf),
+    Nested(NestedJob),
     SweepTrial(TrialJob),
     SweepMerge(MergeJob),
     SweepStatus(StatusJob),
@@ -70,6 +71,17 @@ pub(crate) struct SweepJob {
     pub metric: Option<Metric>,
     pub seed: u64,
     pub out: Option<PathBuf>,
+}
+
+pub(crate) struct NestedJob {
+    pub data: PathBuf,
+    pub table: CsvOptions,
+    pub base: FitOptions,
+    pub search: Search,
+    pub outer: CvOptions,
+    pub inner: CvOptions,
+    pub metric: Option<Metric>,
+    pub seed: u64,
 }
 
 /// Which trials a `sweep-trial` runs.
@@ -127,6 +139,7 @@ pub(crate) fn prepare(cli: Cli) -> Result<Job> {
         Command::Predict(a) => Job::Predict(predict(a)?),
         Command::Cv(a) => Job::Cv(cv(a)?),
         Command::Sweep(a) => sweep(a)?,
+        Command::Nested(a) => Job::Nested(nested(a)?),
         Command::SweepTrial(a) => Job::SweepTrial(sweep_trial(a)?),
         Command::SweepMerge(a) => Job::SweepMerge(sweep_merge(a)?),
         Command::SweepStatus(a) => Job::SweepStatus(sweep_status(a)?),
@@ -303,7 +316,7 @@ fn cv(a: CvArgs) -> Result<CvJob> {
     })
 }
 
-fn search(a: &SweepArgs) -> Result<Search> {
+fn search(a: &SearchArgs) -> Result<Search> {
     let candidates = match a.random {
         Some(n) => Candidates::Random(RandomSearch {
             configurations: n,
@@ -335,13 +348,8 @@ fn search(a: &SweepArgs) -> Result<Search> {
 
 fn sweep(a: SweepArgs) -> Result<Job> {
     let base = fit_options(&a.net)?;
-    let search = search(&a)?;
-    if let Candidates::Grid(grid) = &search.candidates {
-        for (name, o) in grid.configurations(&base)? {
-            o.validate()
-                .map_err(|e| e.context(format!("sweep configuration \"{name}\"")))?;
-        }
-    }
+    let search = search(&a.search)?;
+    check_grid(&search, &base)?;
     let cv = fold_options(&a.folds)?;
     let mut outputs = Outputs::default();
     if let Some(p) = &a.write_plan {
@@ -364,6 +372,44 @@ fn sweep(a: SweepArgs) -> Result<Job> {
     Ok(match a.write_plan {
         Some(p) => Job::WritePlan(job, p),
         None => Job::Sweep(job),
+    })
+}
+
+/// Every grid configuration's options, validated (named by configuration).
+fn check_grid(search: &Search, base: &FitOptions) -> Result<()> {
+    if let Candidates::Grid(grid) = &search.candidates {
+        for (name, o) in grid.configurations(&base)? {
+            o.validate()
+                .map_err(|e| e.context(format!("sweep configuration \"{name}\"")))?;
+        }
+    }
+    Ok(())
+}
+
+fn nested(a: NestedArgs) -> Result<NestedJob> {
+    let base = fit_options(&a.net)?;
+    let search = search(&a.search)?;
+    check_grid(&search, &base)?;
+    let outer = fold_options(&a.folds)?;
+    let inner = CvOptions {
+        folds: a.inner_folds,
+        ..Default::default()
+    };
+    inner.validate().map_err(|e| match e.kind() {
+        crate::error::ErrorKind::InvalidOption { value, reason, .. } => {
+            Error::option("inner_folds", value, reason.clone())
+        }
+        _ => e,
+    })?;
+    Ok(NestedJob {
+        data: a.data,
+        table: table(a.table),
+        base,
+        search,
+        outer,
+        inner,
+        metric: a.metric,
+        seed: a.net.seed,
     })
 }
 

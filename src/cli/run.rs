@@ -5,8 +5,8 @@
 use super::charts;
 use super::output::{cv_json, cv_text, scores_json, scores_text, table_json, table_text, Outcome};
 use super::prepare::{
-    CheckJob, CvJob, DemoJob, FitJob, Job, MergeJob, PredictJob, StatusJob, SweepJob, TrialJob,
-    TrialOut, Trials,
+    CheckJob, CvJob, DemoJob, FitJob, Job, MergeJob, NestedJob, PredictJob, StatusJob, SweepJob,
+    TrialJob, TrialOut, Trials,
 };
 use super::progress::Progress;
 use crate::data::{Dataset, Target};
@@ -33,6 +33,7 @@ pub(crate) fn run(job: Job, progress: &Progress) -> Result<Outcome> {
         Job::Cv(j) => cross_validate(j, progress),
         Job::Sweep(j) => sweep(j, progress),
         Job::WritePlan(j, path) => write_plan(j, &path),
+        Job::Nested(j) => nested(j, progress),
         Job::SweepTrial(j) => sweep_trial(j),
         Job::SweepMerge(j) => sweep_merge(j),
         Job::SweepStatus(j) => sweep_status(j),
@@ -227,6 +228,11 @@ fn sweep_outcome(
     json["command"] = json!("sweep");
     json["best"] = json!(table.rows[0].name);
     json["model"] = json!(best_saved);
+    let optimism = format!(
+        "the best configuration's score is optimistic: it was chosen among {} on these same folds; for an honest estimate of the tuned procedure use `stratanet nested`",
+        table.rows.len()
+    );
+    json["notes"] = json!([optimism]);
     let mut text = String::new();
     if !rounds.is_empty() {
         json["rounds"] = json!(rounds
@@ -257,6 +263,9 @@ fn sweep_outcome(
         table.metric.name()
     );
     table_text(table, &mut text);
+    if table.rows.len() > 1 {
+        let _ = writeln!(text, "note: {optimism}");
+    }
     if let Some(out) = best_saved {
         let _ = writeln!(
             text,
@@ -279,6 +288,64 @@ fn sweep(j: SweepJob, progress: &Progress) -> Result<Outcome> {
         best.model().save(out)?;
     }
     Ok(sweep_outcome(&table, &rounds, j.out.as_deref()))
+}
+
+fn nested(j: NestedJob, progress: &Progress) -> Result<Outcome> {
+    let data = j.table.read(&j.data)?;
+    let metric = metric_for(j.metric, &data);
+    let mut base = j.base.clone();
+    base.training.observer = progress.observer();
+    let nested = crate::validate::nested::nested_cross_validate_checked(
+        &data,
+        &base,
+        &j.search,
+        &j.outer,
+        &j.inner,
+        metric,
+        &mut seeded_rng(j.seed),
+    )?;
+    let mut json = cv_json(&nested.outer);
+    json["command"] = json!("nested");
+    json["data"] = json!(j.data);
+    json["seed"] = json!(j.seed);
+    json["metric"] = json!(metric.name());
+    json["inner_folds"] = json!(j.inner.folds);
+    json["configurations"] = json!(nested.configurations);
+    json["choices"] = json!(nested
+        .choices
+        .iter()
+        .map(|c| json!({"fold": c.fold + 1, "configuration": c.configuration, "inner_score": c.inner_score}))
+        .collect::<Vec<_>>());
+    json["wins"] = json!(nested
+        .win_counts()
+        .iter()
+        .map(|(name, count)| json!({"configuration": name, "count": count}))
+        .collect::<Vec<_>>());
+    let mut text = format!(
+        "nested cross-validation on {} rows of {}: {}-fold outer ({} repeat{}) around a sweep of {} configurations with {} inner folds, chosen by {}\n",
+        data.n_rows(),
+        j.data.display(),
+        j.outer.folds,
+        j.outer.repeats,
+        if j.outer.repeats == 1 { "" } else { "s" },
+        nested.configurations,
+        j.inner.folds,
+        metric.name()
+    );
+    let _ = writeln!(
+        text,
+        "the tuned procedure (sweep, then refit the winner), scored on outer held-out rows:"
+    );
+    cv_text(&nested.outer, &mut text);
+    let _ = writeln!(text, "winners of the inner sweeps:");
+    for (name, count) in nested.win_counts() {
+        let _ = writeln!(text, "  {count} of {}  {name}", nested.choices.len());
+    }
+    let _ = write!(
+        text,
+        "(each winner's own inner score is optimistic; the outer scores above are not)"
+    );
+    Ok(Outcome { json, text })
 }
 
 fn write_plan(j: SweepJob, path: &std::path::Path) -> Result<Outcome> {

@@ -23,6 +23,7 @@ pub use stats::{
 mod compare;
 pub(crate) mod cv;
 mod holdout;
+pub(crate) mod nested;
 mod search;
 pub(crate) mod sweep;
 pub mod sweep_files;
@@ -33,6 +34,7 @@ pub use cv::{
     MetricSummary, Scores, MAX_FOLD_FITS,
 };
 pub use holdout::{HoldOut, HoldOutScore};
+pub use nested::{nested_cross_validate, NestedChoice, NestedCrossValidation};
 pub use search::{Candidates, Grid, Halving, RandomSearch, Search, MAX_CONFIGURATIONS};
 pub use sweep::{
     sweep, Round, RoundSummary, Sweep, SweepPlan, SweepRow, SweepTable, Trial, MAX_TRIALS,

@@ -12,6 +12,7 @@ mod demo_data;
 mod determinism;
 mod fuzz_replay;
 mod gradients;
+mod honest;
 mod hostile;
 mod iris;
 mod model_files;
