@@ -378,7 +378,7 @@ fn sweep(a: SweepArgs) -> Result<Job> {
 /// Every grid configuration's options, validated (named by configuration).
 fn check_grid(search: &Search, base: &FitOptions) -> Result<()> {
     if let Candidates::Grid(grid) = &search.candidates {
-        for (name, o) in grid.configurations(&base)? {
+        for (name, o) in grid.configurations(base)? {
             o.validate()
                 .map_err(|e| e.context(format!("sweep configuration \"{name}\"")))?;
         }
