@@ -57,6 +57,7 @@
 //! # Ok::<(), stratanet::Error>(())
 //! ```
 
+mod calibration;
 mod checks;
 mod confusion;
 mod probability;
@@ -68,6 +69,10 @@ mod summary;
 #[cfg(test)]
 mod tests;
 
+pub use calibration::{
+    brier_partition, brier_partition_binned, reliability, Binning, BrierPartition, Forecast,
+    Grouping, Reliability, ReliabilityBin,
+};
 pub use confusion::{BinaryCounts, ClassScores, ConfusionMatrix};
 pub use probability::{brier_score, log_loss, most_probable_classes};
 pub use ranking::{
