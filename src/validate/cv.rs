@@ -176,6 +176,10 @@ pub struct FoldResult {
     pub predictions: Array2<f64>,
     /// The fold's training history.
     pub report: TrainingReport,
+    /// The model fitted on the fold's training rows (`None` for a result
+    /// read back from a sweep's trial file, which keeps predictions but not
+    /// the network).
+    pub model: Option<Model>,
 }
 
 /// One metric summarised over folds.
@@ -510,6 +514,7 @@ pub(crate) fn run_fold(
         scores,
         predictions,
         report: fitted.report().clone(),
+        model: Some(fitted.into_model()),
     })
 }
 

@@ -23,6 +23,7 @@ pub use stats::{
 mod compare;
 pub(crate) mod cv;
 mod holdout;
+pub mod importance;
 pub(crate) mod nested;
 mod search;
 pub(crate) mod sweep;

@@ -159,6 +159,7 @@ pub(crate) fn nested_cross_validate_checked<R: RngCore + ?Sized>(
                 scores,
                 predictions,
                 report: swept.best.report().clone(),
+                model: Some(swept.best.model().clone()),
             };
             let choice = NestedChoice {
                 fold: k,

@@ -881,6 +881,7 @@ pub fn parse_trial(
             scores,
             predictions,
             report,
+            model: None,
         },
         rows: file.rows,
         classes: file.classes,
