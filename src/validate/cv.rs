@@ -19,7 +19,7 @@
 //! & Frank 2004; see [`Summary`] for the formula and the coverage check).
 
 use super::metrics::{ClassificationMetrics, Metric, RegressionMetrics};
-use super::stats::Summary;
+use super::stats::{corrected_resampled_t_test_named, ResampledTTest, Summary};
 use crate::data::{kfold, repeated_stratified_folds, Dataset, Fold, Target};
 use crate::error::{Error, Result};
 use crate::fit::{FitOptions, Model};
@@ -174,12 +174,69 @@ pub struct FoldResult {
     pub scores: Scores,
     /// Predictions on the held-out rows: class probabilities or values.
     pub predictions: Array2<f64>,
+    /// What the baseline predicts for every held-out row: the class shares
+    /// of the fold's training rows, or their mean (see [`FoldBaseline`]).
+    pub baseline: FoldBaseline,
     /// The fold's training history.
     pub report: TrainingReport,
     /// The model fitted on the fold's training rows (`None` for a result
     /// read back from a sweep's trial file, which keeps predictions but not
     /// the network).
     pub model: Option<Model>,
+}
+
+/// What a model is compared with in every fold: one prediction for every
+/// row, whatever its inputs, learnt from the fold's training rows only.
+///
+/// ```text
+/// classes   p_c = n_c / n, the training rows' class shares, for every row
+///           (its accuracy is the majority class's share, its log-loss the
+///            entropy of the shares on the held-out rows, its AUC 0.5)
+/// numbers   the training rows' mean of each output (R^2 at most 0 on other rows)
+/// ```
+///
+/// A model that does not beat this has learnt nothing usable from the
+/// inputs (common practice, no source).
+#[derive(Clone, Debug, PartialEq)]
+pub struct FoldBaseline {
+    /// The constant prediction: class shares, or output means.
+    pub prediction: Vec<f64>,
+    /// Its scores on the fold's held-out rows.
+    pub scores: Scores,
+}
+
+impl FoldBaseline {
+    /// The baseline learnt from `train` and scored on `test`.
+    ///
+    /// # Errors
+    /// Targets of different kinds or widths.
+    pub fn of(train: &Target, test: &Target) -> Result<FoldBaseline> {
+        let prediction = match train {
+            Target::Classes { labels, names } => {
+                let mut shares = vec![0.0; names.len()];
+                labels.iter().for_each(|&l| shares[l] += 1.0);
+                shares.iter().map(|c| c / labels.len() as f64).collect()
+            }
+            Target::Values { values, .. } => values
+                .columns()
+                .into_iter()
+                .map(|c| c.sum() / c.len() as f64)
+                .collect(),
+        };
+        FoldBaseline::scored(prediction, test)
+    }
+
+    /// Scores a constant `prediction` on `test`.
+    ///
+    /// # Errors
+    /// A prediction of the wrong width for the target.
+    pub fn scored(prediction: Vec<f64>, test: &Target) -> Result<FoldBaseline> {
+        let every_row =
+            Array2::from_shape_fn((test.len(), prediction.len()), |(_, j)| prediction[j]);
+        let scores = Scores::from_predictions(test, every_row.view())
+            .map_err(|e| e.context("the baseline"))?;
+        Ok(FoldBaseline { prediction, scores })
+    }
 }
 
 /// One metric summarised over folds.
@@ -191,6 +248,13 @@ pub struct MetricSummary {
     pub values: Vec<f64>,
     /// Mean, standard deviation and 95% interval.
     pub summary: Summary,
+    /// The baseline's value in each fold (see [`FoldBaseline`]).
+    pub baseline_values: Vec<f64>,
+    /// The baseline's mean and interval over the same folds.
+    pub baseline: Summary,
+    /// The corrected resampled t-test of model against baseline on the
+    /// same folds (differences model - baseline); `None` with one fold.
+    pub against_baseline: Option<ResampledTTest>,
 }
 
 /// The outcome of [`cross_validate`].
@@ -506,7 +570,9 @@ pub(crate) fn run_fold(
     )
     .map_err(|e| e.context(format!("cross-validation fold {}", k + 1)))?;
     let (scores, predictions) = Scores::of(fitted.model(), &test)?;
+    let baseline = FoldBaseline::of(&data.target().select(&fold.train), test.target())?;
     Ok(FoldResult {
+        baseline,
         index: k,
         seed: plan.seeds[k],
         train_rows: fold.train.len(),
@@ -534,10 +600,37 @@ pub(crate) fn summarise_folds(folds: &[FoldResult]) -> Result<Vec<MetricSummary>
                 .iter()
                 .map(|f| f.scores.value(metric))
                 .collect::<Result<Vec<f64>>>()?;
+            let baseline_values = folds
+                .iter()
+                .map(|f| f.baseline.scores.value(metric))
+                .collect::<Result<Vec<f64>>>()?;
+            let differences: Vec<f64> = values
+                .iter()
+                .zip(&baseline_values)
+                .map(|(m, b)| m - b)
+                .collect();
+            let against_baseline = if differences.len() >= 2 {
+                Some(corrected_resampled_t_test_named(
+                    &differences,
+                    n_train.round().max(1.0) as usize,
+                    n_test.round().max(1.0) as usize,
+                    ("the model", "the baseline"),
+                )?)
+            } else {
+                None
+            };
             Ok(MetricSummary {
                 metric,
                 summary: Summary::for_cross_validation(&values, n_train, n_test, metric.range())?,
                 values,
+                baseline: Summary::for_cross_validation(
+                    &baseline_values,
+                    n_train,
+                    n_test,
+                    metric.range(),
+                )?,
+                baseline_values,
+                against_baseline,
             })
         })
         .collect()

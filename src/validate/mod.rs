@@ -31,8 +31,8 @@ pub mod sweep_files;
 
 pub use compare::{compare_configurations, compare_models, Comparison};
 pub use cv::{
-    cross_validate, cross_validate_with_plan, CrossValidation, CvOptions, FoldPlan, FoldResult,
-    MetricSummary, Scores, MAX_FOLD_FITS,
+    cross_validate, cross_validate_with_plan, CrossValidation, CvOptions, FoldBaseline, FoldPlan,
+    FoldResult, MetricSummary, Scores, MAX_FOLD_FITS,
 };
 pub use holdout::{HoldOut, HoldOutScore};
 pub use nested::{nested_cross_validate, NestedChoice, NestedCrossValidation};

@@ -19,7 +19,9 @@
 //! outer folds run in parallel and give the same numbers on any thread
 //! count.
 
-use super::cv::{summarise_folds, CrossValidation, CvOptions, FoldPlan, FoldResult, Scores};
+use super::cv::{
+    summarise_folds, CrossValidation, CvOptions, FoldBaseline, FoldPlan, FoldResult, Scores,
+};
 use super::metrics::Metric;
 use super::search::{Candidates, Search};
 use super::sweep::{sweep_plan_checked, SweepPlan};
@@ -151,7 +153,9 @@ pub(crate) fn nested_cross_validate_checked<R: RngCore + ?Sized>(
                 sweep_plan_checked(&train, sweep_plan, &Observer::none()).map_err(context)?;
             let winner = &swept.table.rows[0];
             let (scores, predictions) = Scores::of(swept.best.model(), &test).map_err(context)?;
+            let baseline = FoldBaseline::of(train.target(), test.target()).map_err(context)?;
             let result = FoldResult {
+                baseline,
                 index: k,
                 seed: plan.seeds[k],
                 train_rows: fold.train.len(),

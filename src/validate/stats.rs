@@ -975,6 +975,16 @@ pub fn corrected_resampled_t_test(
     n_train: usize,
     n_test: usize,
 ) -> Result<ResampledTTest> {
+    corrected_resampled_t_test_named(differences, n_train, n_test, ("model A", "model B"))
+}
+
+/// [`corrected_resampled_t_test`] whose reading names the two sides.
+pub(crate) fn corrected_resampled_t_test_named(
+    differences: &[f64],
+    n_train: usize,
+    n_test: usize,
+    (a, b): (&str, &str),
+) -> Result<ResampledTTest> {
     const WHAT: &str = "corrected resampled t-test";
     let j = differences.len();
     if j < 2 {
@@ -1017,7 +1027,7 @@ pub fn corrected_resampled_t_test(
                     .to_string(),
             ),
             reading: format!(
-                "the difference A - B is {} on every fold; a t-test cannot judge a difference that never varies",
+                "the difference {a} - {b} is {} on every fold; a t-test cannot judge a difference that never varies",
                 format_significant(mean)
             ),
         });
@@ -1029,7 +1039,7 @@ pub fn corrected_resampled_t_test(
     let naive_p_value = student_t_two_sided_p(naive_t, degrees_of_freedom)?;
     let direction = if mean >= 0.0 { "higher" } else { "lower" };
     let reading = format!(
-        "model A scored {} {direction} than model B on average over {j} folds; the difference {} (corrected resampled t = {:.2}, {j_1} df, p = {}; the naive paired t-test gives p = {}, which overstates the evidence because folds share training rows)",
+        "{a} scored {} {direction} than {b} on average over {j} folds; the difference {} (corrected resampled t = {:.2}, {j_1} df, p = {}; the naive paired t-test gives p = {}, which overstates the evidence because folds share training rows)",
         format_significant(mean.abs()),
         verdict(p_value),
         t,

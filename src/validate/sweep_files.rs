@@ -20,7 +20,7 @@
 //! any trial runs. A trial file carries the checksum of its plan, so results
 //! from another plan are refused when merging.
 
-use super::cv::{FoldPlan, FoldResult, Scores};
+use super::cv::{FoldBaseline, FoldPlan, FoldResult, Scores};
 use super::search::Halving;
 use super::sweep::{Round, RoundSummary, SweepPlan};
 use super::CvOptions;
@@ -413,6 +413,9 @@ struct TrialFile {
     truth: TruthV2,
     /// Class probabilities or predicted values, one row per held-out row.
     predictions: Vec<Vec<f64>>,
+    /// The baseline's constant prediction (the fold's training class
+    /// shares or means).
+    baseline: Vec<f64>,
     training: TrainingV2,
 }
 
@@ -517,6 +520,7 @@ pub fn write_trial(
             Target::Values { values, .. } => TruthV2::Values(rows_of(values)),
         },
         predictions: rows_of(&result.predictions),
+        baseline: result.baseline.prediction.clone(),
         training: TrainingV2 {
             loss: r.loss.to_string(),
             epochs_run: r.epochs_run,
@@ -847,6 +851,15 @@ pub fn parse_trial(
     }
     let scores = Scores::from_predictions(&target, predictions.view())
         .map_err(|e| e.context(path.display().to_string()))?;
+    if file.baseline.len() != predictions.ncols() || file.baseline.iter().any(|v| !v.is_finite()) {
+        return Err(bad(format!(
+            "its baseline holds {} values for {} prediction columns (or a value that is not a finite number)",
+            file.baseline.len(),
+            predictions.ncols()
+        )));
+    }
+    let baseline = FoldBaseline::scored(file.baseline, &target)
+        .map_err(|e| e.context(path.display().to_string()))?;
     let t = file.training;
     let history = t
         .history
@@ -874,6 +887,7 @@ pub fn parse_trial(
     Ok(TrialResult {
         trial: file.trial,
         result: FoldResult {
+            baseline,
             index: 0,
             seed,
             train_rows: file.train_rows,

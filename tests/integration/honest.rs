@@ -89,11 +89,25 @@ fn known_rule_table(rows: usize, seed: u64) -> Dataset {
     let mut text = String::from("signal,weak,noise_a,noise_b,batch,y\n");
     for _ in 0..rows {
         let (signal, weak, a, b, batch, e) = (u(), u(), u(), u(), u(), u());
-        let batch = if batch < -0.33 { "b1" } else if batch < 0.33 { "b2" } else { "b3" };
-        let y = if 2.0 * signal + 0.6 * weak + 0.4 * e > 0.0 { "yes" } else { "no" };
-        text.push_str(&format!("{signal:.4},{weak:.4},{a:.4},{b:.4},{batch},{y}\n"));
+        let batch = if batch < -0.33 {
+            "b1"
+        } else if batch < 0.33 {
+            "b2"
+        } else {
+            "b3"
+        };
+        let y = if 2.0 * signal + 0.6 * weak + 0.4 * e > 0.0 {
+            "yes"
+        } else {
+            "no"
+        };
+        text.push_str(&format!(
+            "{signal:.4},{weak:.4},{a:.4},{b:.4},{batch},{y}\n"
+        ));
     }
-    CsvOptions::new("y").read_str(&text, "known-rule.csv").unwrap()
+    CsvOptions::new("y")
+        .read_str(&text, "known-rule.csv")
+        .unwrap()
 }
 
 /// Permutation importance (Breiman 2001; Fisher, Rudin & Dominici 2019):
@@ -168,4 +182,82 @@ fn permutation_importance_finds_the_signal_and_clears_the_noise() {
         .permutation_importance(&data, &ImportanceOptions::default(), &mut seeded_rng(9))
         .unwrap();
     assert_eq!(again, once);
+}
+
+/// Every fold scores the baseline (the training rows' class shares for every
+/// held-out row) beside the model. Its accuracy is the held-out share of the
+/// training majority class, its log-loss the mean of -ln(share of the true
+/// class), its AUC 0.5 (the definitions; common practice, no source); the
+/// model is tested against it on the same folds (Nadeau & Bengio 2003).
+#[test]
+fn every_fold_scores_the_baseline_beside_the_model() {
+    let data = known_rule_table(300, 4);
+    let labels = data.labels().unwrap().to_vec();
+    let options = FitOptions::default().hidden(&[4]).epochs(40);
+    let cv = cross_validate(
+        &data,
+        &options,
+        &CvOptions {
+            folds: 4,
+            ..Default::default()
+        },
+        &mut seeded_rng(8),
+    )
+    .unwrap();
+    for fold in &cv.folds {
+        let test_rows = &fold.test_rows;
+        let train_rows: Vec<usize> = (0..labels.len())
+            .filter(|r| !test_rows.contains(r))
+            .collect();
+        let yes =
+            train_rows.iter().filter(|&&r| labels[r] == 1).count() as f64 / train_rows.len() as f64;
+        let no =
+            train_rows.iter().filter(|&&r| labels[r] == 0).count() as f64 / train_rows.len() as f64;
+        assert_eq!(fold.baseline.prediction, vec![no, yes]);
+        let majority = usize::from(yes > 0.5);
+        let accuracy = test_rows.iter().filter(|&&r| labels[r] == majority).count() as f64
+            / test_rows.len() as f64;
+        let log_loss = test_rows
+            .iter()
+            .map(|&r| -(if labels[r] == 1 { yes } else { 1.0 - yes }).ln())
+            .sum::<f64>()
+            / test_rows.len() as f64;
+        let scores = &fold.baseline.scores;
+        assert!((scores.value(Metric::Accuracy).unwrap() - accuracy).abs() < 1e-15);
+        assert!((scores.value(Metric::LogLoss).unwrap() - log_loss).abs() < 1e-12);
+        assert_eq!(scores.value(Metric::Auc).unwrap(), 0.5);
+    }
+    let accuracy = cv.metric(Metric::Accuracy).unwrap();
+    assert_eq!(accuracy.baseline_values.len(), 4);
+    let test = accuracy.against_baseline.as_ref().unwrap();
+    assert!(
+        test.mean_difference > 0.2 && test.p_value < 0.01,
+        "{test:?}"
+    );
+    assert!(
+        test.reading.starts_with("the model scored"),
+        "{}",
+        test.reading
+    );
+
+    // A target unrelated to the inputs: the model cannot beat the baseline.
+    let mut text = String::from("a,b,y\n");
+    let mut rng = seeded_rng(21);
+    for _ in 0..200 {
+        let (a, b, y) = (
+            stratanet::rng::uniform01(&mut rng),
+            stratanet::rng::uniform01(&mut rng),
+            stratanet::rng::uniform01(&mut rng) < 0.3,
+        );
+        text.push_str(&format!("{a:.4},{b:.4},{}\n", if y { "p" } else { "q" }));
+    }
+    let noise = CsvOptions::new("y").read_str(&text, "noise.csv").unwrap();
+    let cv = cross_validate(&noise, &options, &CvOptions::default(), &mut seeded_rng(8)).unwrap();
+    let test = cv
+        .metric(Metric::Accuracy)
+        .unwrap()
+        .against_baseline
+        .clone()
+        .unwrap();
+    assert!(test.p_value > 0.05, "{test:?}");
 }
