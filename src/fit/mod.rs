@@ -14,14 +14,20 @@
 //!    validation loss (lowest final training loss without validation rows;
 //!    the earliest restart on ties).
 
+mod decision;
 mod model;
 mod options;
 mod provenance;
+mod temperature;
 
+pub use decision::{
+    choose_threshold, ChosenThreshold, CostMatrix, ThresholdTarget, MAX_COST_ENTRIES,
+};
 pub use model::Model;
 pub(crate) use model::CAUTION;
 pub use options::FitOptions;
 pub use provenance::Provenance;
+pub use temperature::{fit_temperature, probabilities_at, Temperature, TEMPERATURE_BOUNDS};
 
 use crate::data::{split, Dataset, Scaler};
 use crate::error::Result;
