@@ -25,6 +25,7 @@ pub(crate) mod cv;
 mod holdout;
 pub mod importance;
 pub(crate) mod nested;
+mod out_of_fold;
 mod search;
 pub(crate) mod sweep;
 pub mod sweep_files;
@@ -36,6 +37,7 @@ pub use cv::{
 };
 pub use holdout::{HoldOut, HoldOutScore};
 pub use nested::{nested_cross_validate, NestedChoice, NestedCrossValidation};
+pub use out_of_fold::OutOfFold;
 pub use search::{Candidates, Grid, Halving, RandomSearch, Search, MAX_CONFIGURATIONS};
 pub use sweep::{
     sweep, Round, RoundSummary, Sweep, SweepPlan, SweepRow, SweepTable, Trial, MAX_TRIALS,

@@ -261,3 +261,46 @@ fn every_fold_scores_the_baseline_beside_the_model() {
         .unwrap();
     assert!(test.p_value > 0.05, "{test:?}");
 }
+
+/// Out-of-fold predictions: in every repeat each row is predicted exactly
+/// once, by the fold model that held it out, and is the same prediction
+/// that fold's model gives for it (the definition of k-fold
+/// cross-validation; common practice, no source).
+#[test]
+fn out_of_fold_predictions_cover_every_row_once_per_repeat() {
+    use stratanet::validate::metrics::Binning;
+    let data = parts();
+    let cv = cross_validate(
+        &data,
+        &FitOptions::default().hidden(&[4]).epochs(15),
+        &CvOptions {
+            folds: 3,
+            repeats: 2,
+            ..Default::default()
+        },
+        &mut seeded_rng(3),
+    )
+    .unwrap();
+    for repeat in 0..2 {
+        let oof = cv.out_of_fold(repeat).unwrap();
+        assert_eq!(oof.predictions.nrows(), data.n_rows());
+        for row in [0, 57, 299] {
+            let fold = &cv.folds[oof.fold_of_row[row]];
+            assert_eq!(fold.index / 3, repeat);
+            let model = fold.model.as_ref().unwrap();
+            let again = model
+                .predict_probabilities(data.x().slice(stratanet::ndarray::s![row..row + 1, ..]))
+                .unwrap();
+            assert_eq!(oof.predictions.row(row), again.row(0));
+        }
+    }
+    assert!(cv
+        .out_of_fold(2)
+        .unwrap_err()
+        .to_string()
+        .contains("repeat"));
+    let r = cv.reliability(&data, Binning::default()).unwrap();
+    assert_eq!(r.rows, 2 * data.n_rows());
+    let part = cv.brier_partition(&data, Binning::default()).unwrap();
+    assert!((part.total() - part.brier).abs() < 1e-12);
+}
