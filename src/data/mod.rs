@@ -9,6 +9,7 @@
 pub(crate) mod csv;
 mod dataset;
 mod scale;
+mod scored_rows;
 pub(crate) mod split;
 
 pub use self::csv::{
@@ -16,6 +17,7 @@ pub use self::csv::{
 };
 pub use dataset::{ColumnEncoding, Dataset, Target};
 pub use scale::{Scaler, Scaling};
+pub use scored_rows::ScoredRows;
 pub use split::{
     kfold, random_split, repeated_stratified_folds, stratified_folds, stratified_split, Fold, Split,
 };

@@ -20,7 +20,7 @@
 
 use super::metrics::{ClassificationMetrics, Metric, RegressionMetrics};
 use super::stats::{corrected_resampled_t_test_named, ResampledTTest, Summary};
-use crate::data::{kfold, repeated_stratified_folds, Dataset, Fold, Target};
+use crate::data::{kfold, repeated_stratified_folds, Dataset, Fold, ScoredRows, Target};
 use crate::error::{Error, Result};
 use crate::fit::{FitOptions, Model};
 use crate::observe::{Event, Observer};
@@ -297,6 +297,11 @@ impl CrossValidation {
                     ),
                 )
             })
+    }
+
+    /// The rows its scores come from: out-of-fold.
+    pub fn scored_rows(&self) -> ScoredRows {
+        ScoredRows::OutOfFold
     }
 
     /// Mean training and held-out row counts per fold.

@@ -61,6 +61,11 @@ pub struct NestedCrossValidation {
 }
 
 impl NestedCrossValidation {
+    /// The rows its scores come from: the outer folds' held-out rows.
+    pub fn scored_rows(&self) -> crate::data::ScoredRows {
+        crate::data::ScoredRows::OuterFold
+    }
+
     /// How often each configuration won, most often first (ties: the
     /// earlier name).
     pub fn win_counts(&self) -> Vec<(String, usize)> {
