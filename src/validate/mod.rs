@@ -21,6 +21,7 @@ pub use stats::{
     Summary,
 };
 mod compare;
+mod costs;
 pub(crate) mod cv;
 mod holdout;
 pub mod importance;
@@ -31,6 +32,7 @@ pub(crate) mod sweep;
 pub mod sweep_files;
 
 pub use compare::{compare_configurations, compare_models, Comparison};
+pub use costs::CostSummary;
 pub use cv::{
     cross_validate, cross_validate_with_plan, CrossValidation, CvOptions, FoldBaseline, FoldPlan,
     FoldResult, MetricSummary, Scores, MAX_FOLD_FITS,

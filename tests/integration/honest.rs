@@ -304,3 +304,55 @@ fn out_of_fold_predictions_cover_every_row_once_per_repeat() {
     let part = cv.brier_partition(&data, Binning::default()).unwrap();
     assert!((part.total() - part.brier).abs() < 1e-12);
 }
+
+/// Costs under cross-validation. With the zero-one matrix each fold's cost
+/// per row is its error rate, 1 - accuracy, for the model and for the
+/// baseline alike (Elkan 2001: zero-one costs give the most probable class).
+/// With unequal costs the decisions move towards the cheap mistakes, and the
+/// cost per row is the mean of C[decision][truth] recomputed here by hand.
+#[test]
+fn cross_validated_costs_follow_their_definition() {
+    use stratanet::fit::CostMatrix;
+    let data = parts();
+    let classes = data.class_names().unwrap().to_vec();
+    let cv = cross_validate(
+        &data,
+        &FitOptions::default().hidden(&[6]).epochs(25),
+        &CvOptions {
+            folds: 4,
+            ..Default::default()
+        },
+        &mut seeded_rng(12),
+    )
+    .unwrap();
+    let zero_one = cv
+        .costs(&data, &CostMatrix::zero_one(&classes).unwrap())
+        .unwrap();
+    let accuracy = cv.metric(Metric::Accuracy).unwrap();
+    for (k, cost) in zero_one.fold_costs.iter().enumerate() {
+        assert!((cost - (1.0 - accuracy.values[k])).abs() < 1e-12);
+        assert!((zero_one.baseline_costs[k] - (1.0 - accuracy.baseline_values[k])).abs() < 1e-12);
+    }
+    // Scrapping a good part is dear, accepting a bad one dearer still.
+    let text = "decision,accept,rework,scrap\naccept,0,40,300\nrework,15,10,120\nscrap,60,50,20\n";
+    let matrix = CostMatrix::from_csv_str(text, "costs.csv").unwrap();
+    let summary = cv.costs(&data, &matrix).unwrap();
+    let labels = data.labels().unwrap();
+    let c = |d: usize, t: usize| matrix.for_classes(&classes).unwrap().costs()[d][t];
+    for (k, fold) in cv.folds.iter().enumerate() {
+        let mut total = 0.0;
+        for (i, &row) in fold.test_rows.iter().enumerate() {
+            let p = fold.predictions.row(i);
+            let expected: Vec<f64> = (0..3)
+                .map(|d| (0..3).map(|t| p[t] * c(d, t)).sum())
+                .collect();
+            let d = (0..3).fold(0, |b, d| if expected[d] < expected[b] { d } else { b });
+            total += c(d, labels[row]);
+        }
+        assert!((summary.fold_costs[k] - total / fold.test_rows.len() as f64).abs() < 1e-9);
+    }
+    assert!(summary.summary.ci_low >= 0.0);
+    let test = summary.against_baseline.as_ref().unwrap();
+    assert!(test.mean_difference < 0.0, "{test:?}");
+    assert_eq!(summary.decision_counts.iter().sum::<usize>(), data.n_rows());
+}
