@@ -3,13 +3,16 @@
 //! used) and returns an [`Outcome`].
 
 use super::charts;
-use super::output::{cv_json, cv_text, scores_json, scores_text, table_json, table_text, Outcome};
+use super::output::{
+    cv_json, cv_text, flags, labelled, loss_words, read_text, scores_json, scores_text, shown,
+    summary_json, summary_text, table_json, table_text, Outcome,
+};
 use super::prepare::{
-    CheckJob, CvJob, DemoJob, FitJob, Job, MergeJob, PredictJob, SweepJob, TrialJob,
+    CheckJob, CvJob, DemoJob, FitJob, InspectJob, Job, MergeJob, PredictJob, SweepJob, TrialJob,
 };
 use super::progress::Progress;
 use crate::data::{Dataset, Target};
-use crate::error::{Error, Result};
+use crate::error::{Error, Message, Result};
 use crate::fit::{fit_checked, FitOptions, CAUTION};
 use crate::model_file;
 use crate::rng::{child_seed, seeded_rng};
@@ -28,6 +31,7 @@ pub(crate) fn run(job: Job, progress: &Progress) -> Result<Outcome> {
         Job::Fit(j) => fit(j, progress),
         Job::Check(j) => check(j),
         Job::Predict(j) => predict(j),
+        Job::Inspect(j) => inspect(j),
         Job::Cv(j) => cross_validate(j, progress),
         Job::Sweep(j) => sweep(j, progress),
         Job::WritePlan(j, path) => write_plan(j, &path),
@@ -44,6 +48,17 @@ fn observed(options: &FitOptions, progress: &Progress) -> FitOptions {
     o
 }
 
+fn inspect(j: InspectJob) -> Result<Outcome> {
+    let data = j.table.read(&j.data)?;
+    let summary = data.summary(Some(j.folds));
+    let mut json = summary_json(&summary);
+    json["command"] = json!("inspect");
+    json["data"] = json!(j.data);
+    let mut text = String::new();
+    summary_text(&summary, &mut text);
+    Ok(Outcome { json, text })
+}
+
 fn fit(j: FitJob, progress: &Progress) -> Result<Outcome> {
     let data = j.table.read(&j.data)?;
     let options = observed(&j.options, progress);
@@ -53,11 +68,26 @@ fn fit(j: FitJob, progress: &Progress) -> Result<Outcome> {
     fitted.model().save(&j.out)?;
     let mut written = Vec::new();
     if let Some(dir) = &j.charts {
-        written = charts::fit_charts(&data, &fitted, dir)?;
+        let filled = fitted.model().filled(&data)?;
+        written = charts::fit_charts(&filled, &fitted, dir)?;
     }
     let r = fitted.report();
     let model = fitted.model();
     let last = r.history.last();
+    let baseline = fitted.baseline();
+    let validation = if fitted.split().validation.is_empty() || model.is_classifier() {
+        None
+    } else {
+        Scores::of(model, &data.select(&fitted.split().validation))
+            .ok()
+            .map(|(s, _)| s)
+    };
+    let r_squared = validation
+        .as_ref()
+        .and_then(|s| s.value(crate::validate::Metric::RSquared).ok());
+    let scaled = model.target_scaler().is_some();
+    let mut warnings: Vec<Message> = data.warnings().to_vec();
+    warnings.extend(fitted.warnings().iter().cloned());
     let json = json!({
         "command": "fit",
         "model": j.out,
@@ -65,20 +95,34 @@ fn fit(j: FitJob, progress: &Progress) -> Result<Outcome> {
         "dropped_rows": data.dropped_rows(),
         "features": data.feature_names(),
         "target": data.target_name(),
+        "task": if model.is_classifier() { "classification" } else { "regression" },
         "classes": data.class_names(),
+        "ids": model.id_columns(),
         "sizes": model.network().sizes(),
         "parameters": model.network().n_parameters(),
+        "loss": r.loss.name(),
+        "loss_definition": loss_words(r.loss, scaled),
         "epochs_run": r.epochs_run,
         "best_epoch": r.best_epoch,
         "stopped_early": r.stopped_early,
         "best_validation_loss": r.best_validation_loss,
         "final_training_loss": r.final_training_loss,
         "validation_accuracy": last.and_then(|e| e.validation_accuracy),
+        "validation_r_squared": r_squared,
+        "baseline": {
+            "description": baseline.description,
+            "training_loss": baseline.training_loss,
+            "validation_loss": baseline.validation_loss,
+        },
         "seed": j.seed,
         "table_fingerprint": model.provenance().table_fingerprint,
         "charts": written,
+        "decisions": flags(data.decisions()),
+        "notes": flags(fitted.notes()),
+        "warnings": flags(&warnings),
     });
     let mut text = String::new();
+    read_text(&data, &j.data, &mut text);
     let _ = writeln!(
         text,
         "fitted {:?} on {} rows of {}",
@@ -86,13 +130,7 @@ fn fit(j: FitJob, progress: &Progress) -> Result<Outcome> {
         data.n_rows(),
         j.data.display()
     );
-    if data.dropped_rows() > 0 {
-        let _ = writeln!(
-            text,
-            "  dropped {} rows with missing cells",
-            data.dropped_rows()
-        );
-    }
+    let _ = writeln!(text, "  loss: {}", loss_words(r.loss, scaled));
     let _ = writeln!(
         text,
         "  epochs run {} (best {}{}), final training loss {:.5}",
@@ -105,9 +143,38 @@ fn fit(j: FitJob, progress: &Progress) -> Result<Outcome> {
         },
         r.final_training_loss
     );
-    if let Some(v) = r.best_validation_loss {
-        let _ = writeln!(text, "  best validation loss {v:.5}");
+    match (r.best_validation_loss, baseline.validation_loss) {
+        (Some(v), Some(b)) => {
+            let _ = writeln!(
+                text,
+                "  best validation loss {v:.5}; baseline {b:.5}, {}",
+                baseline.description
+            );
+        }
+        (Some(v), None) => {
+            let _ = writeln!(text, "  best validation loss {v:.5}");
+        }
+        (None, _) => {
+            if let Some(b) = baseline.training_loss {
+                let _ = writeln!(
+                    text,
+                    "  baseline training loss {b:.5}, {}",
+                    baseline.description
+                );
+            }
+        }
     }
+    if let Some(a) = last.and_then(|e| e.validation_accuracy) {
+        let _ = writeln!(text, "  validation accuracy {a:.4}");
+    }
+    if let Some(r2) = r_squared {
+        let _ = writeln!(
+            text,
+            "  validation R\u{b2} {r2:.4} (in the target's own units; the training mean scores about 0)"
+        );
+    }
+    labelled(&mut text, "note", fitted.notes());
+    labelled(&mut text, "warning", fitted.warnings());
     let _ = writeln!(text, "saved the model to {}", j.out.display());
     for c in &written {
         let _ = writeln!(text, "wrote {}", c.display());
@@ -118,27 +185,49 @@ fn fit(j: FitJob, progress: &Progress) -> Result<Outcome> {
 fn check(j: CheckJob) -> Result<Outcome> {
     let model = crate::fit::Model::load(&j.model)?;
     let table = j.rows.read(&model, &j.data)?;
+    let decisions = table.decisions.clone();
     let data = table.into_dataset(&model)?;
     let (scores, _) = Scores::of(&model, &data)?;
+    let in_sample = data.fingerprint() == model.provenance().table_fingerprint;
+    let mut warnings = Vec::new();
+    if in_sample {
+        warnings.push(Message::new(format!(
+            "these are the rows the model was fitted on (the same SHA-256 fingerprint as its training table, {} rows): the scores are in-sample and overstate how it will do on new rows",
+            model.provenance().table_rows
+        )));
+    }
+    warnings.extend(
+        model
+            .provenance()
+            .warnings
+            .iter()
+            .map(|w| Message::new(format!("when fitted: {w}"))),
+    );
     let mut json = json!({
         "command": "check",
         "model": j.model,
         "data": j.data,
         "rows": data.n_rows(),
+        "in_sample": in_sample,
         "metrics": scores_json(&scores),
         "notes": scores.notes(),
+        "decisions": flags(&decisions),
+        "warnings": flags(&warnings),
     });
     if let Scores::Classification(m) = &scores {
         json["confusion"] = json!(m.confusion.counts());
         json["classes"] = json!(m.class_names);
     }
     let mut text = format!(
-        "{} rows of {} scored by {}\n",
+        "{} rows of {} scored by {}{}\n",
         data.n_rows(),
         j.data.display(),
-        j.model.display()
+        j.model.display(),
+        if in_sample { " (in-sample)" } else { "" }
     );
+    labelled(&mut text, "decided", &shown(&decisions));
     scores_text(&scores, &mut text);
+    labelled(&mut text, "warning", &warnings);
     let _ = writeln!(text, "Caution: {CAUTION}");
     Ok(Outcome { json, text })
 }
@@ -148,15 +237,27 @@ fn predict(j: PredictJob) -> Result<Outcome> {
     let table = j.rows.read(&model, &j.data)?;
     let rows = table.n_rows();
     model_file::write_predictions(&model, &table, &j.out)?;
+    let warnings: Vec<Message> = model
+        .provenance()
+        .warnings
+        .iter()
+        .map(|w| Message::new(format!("when fitted: {w}")))
+        .collect();
     let json = json!({
         "command": "predict",
         "model": j.model,
         "data": j.data,
         "rows": rows,
         "out": j.out,
-        "columns": model_file::prediction_columns(&model),
+        "columns": model_file::prediction_columns(&model, &table),
+        "decisions": flags(&table.decisions),
+        "warnings": flags(&warnings),
     });
-    let text = format!(
+    let mut text = String::new();
+    labelled(&mut text, "decided", &shown(&table.decisions));
+    labelled(&mut text, "warning", &warnings);
+    let _ = write!(
+        text,
         "wrote predictions for {rows} rows to {}\nCaution: {CAUTION}",
         j.out.display()
     );
@@ -176,8 +277,16 @@ fn cross_validate(j: CvJob, progress: &Progress) -> Result<Outcome> {
     json["data"] = json!(j.data);
     json["seed"] = json!(j.seed);
     json["charts"] = json!(written);
-    let mut text = format!(
-        "{}-fold cross-validation ({} repeat{}) on {} rows of {}\n",
+    json["decisions"] = json!(flags(data.decisions()));
+    let mut warnings = data.warnings().to_vec();
+    warnings.extend(result.warnings());
+    json["warnings"] = json!(flags(&warnings));
+    json["fit_notes"] = json!(flags(&result.fit_notes()));
+    let mut text = String::new();
+    read_text(&data, &j.data, &mut text);
+    let _ = writeln!(
+        text,
+        "{}-fold cross-validation ({} repeat{}) on {} rows of {}",
         j.cv.folds,
         j.cv.repeats,
         if j.cv.repeats == 1 { "" } else { "s" },
@@ -185,6 +294,8 @@ fn cross_validate(j: CvJob, progress: &Progress) -> Result<Outcome> {
         j.data.display()
     );
     cv_text(&result, &mut text);
+    labelled(&mut text, "note", &result.fit_notes());
+    labelled(&mut text, "warning", &result.warnings());
     for c in &written {
         let _ = writeln!(text, "wrote {}", c.display());
     }
@@ -218,12 +329,27 @@ fn sweep(j: SweepJob, progress: &Progress) -> Result<Outcome> {
     json["command"] = json!("sweep");
     json["best"] = json!(result.table.rows[0].name);
     json["model"] = json!(j.out);
-    let mut text = format!(
-        "sweep of {} configurations on shared folds, sorted by {}\n",
+    json["decisions"] = json!(flags(data.decisions()));
+    let mut warnings = data.warnings().to_vec();
+    warnings.extend(sweep_warnings(&result.table));
+    warnings.extend(
+        result
+            .best
+            .warnings()
+            .iter()
+            .map(|w| w.prefixed("the best refitted on all rows: ")),
+    );
+    json["warnings"] = json!(flags(&warnings));
+    let mut text = String::new();
+    read_text(&data, &j.data, &mut text);
+    let _ = writeln!(
+        text,
+        "sweep of {} configurations on shared folds, sorted by {}",
         result.table.rows.len(),
         plan.metric.name()
     );
     table_text(&result.table, &mut text);
+    labelled(&mut text, "warning", &warnings[data.warnings().len()..]);
     if let Some(out) = &j.out {
         let _ = writeln!(
             text,
@@ -239,7 +365,7 @@ fn write_plan(j: SweepJob, path: &std::path::Path) -> Result<Outcome> {
     let plan = plan_of(&j, &data)?;
     sweep_files::write_plan(&plan, &j.table, path)?;
     let trials = plan.trials().len();
-    let json = json!({"command": "sweep", "plan": path, "trials": trials, "configurations": plan.configurations.len()});
+    let json = json!({"command": "sweep", "plan": path, "trials": trials, "configurations": plan.configurations.len(), "decisions": flags(data.decisions()), "warnings": flags(data.warnings())});
     let text = format!(
         "wrote a plan of {trials} trials ({} configurations x {} folds) to {}\nrun each with: stratanet sweep-trial {} {} --trial INDEX --out trial-INDEX.json",
         plan.configurations.len(),
@@ -266,10 +392,12 @@ fn sweep_trial(j: TrialJob) -> Result<Outcome> {
         j.history,
         &j.out,
     )?;
-    let json = json!({"command": "sweep-trial", "trial": j.trial, "out": j.out});
+    let json = json!({"command": "sweep-trial", "trial": j.trial, "out": j.out, "warnings": flags(&result.warnings)});
+    let mut text = format!("trial {} done; wrote {}\n", j.trial, j.out.display());
+    labelled(&mut text, "warning", &result.warnings);
     Ok(Outcome {
         json,
-        text: format!("trial {} done; wrote {}", j.trial, j.out.display()),
+        text: text.trim_end().to_string(),
     })
 }
 
@@ -324,9 +452,26 @@ fn sweep_merge(j: MergeJob) -> Result<Outcome> {
     )?;
     let mut json = table_json(&table);
     json["command"] = json!("sweep-merge");
+    let warnings = sweep_warnings(&table);
+    json["warnings"] = json!(flags(&warnings));
     let mut text = format!("merged {} trials\n", j.results.len());
     table_text(&table, &mut text);
+    labelled(&mut text, "warning", &warnings);
     Ok(Outcome { json, text })
+}
+
+/// Every configuration's fold warnings, named.
+fn sweep_warnings(table: &crate::validate::SweepTable) -> Vec<Message> {
+    let mut rows: Vec<&crate::validate::SweepRow> = table.rows.iter().collect();
+    rows.sort_by_key(|r| r.index);
+    rows.iter()
+        .flat_map(|r| {
+            r.cross_validation
+                .warnings()
+                .into_iter()
+                .map(move |w| w.prefixed(&format!("configuration \"{}\", ", r.name)))
+        })
+        .collect()
 }
 
 fn demo(j: DemoJob, progress: &Progress) -> Result<Outcome> {

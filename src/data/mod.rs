@@ -8,14 +8,24 @@
 
 pub(crate) mod csv;
 mod dataset;
+mod impute;
+pub(crate) mod rows;
 mod scale;
 pub(crate) mod split;
+mod summary;
 
 pub use self::csv::{
-    CsvOptions, Missing, TargetKind, MAX_COLUMNS, MAX_FIELD_BYTES, MAX_RECORD_BYTES,
+    CsvOptions, Missing, HIGH_CARDINALITY_MIN, MAX_AUTO_CLASSES, MAX_CLASSES, MIN_ID_CELLS,
+    MIN_ROWS_PER_CLASS,
 };
-pub use dataset::{ColumnEncoding, Dataset, Target};
+pub use dataset::{ColumnEncoding, ColumnReport, Dataset, ReadReport, RowIds, Target, Task};
+pub use impute::Imputer;
+pub use rows::{
+    DecimalMark, Delimiter, DEFAULT_MISSING_MARKERS, MAX_COLUMNS, MAX_FIELD_BYTES,
+    MAX_RECORD_BYTES, SNIFF_BYTES, SNIFF_ROWS,
+};
 pub use scale::{Scaler, Scaling};
 pub use split::{
     kfold, random_split, repeated_stratified_folds, stratified_folds, stratified_split, Fold, Split,
 };
+pub use summary::{ColumnSummary, TableSummary};

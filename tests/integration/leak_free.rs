@@ -1,0 +1,132 @@
+//! What a fit learns from rows, it learns from its training rows only,
+//! inside every cross-validation fold: the fill values of missing cells
+//! and the target's scaling. Each is checked against the statistic
+//! computed here, by its definition, on exactly the fold's training rows
+//! (median: Hyndman & Fan, "Sample quantiles in statistical packages",
+//! 1996, definition 7 at p = 1/2; mean and population standard deviation:
+//! their textbook definitions, common practice, no source).
+
+use crate::support::close;
+use ndarray::Array2;
+use stratanet::data::{CsvOptions, Missing};
+use stratanet::fit::fit_with_seed;
+use stratanet::prelude::*;
+use stratanet::rng::uniform;
+
+fn median(mut v: Vec<f64>) -> f64 {
+    v.sort_by(f64::total_cmp);
+    let n = v.len();
+    if n % 2 == 1 {
+        v[n / 2]
+    } else {
+        (v[n / 2 - 1] + v[n / 2]) / 2.0
+    }
+}
+
+/// 60 rows: x (every fifth cell missing), z, and a class from x + z.
+fn table_with_gaps() -> (String, Vec<Option<f64>>) {
+    let mut rng = seeded_rng(21);
+    let mut text = String::from("x,z,class\n");
+    let mut xs = Vec::new();
+    for i in 0..60 {
+        let (x, z) = (uniform(&mut rng, 0.0, 10.0), uniform(&mut rng, 0.0, 10.0));
+        let class = if x + z > 10.0 { "high" } else { "low" };
+        if i % 5 == 2 {
+            text.push_str(&format!(",{z:.3},{class}\n"));
+            xs.push(None);
+        } else {
+            text.push_str(&format!("{x:.3},{z:.3},{class}\n"));
+            xs.push(Some(format!("{x:.3}").parse().unwrap()));
+        }
+    }
+    (text, xs)
+}
+
+#[test]
+fn each_fold_fills_missing_cells_from_its_own_training_rows() {
+    let (text, xs) = table_with_gaps();
+    let data = CsvOptions::new("class")
+        .missing(Missing::Impute)
+        .read_str(&text, "gaps.csv")
+        .unwrap();
+    assert_eq!(data.missing_cells(), 12);
+    let options = FitOptions::default()
+        .hidden(&[])
+        .epochs(3)
+        .early_stopping(None);
+    let cv = cross_validate(&data, &options, &CvOptions::default(), &mut seeded_rng(4)).unwrap();
+    let whole = median(xs.iter().flatten().copied().collect());
+    let mut differs = 0;
+    for fold in &cv.folds {
+        let train: Vec<usize> = (0..60).filter(|r| !fold.test_rows.contains(r)).collect();
+        assert_eq!(train.len(), fold.train_rows);
+        let expected = median(train.iter().filter_map(|&r| xs[r]).collect());
+        let fill = fold.imputer.as_ref().unwrap().fill_values()[0];
+        assert_eq!(fill, expected, "fold {}", fold.index + 1);
+        differs += usize::from(fill != whole);
+    }
+    assert!(
+        differs > 0,
+        "no fold's fill differs from the whole table's median"
+    );
+}
+
+#[test]
+fn a_fit_fills_from_its_training_rows_not_its_validation_rows() {
+    let (text, xs) = table_with_gaps();
+    let data = CsvOptions::new("class")
+        .missing(Missing::Impute)
+        .read_str(&text, "gaps.csv")
+        .unwrap();
+    let options = FitOptions::default()
+        .hidden(&[])
+        .epochs(3)
+        .validation_share(0.3);
+    let fitted = fit_with_seed(&data, &options, 8).unwrap();
+    assert!(!fitted.split().validation.is_empty());
+    let expected = median(fitted.split().train.iter().filter_map(|&r| xs[r]).collect());
+    assert_eq!(fitted.model().imputer().unwrap().fill_values()[0], expected);
+}
+
+#[test]
+fn each_fold_scales_the_target_on_its_own_training_rows() {
+    let mut rng = seeded_rng(31);
+    let x = Array2::from_shape_fn((50, 2), |_| uniform(&mut rng, -1.0, 1.0));
+    let y = Array2::from_shape_fn((50, 1), |(i, _)| {
+        1000.0 + 40.0 * x[[i, 0]] - 7.0 * x[[i, 1]] + i as f64
+    });
+    let data = Dataset::regression(x, y.clone()).unwrap();
+    let options = FitOptions::default()
+        .hidden(&[])
+        .epochs(3)
+        .early_stopping(None);
+    let cv = cross_validate(&data, &options, &CvOptions::default(), &mut seeded_rng(6)).unwrap();
+    for fold in &cv.folds {
+        let train: Vec<f64> = (0..50)
+            .filter(|r| !fold.test_rows.contains(r))
+            .map(|r| y[[r, 0]])
+            .collect();
+        let n = train.len() as f64;
+        let mean = train.iter().sum::<f64>() / n;
+        let sd = (train.iter().map(|v| (v - mean) * (v - mean)).sum::<f64>() / n).sqrt();
+        let s = fold.target_scaler.as_ref().unwrap();
+        close(
+            s.offsets()[0],
+            mean,
+            1e-12 * mean.abs(),
+            "fold's target mean",
+        );
+        close(
+            s.scales()[0],
+            sd,
+            1e-12 * sd,
+            "fold's target standard deviation",
+        );
+    }
+    // The held-out predictions are in the target's own units.
+    let first = &cv.folds[0];
+    let held: Vec<f64> = first.test_rows.iter().map(|&r| y[[r, 0]]).collect();
+    let p = first.predictions.column(0).to_vec();
+    let mean = |v: &[f64]| v.iter().sum::<f64>() / v.len() as f64;
+    assert!((mean(&p) - mean(&held)).abs() < 20.0, "{p:?} {held:?}");
+}
