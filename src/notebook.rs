@@ -596,6 +596,22 @@ impl Sweep {
             self.table.rows[0].name,
             self.best.model().provenance.table_rows
         )]));
+        let mut w: Vec<String> = Vec::new();
+        for r in &self.table.rows {
+            w.extend(
+                r.cross_validation
+                    .warnings()
+                    .iter()
+                    .map(|m| format!("configuration \"{}\", {m}", r.name)),
+            );
+        }
+        w.extend(
+            self.best
+                .warnings()
+                .iter()
+                .map(|m| format!("the best refitted on all rows: {m}")),
+        );
+        h.push_str(&warnings(&w));
         h
     }
 

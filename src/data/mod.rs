@@ -1,5 +1,7 @@
-//! Tables of samples: reading CSV files, building from arrays, scaling,
-//! splitting and folding.
+//! Tables of samples: reading CSV files (one row reader, [`rows`], behind
+//! every CSV input; training tables and what they decide in [`CsvOptions`];
+//! a first look in [`Dataset::summary`]), building from arrays, filling
+//! missing cells, scaling, splitting and folding.
 //!
 //! A [`Dataset`] holds a numeric feature matrix (one row per sample, one
 //! column per encoded feature), the names of those columns, how they were
@@ -9,7 +11,7 @@
 pub(crate) mod csv;
 mod dataset;
 mod impute;
-pub(crate) mod rows;
+pub mod rows;
 mod scale;
 pub(crate) mod split;
 mod summary;

@@ -1,7 +1,7 @@
 //! The one row reader behind every CSV input: training tables
 //! ([`CsvOptions`](super::CsvOptions)), rows for a model
 //! ([`FeatureOptions`](crate::model_file::FeatureOptions)) and the table
-//! summary ([`inspect`](super::inspect)). It owns the dialect (delimiter,
+//! summary ([`Dataset::summary`](super::Dataset::summary)). It owns the dialect (delimiter,
 //! decimal mark, missing-cell markers), the header checks, the limits that
 //! keep hostile files from exhausting memory, and the reading of one cell as
 //! missing, a number or text; the readers above it decide what a column is.

@@ -34,7 +34,11 @@ pub struct ColumnSummary {
     pub levels: Vec<(String, usize)>,
 }
 
-/// A table's summary (see the [module docs](self)).
+/// A table's summary ([`Dataset::summary`]): every column of the header
+/// with its role, its decided type and why, missing cells, distinct values,
+/// range or levels; the target's task and class balance; and every
+/// decision and warning of the reader, plus a warning when a class has
+/// fewer rows than the folds asked for.
 #[derive(Clone, Debug, PartialEq)]
 pub struct TableSummary {
     /// Where the table came from.
@@ -65,8 +69,8 @@ fn distinct_numbers(values: impl Iterator<Item = f64>) -> usize {
 }
 
 impl Dataset {
-    /// The table's summary; with `folds`, a warning when a class has
-    /// fewer rows than that (see the [module docs](self)).
+    /// The table's summary ([`TableSummary`]); with `folds`, a warning
+    /// when a class has fewer rows than that.
     pub fn summary(&self, folds: Option<usize>) -> TableSummary {
         let empty = ReadReport {
             source: self.source.clone(),

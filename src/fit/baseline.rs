@@ -17,7 +17,15 @@ use crate::network::Head;
 use crate::train::{constant_loss, Loss};
 use ndarray::{Array2, ArrayView2};
 
-/// The loss of predicting without the inputs (see the [module docs](self)).
+/// The loss of predicting without the inputs:
+///
+/// ```text
+/// classes   every row gets the training rows' class shares p_c = n_c / n
+/// numbers   every row gets the training mean (R^2 0 on the training rows)
+/// ```
+/// computed with the fit's own loss, in the units the network learns, with
+/// the same class weights, on the same training and validation rows
+/// (common practice, no source).
 #[derive(Clone, Debug, PartialEq)]
 pub struct Baseline {
     /// What it predicts, in words ("the training class shares").

@@ -13,7 +13,7 @@
 //!    [`FitOptions::validation_share`]),
 //! 3. fill missing cells (a table read with missing cells imputed) with
 //!    fill values learnt from the training rows only
-//!    ([`Imputer`](crate::data::Imputer)),
+//!    ([`crate::data::Imputer`]),
 //! 4. fit the feature scaler on the training rows only and apply it to both
 //!    parts, and for a numeric target with the identity head fit the target
 //!    scaler ([`FitOptions::target_scaling`]) there too: the network learns
@@ -501,4 +501,92 @@ fn fit_warnings(
         Convergence::Converged | Convergence::Unknown => {}
     }
     w.into_iter().map(Message::new).collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::train::{EpochRecord, Loss};
+
+    fn report(validation: &[f64], stopped_early: bool) -> TrainingReport {
+        let history: Vec<EpochRecord> = validation
+            .iter()
+            .enumerate()
+            .map(|(i, &v)| EpochRecord {
+                epoch: i + 1,
+                training_loss: v,
+                validation_loss: Some(v),
+                validation_accuracy: None,
+                learning_rate: 50.0,
+                elapsed_seconds: 0.0,
+            })
+            .collect();
+        TrainingReport {
+            epochs_run: history.len(),
+            best_epoch: history.len(),
+            best_validation_loss: validation.iter().copied().reduce(f64::min),
+            stopped_early,
+            loss: Loss::CrossEntropy,
+            final_training_loss: *validation.last().unwrap(),
+            history,
+        }
+    }
+
+    // The case seen with a learning rate of 50: a validation loss of 182
+    // against 1.79 for predicting the class shares.
+    #[test]
+    fn a_fit_no_better_than_its_baseline_is_flagged() {
+        let baseline = Baseline {
+            description: "predicting the training class shares for every row".into(),
+            training_loss: Some(1.8),
+            validation_loss: Some(1.79),
+        };
+        let w = fit_warnings(
+            &report(&[190.0, 182.0, 185.0], true),
+            &baseline,
+            &FitOptions::default(),
+        );
+        assert_eq!(
+            w.iter().map(ToString::to_string).collect::<Vec<_>>(),
+            ["the validation loss (182.00000, cross-entropy) is no better than the baseline's (1.79000, predicting the training class shares for every row): the network learnt nothing the inputs add; try a smaller learning_rate, more epochs, or check the columns"]
+        );
+    }
+
+    // The rule of TrainingReport::convergence: over E = 100 epochs the
+    // window is 10; a drop of 1% over it is "still falling", of 0.05% not.
+    #[test]
+    fn a_loss_still_falling_at_the_end_is_not_converged() {
+        let falling: Vec<f64> = (0..100).map(|e| 1.0 - 0.001 * e as f64).collect();
+        let r = report(&falling, false);
+        assert!(matches!(
+            r.convergence(true),
+            Convergence::StillFalling { window: 10, .. }
+        ));
+        let w = fit_warnings(
+            &r,
+            &Baseline {
+                description: String::new(),
+                training_loss: None,
+                validation_loss: None,
+            },
+            &FitOptions::default(),
+        );
+        assert_eq!(
+            w[0].to_string(),
+            "not converged: the validation loss fell by 1.10% over the last 10 epochs of 100; give more epochs (or a larger learning_rate)"
+        );
+        let flat: Vec<f64> = (0..100).map(|e| 1.0 - 0.00005 * e as f64).collect();
+        assert_eq!(
+            report(&flat, false).convergence(true),
+            Convergence::Converged
+        );
+        assert_eq!(
+            report(&falling, true).convergence(true),
+            Convergence::Converged
+        );
+        assert_eq!(
+            report(&[1.0], false).convergence(true),
+            Convergence::SingleEpoch
+        );
+    }
 }

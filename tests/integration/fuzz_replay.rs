@@ -204,6 +204,8 @@ fn write_seeds() {
         "sweep-trial plan.jsonl data.csv --trial 3 --out trial-3.json",
         "fit data.csv --target y --learning-rate 0 --epochs 10",
         "demo --seed 7 --json",
+        "inspect data.csv --target y --missing impute --missing-indicators --decimal comma --delimiter semicolon --id row --task regression --json",
+        "fit data.csv --target y --class-weights balanced --missing-markers n.a.,- --categorical z --features z,w",
     ];
     for (i, line) in lines.iter().enumerate() {
         let joined = line.split(' ').collect::<Vec<_>>().join("\0");

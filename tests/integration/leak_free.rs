@@ -130,3 +130,49 @@ fn each_fold_scales_the_target_on_its_own_training_rows() {
     let mean = |v: &[f64]| v.iter().sum::<f64>() / v.len() as f64;
     assert!((mean(&p) - mean(&held)).abs() < 20.0, "{p:?} {held:?}");
 }
+
+/// Class weights enter the loss. With one input that is always 0, only the
+/// output's bias learns, and the weighted cross-entropy
+/// `sum_i w_i CE(p, y_i)` is smallest at the weighted share of the second
+/// class, `p = sum_{y=1} w / sum w` (set its derivative to 0; common
+/// practice, no source). Three rows of `a` and one of `b`: unweighted
+/// `p = 1/4`; balanced weights `n / (k n_c)` give `a` 4/6 and `b` 2, so
+/// `p = 2 / (3 * 4/6 + 2) = 1/2`; weights `a=1,b=3` give `p = 3/6 = 1/2`.
+#[test]
+fn class_weights_move_the_optimum_to_the_weighted_share() {
+    use stratanet::fit::ClassWeights;
+    use stratanet::train::{BatchSize, Optimiser};
+    let data = Dataset::classification(
+        Array2::zeros((4, 1)),
+        vec![0, 0, 0, 1],
+        vec!["a".into(), "b".into()],
+    )
+    .unwrap();
+    let p_b = |weights: ClassWeights| {
+        let options = FitOptions::default()
+            .hidden(&[])
+            .optimiser(Optimiser::Sgd)
+            .learning_rate(1.0)
+            .batch_size(BatchSize::Full)
+            .early_stopping(None)
+            .epochs(400)
+            .class_weights(weights);
+        let fitted = fit_with_seed(&data, &options, 2).unwrap();
+        fitted
+            .model()
+            .predict_probabilities(Array2::zeros((1, 1)).view())
+            .unwrap()[[0, 1]]
+    };
+    close(p_b(ClassWeights::None), 0.25, 1e-9, "unweighted share");
+    close(p_b(ClassWeights::Balanced), 0.5, 1e-9, "balanced weights");
+    close(p_b("a=1,b=3".parse().unwrap()), 0.5, 1e-9, "given weights");
+    assert_eq!(
+        "a=1,b=0".parse::<ClassWeights>().unwrap_err().to_string(),
+        "option class_weights = a=1,b=0: the weight of \"b\" must be a finite number above 0"
+    );
+    let options = FitOptions::default().class_weights("a=1".parse().unwrap());
+    assert_eq!(
+        fit_with_seed(&data, &options, 2).unwrap_err().to_string(),
+        "option class_weights = a=1: gives no weight for class \"b\"; name every class (a, b)"
+    );
+}
