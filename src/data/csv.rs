@@ -52,7 +52,7 @@
 //! kept as numbers in one row-major buffer, so an all-numeric table becomes
 //! its feature matrix without a copy.
 
-use super::dataset::{ColumnReport, ReadReport, RowIds, Task};
+use super::dataset::{ColumnReport, Missing, ReadReport, RowIds, Task};
 use super::rows::{CellRules, DecimalMark, Delimiter, RowReader};
 use super::{ColumnEncoding, Dataset, Target};
 use crate::error::{opt, opt_is, Error, ErrorKind, Message, Result};
@@ -61,30 +61,6 @@ use std::collections::HashMap;
 use std::io::Read;
 use std::path::Path;
 use std::sync::Arc;
-
-/// What to do with a row that has a missing cell in a used column.
-///
-/// Text form: `error`, `drop`, `impute`.
-#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
-pub enum Missing {
-    /// Stop with an error naming the line and column (the default).
-    #[default]
-    Error,
-    /// Drop the row and count it.
-    Drop,
-    /// Keep the row: a missing feature cell is filled when fitting, from
-    /// the training rows only (inside every fold): the median of a numeric
-    /// column, the most frequent level of a text column (see
-    /// [`Imputer`](super::Imputer)). The model records the fill values
-    /// and applies them to new rows.
-    Impute,
-}
-
-crate::error::text_forms!(Missing, "missing", {
-    Missing::Error => "error",
-    Missing::Drop => "drop",
-    Missing::Impute => "impute",
-});
 
 /// With [`Task::Auto`], a target of whole numbers is taken as classes only
 /// up to this many distinct values (common practice, no source: a few
@@ -1400,6 +1376,7 @@ fn build_dataset(raw: RawTable, opts: &CsvOptions) -> Result<Dataset> {
         header,
         delimiter,
         decimal: opts.decimal,
+        missing: opts.missing,
         missing_markers: rules.markers.clone(),
         task: opts.task,
         target: opts.target.clone(),

@@ -60,6 +60,30 @@ impl ColumnEncoding {
     }
 }
 
+/// What to do with a row that has a missing cell in a used column.
+///
+/// Text form: `error`, `drop`, `impute`.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub enum Missing {
+    /// Stop with an error naming the line and column (the default).
+    #[default]
+    Error,
+    /// Drop the row and count it.
+    Drop,
+    /// Keep the row: a missing feature cell is filled when fitting, from
+    /// the training rows only (inside every fold): the median of a numeric
+    /// column, the most frequent level of a text column (see
+    /// [`Imputer`](super::Imputer)). The model records the fill values
+    /// and applies them to new rows.
+    Impute,
+}
+
+crate::error::text_forms!(Missing, "missing", {
+    Missing::Error => "error",
+    Missing::Drop => "drop",
+    Missing::Impute => "impute",
+});
+
 /// Classification or regression.
 ///
 /// Text form: `auto`, `classification`, `regression`.
@@ -169,6 +193,8 @@ pub struct ReadReport {
     pub delimiter: Delimiter,
     /// The decimal mark.
     pub decimal: DecimalMark,
+    /// The missing-cell policy.
+    pub missing: Missing,
     /// The missing-cell markers in force (besides the empty cell).
     pub missing_markers: Vec<String>,
     /// The task as asked for ([`Task::Auto`] when decided).

@@ -17,10 +17,12 @@ pub(crate) mod split;
 mod summary;
 
 pub use self::csv::{
-    CsvOptions, Missing, HIGH_CARDINALITY_MIN, MAX_AUTO_CLASSES, MAX_CLASSES, MIN_ID_CELLS,
+    CsvOptions, HIGH_CARDINALITY_MIN, MAX_AUTO_CLASSES, MAX_CLASSES, MIN_ID_CELLS,
     MIN_ROWS_PER_CLASS,
 };
-pub use dataset::{ColumnEncoding, ColumnReport, Dataset, ReadReport, RowIds, Target, Task};
+pub use dataset::{
+    ColumnEncoding, ColumnReport, Dataset, Missing, ReadReport, RowIds, Target, Task,
+};
 pub use impute::Imputer;
 pub use rows::{
     DecimalMark, Delimiter, DEFAULT_MISSING_MARKERS, MAX_COLUMNS, MAX_FIELD_BYTES,

@@ -77,6 +77,7 @@ impl Dataset {
             header: Vec::new(),
             delimiter: Default::default(),
             decimal: Default::default(),
+            missing: Default::default(),
             missing_markers: Vec::new(),
             task: Task::Auto,
             target: self.target_name.clone(),

@@ -269,7 +269,14 @@ pub(crate) fn fit_checked(
                 .join(", ")
         )));
     }
-    let imputer = if data.missing_cells > 0 {
+    // A table read with missing cells imputed gets fill values even when
+    // these training rows have no gap: a cross-validation fold's held-out
+    // rows may have one.
+    let imputes = data
+        .report
+        .as_deref()
+        .is_some_and(|r| r.missing == crate::data::Missing::Impute);
+    let imputer = if data.missing_cells > 0 || imputes {
         Some(Imputer::from_rows(
             &data.columns,
             data.x(),

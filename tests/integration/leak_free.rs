@@ -176,3 +176,51 @@ fn class_weights_move_the_optimum_to_the_weighted_share() {
         "option class_weights = a=1: gives no weight for class \"b\"; name every class (a, b)"
     );
 }
+
+/// A fold whose training rows have no gap still learns fill values, so the
+/// gaps in its held-out rows are filled (from its own training rows).
+#[test]
+fn a_fold_without_gaps_in_its_training_rows_fills_its_held_out_rows() {
+    let mut text = String::from("x,z,class\n");
+    let mut xs = Vec::new();
+    for i in 0..20 {
+        let x = (i * 7 % 20) as f64 / 2.0;
+        let class = if i % 2 == 0 { "even" } else { "odd" };
+        if i == 3 {
+            text.push_str(&format!(",{i},{class}\n"));
+        } else {
+            text.push_str(&format!("{x},{i},{class}\n"));
+        }
+        xs.push(x);
+    }
+    let data = CsvOptions::new("class")
+        .missing(Missing::Impute)
+        .read_str(&text, "one-gap.csv")
+        .unwrap();
+    let plan = stratanet::validate::FoldPlan {
+        folds: vec![
+            stratanet::data::Fold {
+                train: (10..20).collect(),
+                test: (0..10).collect(),
+            },
+            stratanet::data::Fold {
+                train: (0..10).collect(),
+                test: (10..20).collect(),
+            },
+        ],
+        seeds: vec![1, 2],
+    };
+    let options = FitOptions::default()
+        .hidden(&[])
+        .epochs(2)
+        .early_stopping(None);
+    let cv_options = CvOptions {
+        folds: 2,
+        ..CvOptions::default()
+    };
+    let cv =
+        stratanet::validate::cross_validate_with_plan(&data, &options, &cv_options, &plan).unwrap();
+    let fill = cv.folds[0].imputer.as_ref().unwrap().fill_values()[0];
+    assert_eq!(fill, median(xs[10..20].to_vec()));
+    assert!(cv.folds[0].predictions.iter().all(|v| v.is_finite()));
+}
