@@ -3,7 +3,8 @@
 //! library's), and every flag whose default depends on the data or on
 //! another flag is an `Option` (left out means "the library decides").
 
-use crate::data::{Missing, Scaling};
+use crate::data::{DecimalMark, Delimiter, Missing, Scaling, Task};
+use crate::fit::ClassWeights;
 use crate::network::{Activation, Arithmetic, Init, Precision};
 use crate::train::{BatchSize, Loss, Optimiser, Schedule};
 use crate::validate::Metric;
@@ -36,6 +37,9 @@ pub(crate) enum Command {
         after_help = "Example:\n  stratanet predict parts-model.json new-parts.csv --out predictions.csv"
     )]
     Predict(PredictArgs),
+    /// Summarise a table as it would be read: each column's type and why, missing cells, levels, the task, warnings.
+    #[command(after_help = "Example:\n  stratanet inspect demo-data/parts.csv --target verdict")]
+    Inspect(InspectArgs),
     /// Cross-validate a configuration (stratified k-fold).
     #[command(
         after_help = "Example:\n  stratanet cv demo-data/parts.csv --target verdict --drop part_id --folds 5 --hidden 12"
@@ -88,24 +92,49 @@ pub(crate) struct OutputArgs {
     pub progress: bool,
 }
 
+/// How cells are read (every command that reads a CSV file).
+#[derive(Debug, Args, Clone)]
+pub(crate) struct DialectArgs {
+    /// Field delimiter: auto, comma, semicolon, tab [auto: detected from the header and the first rows].
+    #[arg(long, value_name = "NAME", value_parser = parsed::<Delimiter>)]
+    pub delimiter: Option<Delimiter>,
+    /// Decimal mark of numbers: point (1.5) or comma (1,5) [point; predict and check: the model's].
+    #[arg(long, value_name = "point|comma", value_parser = parsed::<DecimalMark>)]
+    pub decimal: Option<DecimalMark>,
+    /// Cells that mean "missing" (comma-separated; replaces the default set NA,N/A,NaN,nan,?,null,NULL; an empty cell is always missing).
+    #[arg(long, value_name = "LIST", value_delimiter = ',')]
+    pub missing_markers: Option<Vec<String>>,
+}
+
 /// How to read the table.
 #[derive(Debug, Args, Clone)]
 pub(crate) struct TableArgs {
     /// The target column.
     #[arg(long, value_name = "COL")]
     pub target: String,
+    /// classification, regression, or auto (decided from the target and printed) [auto].
+    #[arg(long, value_name = "TASK", value_parser = parsed::<Task>)]
+    pub task: Option<Task>,
     /// Columns to leave out (comma-separated).
     #[arg(long, value_name = "COLS", value_delimiter = ',')]
     pub drop: Vec<String>,
     /// Use only these feature columns (comma-separated, in this order).
     #[arg(long, value_name = "COLS", value_delimiter = ',')]
     pub features: Vec<String>,
-    /// Treat these columns as categorical (comma-separated).
+    /// Treat these columns as categorical (comma-separated; each must be a feature).
     #[arg(long, value_name = "COLS", value_delimiter = ',')]
     pub categorical: Vec<String>,
-    /// What to do with a row that has a missing cell: error or drop.
-    #[arg(long, value_name = "error|drop", default_value = "error", value_parser = parsed::<Missing>)]
+    /// An identifier column: carried into predictions, never a feature (repeatable, or comma-separated).
+    #[arg(long = "id", value_name = "COL", value_delimiter = ',', action = clap::ArgAction::Append)]
+    pub ids: Vec<String>,
+    /// What to do with a row that has a missing cell: error, drop, or impute (fill from the training rows) [error].
+    #[arg(long, value_name = "error|drop|impute", default_value = "error", value_parser = parsed::<Missing>)]
     pub missing: Missing,
+    /// With --missing impute: add a 0/1 column NAME:missing after each column with a missing cell.
+    #[arg(long)]
+    pub missing_indicators: bool,
+    #[command(flatten)]
+    pub dialect: DialectArgs,
 }
 
 /// The network and its training. Flags left out take the library's
@@ -124,6 +153,12 @@ pub(crate) struct NetArgs {
     /// Feature scaling: standardise, min-max, none [standardise].
     #[arg(long, value_name = "NAME", value_parser = parsed::<Scaling>)]
     pub scaling: Option<Scaling>,
+    /// Scaling of a numeric target, undone in predictions: standardise, min-max, none [standardise].
+    #[arg(long, value_name = "NAME", value_parser = parsed::<Scaling>)]
+    pub target_scaling: Option<Scaling>,
+    /// Class weights in the loss: none, balanced (n / (k n_c)), or CLASS=W,CLASS=W [none].
+    #[arg(long, value_name = "WEIGHTS", value_parser = parsed::<ClassWeights>)]
+    pub class_weights: Option<ClassWeights>,
     /// Float type: f64 or f32 [f64].
     #[arg(long, value_name = "f64|f32", value_parser = parsed::<Precision>)]
     pub precision: Option<Precision>,
@@ -311,9 +346,11 @@ pub(crate) struct CheckArgs {
     /// Accept and ignore columns the model does not use.
     #[arg(long)]
     pub ignore_extra: bool,
-    /// What to do with a row that has a missing cell: error or drop.
-    #[arg(long, value_name = "error|drop", default_value = "error", value_parser = parsed::<Missing>)]
-    pub missing: Missing,
+    /// What to do with a row that has a missing cell: error, drop, or impute with the model's fill values [impute if the model was fitted so, else error].
+    #[arg(long, value_name = "error|drop|impute", value_parser = parsed::<Missing>)]
+    pub missing: Option<Missing>,
+    #[command(flatten)]
+    pub dialect: DialectArgs,
     #[command(flatten)]
     pub output: OutputArgs,
 }
@@ -331,9 +368,25 @@ pub(crate) struct PredictArgs {
     /// Accept and ignore columns the model does not use.
     #[arg(long)]
     pub ignore_extra: bool,
-    /// What to do with a row that has a missing cell: error or drop.
-    #[arg(long, value_name = "error|drop", default_value = "error", value_parser = parsed::<Missing>)]
-    pub missing: Missing,
+    /// What to do with a row that has a missing cell: error, drop, or impute with the model's fill values [impute if the model was fitted so, else error].
+    #[arg(long, value_name = "error|drop|impute", value_parser = parsed::<Missing>)]
+    pub missing: Option<Missing>,
+    #[command(flatten)]
+    pub dialect: DialectArgs,
+    #[command(flatten)]
+    pub output: OutputArgs,
+}
+
+/// `stratanet inspect`.
+#[derive(Debug, Args)]
+pub(crate) struct InspectArgs {
+    /// The CSV file.
+    pub data: PathBuf,
+    #[command(flatten)]
+    pub table: TableArgs,
+    /// Warn when a class has fewer rows than this many folds.
+    #[arg(long, value_name = "K", default_value_t = 5)]
+    pub folds: usize,
     #[command(flatten)]
     pub output: OutputArgs,
 }
@@ -506,8 +559,9 @@ pub(crate) struct SweepMergeArgs {
     /// The trial result files, or folders of them, in any order.
     #[arg(required = true)]
     pub results: Vec<PathBuf>,
-    /// The CSV file the plan was made from (to refit the best with --out).
-    #[arg(long, value_name = "PATH", requires = "out")]
+    /// The CSV file the plan was made from: read, checked against the plan,
+    /// reported as a local sweep reports it (needed by --out).
+    #[arg(long, value_name = "PATH")]
     pub data: Option<PathBuf>,
     /// Save the best configuration, refitted on all rows of --data, here.
     #[arg(long, value_name = "PATH", requires = "data")]
@@ -553,6 +607,7 @@ impl Command {
             Command::Fit(a) => &a.output,
             Command::Check(a) => &a.output,
             Command::Predict(a) => &a.output,
+            Command::Inspect(a) => &a.output,
             Command::Cv(a) => &a.output,
             Command::Sweep(a) => &a.output,
             Command::Nested(a) => &a.output,

@@ -2,8 +2,9 @@
 //! [`Job`] before any work starts (see the module docs of `cli`).
 
 use super::args::{
-    CheckArgs, Cli, Command, CvArgs, DemoArgs, FitArgs, FoldArgs, NestedArgs, NetArgs, PredictArgs,
-    SearchArgs, SweepArgs, SweepMergeArgs, SweepStatusArgs, SweepTrialArgs, TableArgs,
+    CheckArgs, Cli, Command, CvArgs, DemoArgs, DialectArgs, FitArgs, FoldArgs, InspectArgs,
+    NestedArgs, NetArgs, PredictArgs, SearchArgs, SweepArgs, SweepMergeArgs, SweepStatusArgs,
+    SweepTrialArgs, TableArgs,
 };
 use super::charts;
 use super::paths::Outputs;
@@ -20,6 +21,7 @@ pub(crate) enum Job {
     Fit(FitJob),
     Check(CheckJob),
     Predict(PredictJob),
+    Inspect(InspectJob),
     Cv(CvJob),
     Sweep(SweepJob),
     WritePlan(SweepJob, PathBuf),
@@ -50,6 +52,12 @@ pub(crate) struct PredictJob {
     pub data: PathBuf,
     pub rows: FeatureOptions,
     pub out: PathBuf,
+}
+
+pub(crate) struct InspectJob {
+    pub data: PathBuf,
+    pub table: CsvOptions,
+    pub folds: usize,
 }
 
 pub(crate) struct CvJob {
@@ -111,8 +119,11 @@ pub(crate) struct TrialJob {
 pub(crate) struct MergeJob {
     pub plan: PathBuf,
     pub results: Vec<PathBuf>,
-    /// The table to refit on, and where to save the best model.
-    pub refit: Option<(PathBuf, PathBuf)>,
+    /// The plan's table: read, checked against the plan's fingerprint and
+    /// reported as a local sweep reports it; needed to refit.
+    pub data: Option<PathBuf>,
+    /// Where to save the best configuration refitted on the whole table.
+    pub out: Option<PathBuf>,
     pub next_plan: Option<PathBuf>,
 }
 
@@ -137,6 +148,7 @@ pub(crate) fn prepare(cli: Cli) -> Result<Job> {
         Command::Fit(a) => Job::Fit(fit(a)?),
         Command::Check(a) => Job::Check(check(a)?),
         Command::Predict(a) => Job::Predict(predict(a)?),
+        Command::Inspect(a) => Job::Inspect(inspect(a)?),
         Command::Cv(a) => Job::Cv(cv(a)?),
         Command::Sweep(a) => sweep(a)?,
         Command::Nested(a) => Job::Nested(nested(a)?),
@@ -147,15 +159,58 @@ pub(crate) fn prepare(cli: Cli) -> Result<Job> {
     })
 }
 
-fn table(t: TableArgs) -> CsvOptions {
+/// The table options the flags ask for, checked (an option without effect
+/// is refused here, before any file is read).
+fn table(t: TableArgs) -> Result<CsvOptions> {
     let mut o = CsvOptions::new(&t.target);
     o.drop = t.drop;
     o.categorical = t.categorical;
+    o.ids = t.ids;
     if !t.features.is_empty() {
         o.features = Some(t.features);
     }
     o.missing = t.missing;
-    o
+    o.missing_indicators = t.missing_indicators;
+    if let Some(task) = t.task {
+        o.task = task;
+    }
+    if let Some(d) = t.dialect.delimiter {
+        o.delimiter = d;
+    }
+    if let Some(d) = t.dialect.decimal {
+        o.decimal = d;
+    }
+    o.missing_markers = t.dialect.missing_markers;
+    o.validate()?;
+    Ok(o)
+}
+
+/// Rows for a model, read as the flags ask.
+fn rows(
+    ignore_extra: bool,
+    missing: Option<crate::data::Missing>,
+    d: DialectArgs,
+) -> Result<FeatureOptions> {
+    let mut o = FeatureOptions::default().ignore_extra(ignore_extra);
+    o.missing = missing;
+    if let Some(x) = d.delimiter {
+        o.delimiter = x;
+    }
+    o.decimal = d.decimal;
+    o.missing_markers = d.missing_markers;
+    o.validate()?;
+    Ok(o)
+}
+
+fn inspect(a: InspectArgs) -> Result<InspectJob> {
+    if a.folds < 2 {
+        return Err(Error::option("folds", a.folds, "must be at least 2"));
+    }
+    Ok(InspectJob {
+        data: a.data,
+        table: table(a.table)?,
+        folds: a.folds,
+    })
 }
 
 /// The fit options the flags ask for, validated.
@@ -172,6 +227,12 @@ fn fit_options(n: &NetArgs) -> Result<FitOptions> {
     }
     if let Some(s) = n.scaling {
         o.scaling = s;
+    }
+    if let Some(s) = n.target_scaling {
+        o.target_scaling = s;
+    }
+    if let Some(w) = &n.class_weights {
+        o.class_weights = w.clone();
     }
     if let Some(p) = n.precision {
         o.precision = p;
@@ -258,7 +319,7 @@ fn fit(a: FitArgs) -> Result<FitJob> {
     outputs.check(&[&a.data])?;
     Ok(FitJob {
         data: a.data,
-        table: table(a.table),
+        table: table(a.table)?,
         options,
         seed: a.net.seed,
         out: a.out,
@@ -268,10 +329,7 @@ fn fit(a: FitArgs) -> Result<FitJob> {
 
 fn check(a: CheckArgs) -> Result<CheckJob> {
     Ok(CheckJob {
-        rows: FeatureOptions::default()
-            .ignore_extra(a.ignore_extra)
-            .missing(a.missing)
-            .target(TargetColumn::Require),
+        rows: rows(a.ignore_extra, a.missing, a.dialect)?.target(TargetColumn::Require),
         model: a.model,
         data: a.data,
     })
@@ -282,9 +340,7 @@ fn predict(a: PredictArgs) -> Result<PredictJob> {
         .file("out", &a.out)
         .check(&[&a.data, &a.model])?;
     Ok(PredictJob {
-        rows: FeatureOptions::default()
-            .ignore_extra(a.ignore_extra)
-            .missing(a.missing),
+        rows: rows(a.ignore_extra, a.missing, a.dialect)?,
         model: a.model,
         data: a.data,
         out: a.out,
@@ -308,7 +364,7 @@ fn cv(a: CvArgs) -> Result<CvJob> {
     }
     Ok(CvJob {
         data: a.data,
-        table: table(a.table),
+        table: table(a.table)?,
         options,
         cv,
         seed: a.net.seed,
@@ -361,7 +417,7 @@ fn sweep(a: SweepArgs) -> Result<Job> {
     outputs.check(&[&a.data])?;
     let job = SweepJob {
         data: a.data,
-        table: table(a.table),
+        table: table(a.table)?,
         base,
         search,
         cv,
@@ -403,7 +459,7 @@ fn nested(a: NestedArgs) -> Result<NestedJob> {
     })?;
     Ok(NestedJob {
         data: a.data,
-        table: table(a.table),
+        table: table(a.table)?,
         base,
         search,
         outer,
@@ -491,7 +547,8 @@ fn sweep_merge(a: SweepMergeArgs) -> Result<MergeJob> {
     Ok(MergeJob {
         plan: a.plan,
         results: a.results,
-        refit: a.data.zip(a.out),
+        data: a.data,
+        out: a.out,
         next_plan: a.next_plan,
     })
 }

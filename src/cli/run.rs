@@ -3,14 +3,17 @@
 //! used) and returns an [`Outcome`].
 
 use super::charts;
-use super::output::{cv_json, cv_text, scores_json, scores_text, table_json, table_text, Outcome};
+use super::output::{
+    cv_json, cv_text, flags, labelled, loss_words, read_text, scores_json, scores_text, shown,
+    summary_json, summary_text, table_json, table_text, Outcome,
+};
 use super::prepare::{
-    CheckJob, CvJob, DemoJob, FitJob, Job, MergeJob, NestedJob, PredictJob, StatusJob, SweepJob,
-    TrialJob, TrialOut, Trials,
+    CheckJob, CvJob, DemoJob, FitJob, InspectJob, Job, MergeJob, NestedJob, PredictJob, StatusJob,
+    SweepJob, TrialJob, TrialOut, Trials,
 };
 use super::progress::Progress;
 use crate::data::{Dataset, Target};
-use crate::error::{Error, Result};
+use crate::error::{Error, Message, Result};
 use crate::fit::{fit_checked, FitOptions, CAUTION};
 use crate::model_file;
 use crate::rng::{child_seed, seeded_rng};
@@ -30,6 +33,7 @@ pub(crate) fn run(job: Job, progress: &Progress) -> Result<Outcome> {
         Job::Fit(j) => fit(j, progress),
         Job::Check(j) => check(j),
         Job::Predict(j) => predict(j),
+        Job::Inspect(j) => inspect(j),
         Job::Cv(j) => cross_validate(j, progress),
         Job::Sweep(j) => sweep(j, progress),
         Job::WritePlan(j, path) => write_plan(j, &path),
@@ -48,6 +52,17 @@ fn observed(options: &FitOptions, progress: &Progress) -> FitOptions {
     o
 }
 
+fn inspect(j: InspectJob) -> Result<Outcome> {
+    let data = j.table.read(&j.data)?;
+    let summary = data.summary(Some(j.folds));
+    let mut json = summary_json(&summary);
+    json["command"] = json!("inspect");
+    json["data"] = json!(j.data);
+    let mut text = String::new();
+    summary_text(&summary, &mut text);
+    Ok(Outcome { json, text })
+}
+
 fn fit(j: FitJob, progress: &Progress) -> Result<Outcome> {
     let data = j.table.read(&j.data)?;
     let options = observed(&j.options, progress);
@@ -57,11 +72,26 @@ fn fit(j: FitJob, progress: &Progress) -> Result<Outcome> {
     fitted.model().save(&j.out)?;
     let mut written = Vec::new();
     if let Some(dir) = &j.charts {
-        written = charts::fit_charts(&data, &fitted, dir)?;
+        let filled = fitted.model().filled(&data)?;
+        written = charts::fit_charts(&filled, &fitted, dir)?;
     }
     let r = fitted.report();
     let model = fitted.model();
     let last = r.history.last();
+    let baseline = fitted.baseline();
+    let validation = if fitted.split().validation.is_empty() || model.is_classifier() {
+        None
+    } else {
+        Scores::of(model, &data.select(&fitted.split().validation))
+            .ok()
+            .map(|(s, _)| s)
+    };
+    let r_squared = validation
+        .as_ref()
+        .and_then(|s| s.value(crate::validate::Metric::RSquared).ok());
+    let scaled = model.target_scaler().is_some();
+    let mut warnings: Vec<Message> = data.warnings().to_vec();
+    warnings.extend(fitted.warnings().iter().cloned());
     let json = json!({
         "command": "fit",
         "model": j.out,
@@ -69,20 +99,34 @@ fn fit(j: FitJob, progress: &Progress) -> Result<Outcome> {
         "dropped_rows": data.dropped_rows(),
         "features": data.feature_names(),
         "target": data.target_name(),
+        "task": if model.is_classifier() { "classification" } else { "regression" },
         "classes": data.class_names(),
+        "ids": model.id_columns(),
         "sizes": model.network().sizes(),
         "parameters": model.network().n_parameters(),
+        "loss": r.loss.name(),
+        "loss_definition": loss_words(r.loss, scaled),
         "epochs_run": r.epochs_run,
         "best_epoch": r.best_epoch,
         "stopped_early": r.stopped_early,
         "best_validation_loss": r.best_validation_loss,
         "final_training_loss": r.final_training_loss,
         "validation_accuracy": last.and_then(|e| e.validation_accuracy),
+        "validation_r_squared": r_squared,
+        "baseline": {
+            "description": baseline.description,
+            "training_loss": baseline.training_loss,
+            "validation_loss": baseline.validation_loss,
+        },
         "seed": j.seed,
         "table_fingerprint": model.provenance().table_fingerprint,
         "charts": written,
+        "decisions": flags(data.decisions()),
+        "notes": flags(fitted.notes()),
+        "warnings": flags(&warnings),
     });
     let mut text = String::new();
+    read_text(&data, &j.data, &mut text);
     let _ = writeln!(
         text,
         "fitted {:?} on {} rows of {}",
@@ -90,13 +134,7 @@ fn fit(j: FitJob, progress: &Progress) -> Result<Outcome> {
         data.n_rows(),
         j.data.display()
     );
-    if data.dropped_rows() > 0 {
-        let _ = writeln!(
-            text,
-            "  dropped {} rows with missing cells",
-            data.dropped_rows()
-        );
-    }
+    let _ = writeln!(text, "  loss: {}", loss_words(r.loss, scaled));
     let _ = writeln!(
         text,
         "  epochs run {} (best {}{}), final training loss {:.5}",
@@ -109,9 +147,38 @@ fn fit(j: FitJob, progress: &Progress) -> Result<Outcome> {
         },
         r.final_training_loss
     );
-    if let Some(v) = r.best_validation_loss {
-        let _ = writeln!(text, "  best validation loss {v:.5}");
+    match (r.best_validation_loss, baseline.validation_loss) {
+        (Some(v), Some(b)) => {
+            let _ = writeln!(
+                text,
+                "  best validation loss {v:.5}; baseline {b:.5}, {}",
+                baseline.description
+            );
+        }
+        (Some(v), None) => {
+            let _ = writeln!(text, "  best validation loss {v:.5}");
+        }
+        (None, _) => {
+            if let Some(b) = baseline.training_loss {
+                let _ = writeln!(
+                    text,
+                    "  baseline training loss {b:.5}, {}",
+                    baseline.description
+                );
+            }
+        }
     }
+    if let Some(a) = last.and_then(|e| e.validation_accuracy) {
+        let _ = writeln!(text, "  validation accuracy {a:.4}");
+    }
+    if let Some(r2) = r_squared {
+        let _ = writeln!(
+            text,
+            "  validation R\u{b2} {r2:.4} (in the target's own units; the training mean scores about 0)"
+        );
+    }
+    labelled(&mut text, "note", fitted.notes());
+    labelled(&mut text, "warning", fitted.warnings());
     let _ = writeln!(text, "saved the model to {}", j.out.display());
     for c in &written {
         let _ = writeln!(text, "wrote {}", c.display());
@@ -122,27 +189,49 @@ fn fit(j: FitJob, progress: &Progress) -> Result<Outcome> {
 fn check(j: CheckJob) -> Result<Outcome> {
     let model = crate::fit::Model::load(&j.model)?;
     let table = j.rows.read(&model, &j.data)?;
+    let decisions = table.decisions.clone();
     let data = table.into_dataset(&model)?;
     let (scores, _) = Scores::of(&model, &data)?;
+    let in_sample = data.fingerprint() == model.provenance().table_fingerprint;
+    let mut warnings = Vec::new();
+    if in_sample {
+        warnings.push(Message::new(format!(
+            "these are the rows the model was fitted on (the same SHA-256 fingerprint as its training table, {} rows): the scores are in-sample and overstate how it will do on new rows",
+            model.provenance().table_rows
+        )));
+    }
+    warnings.extend(
+        model
+            .provenance()
+            .warnings
+            .iter()
+            .map(|w| Message::new(format!("when fitted: {w}"))),
+    );
     let mut json = json!({
         "command": "check",
         "model": j.model,
         "data": j.data,
         "rows": data.n_rows(),
+        "in_sample": in_sample,
         "metrics": scores_json(&scores),
         "notes": scores.notes(),
+        "decisions": flags(&decisions),
+        "warnings": flags(&warnings),
     });
     if let Scores::Classification(m) = &scores {
         json["confusion"] = json!(m.confusion.counts());
         json["classes"] = json!(m.class_names);
     }
     let mut text = format!(
-        "{} rows of {} scored by {}\n",
+        "{} rows of {} scored by {}{}\n",
         data.n_rows(),
         j.data.display(),
-        j.model.display()
+        j.model.display(),
+        if in_sample { " (in-sample)" } else { "" }
     );
+    labelled(&mut text, "decided", &shown(&decisions));
     scores_text(&scores, &mut text);
+    labelled(&mut text, "warning", &warnings);
     let _ = writeln!(text, "Caution: {CAUTION}");
     Ok(Outcome { json, text })
 }
@@ -152,15 +241,27 @@ fn predict(j: PredictJob) -> Result<Outcome> {
     let table = j.rows.read(&model, &j.data)?;
     let rows = table.n_rows();
     model_file::write_predictions(&model, &table, &j.out)?;
+    let warnings: Vec<Message> = model
+        .provenance()
+        .warnings
+        .iter()
+        .map(|w| Message::new(format!("when fitted: {w}")))
+        .collect();
     let json = json!({
         "command": "predict",
         "model": j.model,
         "data": j.data,
         "rows": rows,
         "out": j.out,
-        "columns": model_file::prediction_columns(&model),
+        "columns": model_file::prediction_columns(&model, &table),
+        "decisions": flags(&table.decisions),
+        "warnings": flags(&warnings),
     });
-    let text = format!(
+    let mut text = String::new();
+    labelled(&mut text, "decided", &shown(&table.decisions));
+    labelled(&mut text, "warning", &warnings);
+    let _ = write!(
+        text,
         "wrote predictions for {rows} rows to {}\nCaution: {CAUTION}",
         j.out.display()
     );
@@ -180,8 +281,16 @@ fn cross_validate(j: CvJob, progress: &Progress) -> Result<Outcome> {
     json["data"] = json!(j.data);
     json["seed"] = json!(j.seed);
     json["charts"] = json!(written);
-    let mut text = format!(
-        "{}-fold cross-validation ({} repeat{}) on {} rows of {}\n",
+    json["decisions"] = json!(flags(data.decisions()));
+    let mut warnings = data.warnings().to_vec();
+    warnings.extend(result.warnings());
+    json["warnings"] = json!(flags(&warnings));
+    json["fit_notes"] = json!(flags(&result.fit_notes()));
+    let mut text = String::new();
+    read_text(&data, &j.data, &mut text);
+    let _ = writeln!(
+        text,
+        "{}-fold cross-validation ({} repeat{}) on {} rows of {}",
         j.cv.folds,
         j.cv.repeats,
         if j.cv.repeats == 1 { "" } else { "s" },
@@ -189,6 +298,8 @@ fn cross_validate(j: CvJob, progress: &Progress) -> Result<Outcome> {
         j.data.display()
     );
     cv_text(&result, &mut text);
+    labelled(&mut text, "note", &result.fit_notes());
+    labelled(&mut text, "warning", &result.warnings());
     for c in &written {
         let _ = writeln!(text, "wrote {}", c.display());
     }
@@ -223,9 +334,15 @@ fn sweep_outcome(
     table: &SweepTable,
     rounds: &[crate::validate::RoundSummary],
     best_saved: Option<&std::path::Path>,
+    read: Option<(&Dataset, &std::path::Path)>,
+    best_warnings: &[Message],
 ) -> Outcome {
+    let table_warnings = read.map_or(&[][..], |(data, _)| data.warnings());
     let mut json = table_json(table);
     json["command"] = json!("sweep");
+    if let Some((data, _)) = read {
+        json["decisions"] = json!(flags(data.decisions()));
+    }
     json["best"] = json!(table.rows[0].name);
     json["model"] = json!(best_saved);
     let optimism = format!(
@@ -234,6 +351,9 @@ fn sweep_outcome(
     );
     json["notes"] = json!([optimism]);
     let mut text = String::new();
+    if let Some((data, path)) = read {
+        read_text(data, path, &mut text);
+    }
     if !rounds.is_empty() {
         json["rounds"] = json!(rounds
             .iter()
@@ -263,6 +383,15 @@ fn sweep_outcome(
         table.metric.name()
     );
     table_text(table, &mut text);
+    let mut warnings = table_warnings.to_vec();
+    warnings.extend(sweep_warnings(table));
+    warnings.extend(
+        best_warnings
+            .iter()
+            .map(|w| w.prefixed("the best refitted on all rows: ")),
+    );
+    json["warnings"] = json!(flags(&warnings));
+    labelled(&mut text, "warning", &warnings[table_warnings.len()..]);
     if table.rows.len() > 1 {
         let _ = writeln!(text, "note: {optimism}");
     }
@@ -287,7 +416,13 @@ fn sweep(j: SweepJob, progress: &Progress) -> Result<Outcome> {
     if let Some(out) = &j.out {
         best.model().save(out)?;
     }
-    Ok(sweep_outcome(&table, &rounds, j.out.as_deref()))
+    Ok(sweep_outcome(
+        &table,
+        &rounds,
+        j.out.as_deref(),
+        Some((&data, &j.data)),
+        best.warnings(),
+    ))
 }
 
 fn nested(j: NestedJob, progress: &Progress) -> Result<Outcome> {
@@ -352,7 +487,13 @@ fn write_plan(j: SweepJob, path: &std::path::Path) -> Result<Outcome> {
     let data = j.table.read(&j.data)?;
     let plan = plan_of(&j, &data)?;
     sweep_files::write_plan(&plan, &j.table, path)?;
-    Ok(plan_outcome(&plan, path, &j.data))
+    let mut outcome = plan_outcome(&plan, path, &j.data);
+    outcome.json["decisions"] = json!(flags(data.decisions()));
+    outcome.json["warnings"] = json!(flags(data.warnings()));
+    let mut text = String::new();
+    read_text(&data, &j.data, &mut text);
+    outcome.text = text + &outcome.text;
+    Ok(outcome)
 }
 
 /// What writing a plan prints: how many trials, and how to run them.
@@ -420,7 +561,8 @@ fn sweep_trial(j: TrialJob) -> Result<Outcome> {
         TrialOut::Folder(d) => d.join(sweep_files::trial_file_name(t)),
     };
     // Trials of one task run in parallel; each depends on its own seed only.
-    let outcomes: Vec<Result<Option<String>>> = indices
+    type TrialDone = std::result::Result<Vec<Message>, String>;
+    let outcomes: Vec<Result<TrialDone>> = indices
         .par_iter()
         .map(|&t| {
             let path = path_of(t);
@@ -437,21 +579,26 @@ fn sweep_trial(j: TrialJob) -> Result<Outcome> {
                         j.history,
                         &path,
                     )?;
-                    Ok(None)
+                    Ok(Ok(result
+                        .warnings
+                        .iter()
+                        .map(|w| w.prefixed(&format!("trial {t}: ")))
+                        .collect()))
                 }
                 Err(e) if !e.is_io() => {
                     let reason = e.to_string();
                     sweep_files::write_failed_trial(&file.checksum, t, &reason, &path)?;
-                    Ok(Some(format!("trial {t}: {reason}")))
+                    Ok(Err(format!("trial {t}: {reason}")))
                 }
                 Err(e) => Err(e),
             }
         })
         .collect();
-    let mut failed = Vec::new();
+    let (mut failed, mut warnings) = (Vec::new(), Vec::new());
     for o in outcomes {
-        if let Some(f) = o? {
-            failed.push(f);
+        match o? {
+            Ok(w) => warnings.extend(w),
+            Err(f) => failed.push(f),
         }
     }
     if !failed.is_empty() {
@@ -469,16 +616,18 @@ fn sweep_trial(j: TrialJob) -> Result<Outcome> {
         TrialOut::File(f) => f.display().to_string(),
         TrialOut::Folder(d) => d.display().to_string(),
     };
-    let json = json!({"command": "sweep-trial", "trials": indices, "out": where_});
+    let json = json!({"command": "sweep-trial", "trials": indices, "out": where_, "warnings": flags(&warnings)});
+    let mut text = format!(
+        "{} trial{} done ({}); wrote {}\n",
+        indices.len(),
+        if indices.len() == 1 { "" } else { "s" },
+        index_list(&indices),
+        where_
+    );
+    labelled(&mut text, "warning", &warnings);
     Ok(Outcome {
         json,
-        text: format!(
-            "{} trial{} done ({}); wrote {}",
-            indices.len(),
-            if indices.len() == 1 { "" } else { "s" },
-            index_list(&indices),
-            where_
-        ),
+        text: text.trim_end().to_string(),
     })
 }
 
@@ -513,7 +662,7 @@ fn sweep_merge(j: MergeJob) -> Result<Outcome> {
                 ),
             ));
         };
-        if j.refit.is_some() {
+        if j.out.is_some() {
             return Err(Error::option(
                 "out",
                 "given",
@@ -545,33 +694,48 @@ fn sweep_merge(j: MergeJob) -> Result<Outcome> {
         .as_ref()
         .map(|r| r.history.clone())
         .unwrap_or_default();
-    let saved = match &j.refit {
-        Some((data_path, out)) => {
-            let data = file.table.read(data_path)?;
+    let data = match &j.data {
+        Some(path) => {
+            let data = file.table.read(path)?;
             if data.fingerprint() != file.plan.table_fingerprint {
                 return Err(Error::input(
-                    data_path.display().to_string(),
+                    path.display().to_string(),
                     "is not the table the plan was made from (its fingerprint differs)",
                 ));
             }
-            let mut best = file.plan.refit_best(&data, &table)?;
-            let how = best
-                .model()
-                .provenance()
-                .selected_by
-                .clone()
-                .unwrap_or_default();
-            best.set_selected_by(format!(
-                "{how}; plan {} (SHA-256 {})",
-                j.plan.display(),
-                file.checksum
-            ));
-            best.model().save(out)?;
-            Some(out.as_path())
+            Some(data)
         }
         None => None,
     };
-    Ok(sweep_outcome(&table, &rounds, saved))
+    let mut best_warnings = Vec::new();
+    // The best is refitted whenever the table is given, as a local sweep
+    // does, so the merged report carries the refit's warnings too.
+    if let Some(data) = &data {
+        let mut best = file.plan.refit_best(data, &table)?;
+        let how = best
+            .model()
+            .provenance()
+            .selected_by
+            .clone()
+            .unwrap_or_default();
+        best.set_selected_by(format!(
+            "{how}; plan {} (SHA-256 {})",
+            j.plan.display(),
+            file.checksum
+        ));
+        if let Some(out) = &j.out {
+            best.model().save(out)?;
+        }
+        best_warnings = best.warnings().to_vec();
+    }
+    let read = data.as_ref().zip(j.data.as_deref());
+    Ok(sweep_outcome(
+        &table,
+        &rounds,
+        j.out.as_deref(),
+        read,
+        &best_warnings,
+    ))
 }
 
 fn sweep_status(j: StatusJob) -> Result<Outcome> {
@@ -653,6 +817,20 @@ fn sweep_status(j: StatusJob) -> Result<Outcome> {
         }
     }
     Ok(Outcome { json, text })
+}
+
+/// Every configuration's fold warnings, named.
+fn sweep_warnings(table: &crate::validate::SweepTable) -> Vec<Message> {
+    let mut rows: Vec<&crate::validate::SweepRow> = table.rows.iter().collect();
+    rows.sort_by_key(|r| r.index);
+    rows.iter()
+        .flat_map(|r| {
+            r.cross_validation
+                .warnings()
+                .into_iter()
+                .map(move |w| w.prefixed(&format!("configuration \"{}\", ", r.name)))
+        })
+        .collect()
 }
 
 fn demo(j: DemoJob, progress: &Progress) -> Result<Outcome> {

@@ -27,4 +27,11 @@ pub struct Provenance {
     /// the metric, the configuration, and the plan file's checksum when the
     /// sweep ran from one).
     pub selected_by: Option<String>,
+    /// The baseline's loss on the training rows
+    /// ([`Baseline`](super::Baseline)).
+    pub baseline_training_loss: Option<f64>,
+    /// The baseline's loss on the validation rows, when there were some.
+    pub baseline_validation_loss: Option<f64>,
+    /// What the fit flagged ([`Fitted::warnings`](super::Fitted::warnings)).
+    pub warnings: Vec<String>,
 }

@@ -158,7 +158,7 @@ fn loss_and_slope(logits: ArrayView2<'_, f64>, labels: &[usize], head: Head, b: 
 /// use stratanet::network::Head;
 /// // Sums four times too large for what happened: T comes out above 1.
 /// let logits = array![[4.0], [4.0], [4.0], [4.0], [-4.0], [-4.0], [-4.0], [-4.0]];
-/// let t = fit_temperature(logits.view(), &[1, 1, 1, 0, 0, 0, 0, 1], stratanet::network::Head::Logistic)?;
+/// let t = fit_temperature(logits.view(), &[1, 1, 1, 0, 0, 0, 0, 1], Head::Logistic)?;
 /// assert!(t.value > 1.0 && t.log_loss_after < t.log_loss_before);
 /// # Ok::<(), stratanet::Error>(())
 /// ```

@@ -20,8 +20,10 @@
 
 use super::metrics::{ClassificationMetrics, Metric, RegressionMetrics};
 use super::stats::{corrected_resampled_t_test_named, ResampledTTest, Summary};
-use crate::data::{kfold, repeated_stratified_folds, Dataset, Fold, ScoredRows, Target};
-use crate::error::{Error, Result};
+use crate::data::{
+    kfold, repeated_stratified_folds, Dataset, Fold, Imputer, Scaler, ScoredRows, Target,
+};
+use crate::error::{Error, Message, Result};
 use crate::fit::{FitOptions, Model};
 use crate::observe::{Event, Observer};
 use crate::rng;
@@ -183,6 +185,16 @@ pub struct FoldResult {
     /// read back from a sweep's trial file, which keeps predictions but not
     /// the network).
     pub model: Option<Model>,
+    /// The fill values the fold's fit learnt from its own training rows
+    /// (a table with missing cells imputed).
+    pub imputer: Option<Imputer>,
+    /// The target scaler the fold's fit learnt from its own training rows
+    /// (regression with the identity head).
+    pub target_scaler: Option<Scaler>,
+    /// What the fold's fit decided ([`Fitted::notes`](crate::fit::Fitted::notes)).
+    pub notes: Vec<Message>,
+    /// What the fold's fit flagged ([`Fitted::warnings`](crate::fit::Fitted::warnings)).
+    pub warnings: Vec<Message>,
 }
 
 /// What a model is compared with in every fold: one prediction for every
@@ -317,6 +329,52 @@ impl CrossValidation {
         (train, test)
     }
 
+    /// What the folds' fits flagged (no better than the baseline, not
+    /// converged), each prefixed with its fold.
+    pub fn warnings(&self) -> Vec<Message> {
+        self.folds
+            .iter()
+            .flat_map(|f| {
+                f.warnings
+                    .iter()
+                    .map(move |w| w.prefixed(&format!("fold {}: ", f.index + 1)))
+            })
+            .collect()
+    }
+
+    /// What the folds' fits decided (early stopping switched off for few
+    /// rows), each distinct sentence once, with the folds it applies to.
+    pub fn fit_notes(&self) -> Vec<Message> {
+        let mut out: Vec<(Message, Vec<usize>)> = Vec::new();
+        for f in &self.folds {
+            for n in &f.notes {
+                // The target scaling is certain and documented; its numbers
+                // differ by fold.
+                if n.starts_with("the target is ") {
+                    continue;
+                }
+                match out.iter_mut().find(|(m, _)| m == n) {
+                    Some((_, folds)) => folds.push(f.index + 1),
+                    None => out.push((n.clone(), vec![f.index + 1])),
+                }
+            }
+        }
+        out.into_iter()
+            .map(|(n, folds)| {
+                if folds.len() == self.folds.len() {
+                    n.prefixed("every fold: ")
+                } else {
+                    let list: Vec<String> = folds.iter().map(usize::to_string).collect();
+                    n.prefixed(&format!(
+                        "fold{} {}: ",
+                        if folds.len() == 1 { "" } else { "s" },
+                        list.join(", ")
+                    ))
+                }
+            })
+            .collect()
+    }
+
     /// Notes on undefined values in any fold, prefixed with the fold.
     pub fn notes(&self) -> Vec<String> {
         self.folds
@@ -360,6 +418,26 @@ impl FoldPlan {
         cv: &CvOptions,
         rng: &mut R,
     ) -> Result<FoldPlan> {
+        if let (Some(names), Some(_)) = (data.class_names(), data.labels()) {
+            let counts = data.class_counts();
+            let smallest = counts
+                .iter()
+                .enumerate()
+                .filter(|&(_, &n)| n > 0)
+                .min_by_key(|&(_, &n)| n);
+            if let Some((c, &n)) = smallest {
+                if n < cv.folds {
+                    return Err(Error::option(
+                        "folds",
+                        cv.folds,
+                        format!(
+                            "must be at most {n}, the row count of the smallest class, \"{}\": stratified folds put every class in every fold; use at most {n} folds, or collect more rows of \"{}\"",
+                            names[c], names[c]
+                        ),
+                    ));
+                }
+            }
+        }
         let folds = match data.labels() {
             Some(labels) => repeated_stratified_folds(labels, cv.folds, cv.repeats, rng)?,
             None => {
@@ -585,6 +663,10 @@ pub(crate) fn run_fold(
         scores,
         predictions,
         report: fitted.report().clone(),
+        imputer: fitted.model().imputer().cloned(),
+        target_scaler: fitted.model().target_scaler().cloned(),
+        notes: fitted.notes().to_vec(),
+        warnings: fitted.warnings().to_vec(),
         model: Some(fitted.into_model()),
     })
 }

@@ -168,6 +168,10 @@ pub(crate) fn nested_cross_validate_checked<R: RngCore + ?Sized>(
                 scores,
                 predictions,
                 report: swept.best.report().clone(),
+                imputer: swept.best.model().imputer().cloned(),
+                target_scaler: swept.best.model().target_scaler().cloned(),
+                notes: swept.best.notes().to_vec(),
+                warnings: swept.best.warnings().to_vec(),
                 model: Some(swept.best.model().clone()),
             };
             let choice = NestedChoice {

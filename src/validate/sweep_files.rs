@@ -25,7 +25,7 @@ use super::search::Halving;
 use super::sweep::{Round, RoundSummary, SweepPlan};
 use super::CvOptions;
 use crate::atomic::write_text;
-use crate::data::{CsvOptions, Fold, Missing, Target, TargetKind};
+use crate::data::{CsvOptions, DecimalMark, Delimiter, Fold, Missing, Target, Task};
 use crate::error::{Error, Result};
 use crate::model_file::options_schema::OptionsV2;
 use crate::train::{EpochRecord, Loss, TrainingReport};
@@ -115,10 +115,14 @@ struct TableV2 {
     features: Option<Vec<String>>,
     drop: Vec<String>,
     categorical: Vec<String>,
+    ids: Vec<String>,
     missing: String,
-    target_kind: String,
+    missing_indicators: bool,
+    missing_markers: Option<Vec<String>>,
+    task: String,
     class_order: Option<Vec<String>>,
-    delimiter: u8,
+    delimiter: String,
+    decimal: String,
 }
 
 impl TableV2 {
@@ -128,10 +132,14 @@ impl TableV2 {
             features: o.features.clone(),
             drop: o.drop.clone(),
             categorical: o.categorical.clone(),
+            ids: o.ids.clone(),
             missing: o.missing.to_string(),
-            target_kind: o.target_kind.to_string(),
+            missing_indicators: o.missing_indicators,
+            missing_markers: o.missing_markers.clone(),
+            task: o.task.to_string(),
             class_order: o.class_order.clone(),
-            delimiter: o.delimiter,
+            delimiter: o.delimiter.to_string(),
+            decimal: o.decimal.to_string(),
         }
     }
 
@@ -140,10 +148,15 @@ impl TableV2 {
         o.features = self.features;
         o.drop = self.drop;
         o.categorical = self.categorical;
+        o.ids = self.ids;
         o.missing = self.missing.parse::<Missing>()?;
-        o.target_kind = self.target_kind.parse::<TargetKind>()?;
+        o.missing_indicators = self.missing_indicators;
+        o.missing_markers = self.missing_markers;
+        o.task = self.task.parse::<Task>()?;
         o.class_order = self.class_order;
-        o.delimiter = self.delimiter;
+        o.delimiter = self.delimiter.parse::<Delimiter>()?;
+        o.decimal = self.decimal.parse::<DecimalMark>()?;
+        o.validate()?;
         Ok(o)
     }
 }
@@ -437,6 +450,17 @@ struct TrainingV2 {
     final_training_loss: f64,
     #[serde(default, skip_serializing_if = "Option::is_none")]
     history: Option<Vec<EpochV2>>,
+    /// What the fold's fit learnt from its rows: fill values, and the
+    /// target scaler's kind, offsets and scales.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    fill_values: Option<Vec<f64>>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    target_scaler: Option<(String, Vec<f64>, Vec<f64>)>,
+    /// What the fold's fit noted and flagged.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    notes: Vec<String>,
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    warnings: Vec<String>,
 }
 
 #[derive(Serialize, Deserialize)]
@@ -540,6 +564,26 @@ pub fn write_trial(
                     })
                     .collect()
             }),
+            fill_values: result.imputer.as_ref().map(|i| i.fill_values().to_vec()),
+            target_scaler: result.target_scaler.as_ref().map(|t| {
+                (
+                    t.kind().to_string(),
+                    t.offsets().to_vec(),
+                    t.scales().to_vec(),
+                )
+            }),
+            // Kept with their options marked, so a merge shows them as the
+            // reader names options (flags on the command line).
+            notes: result
+                .notes
+                .iter()
+                .map(|m| m.marked().to_string())
+                .collect(),
+            warnings: result
+                .warnings
+                .iter()
+                .map(|m| m.marked().to_string())
+                .collect(),
         },
     };
     let mut text = serde_json::to_string(&file).expect("trial results serialise");
@@ -860,9 +904,10 @@ pub fn parse_trial(
     }
     let baseline = FoldBaseline::scored(file.baseline, &target)
         .map_err(|e| e.context(path.display().to_string()))?;
-    let t = file.training;
+    let mut t = file.training;
     let history = t
         .history
+        .take()
         .unwrap_or_default()
         .into_iter()
         .map(|e| EpochRecord {
@@ -896,6 +941,32 @@ pub fn parse_trial(
             predictions,
             report,
             model: None,
+            imputer: t
+                .fill_values
+                .map(crate::data::Imputer::from_parts)
+                .transpose()
+                .map_err(|e| bad(e.to_string()))?,
+            target_scaler: match t.target_scaler {
+                None => None,
+                Some((kind, offset, scale)) => Some(
+                    crate::data::Scaler::from_parts(
+                        kind.parse().map_err(|e: Error| bad(e.to_string()))?,
+                        offset,
+                        scale,
+                    )
+                    .map_err(|e| bad(e.to_string()))?,
+                ),
+            },
+            notes: t
+                .notes
+                .into_iter()
+                .map(crate::error::Message::new)
+                .collect(),
+            warnings: t
+                .warnings
+                .into_iter()
+                .map(crate::error::Message::new)
+                .collect(),
         },
         rows: file.rows,
         classes: file.classes,

@@ -153,10 +153,20 @@ fn chunked_trials_equal_unchunked_and_merge_equals_a_local_sweep() {
         s(&again),
     ]);
     assert_eq!(files_in(&again), reference, "a rerun differs");
-    // Merging gives the local sweep's whole JSON and text.
-    let merged = json(&["sweep-merge", s(&plan), s(&strided), "--json"]);
+    // Merging with the table gives the local sweep's whole JSON and text.
+    let merged = json(&[
+        "sweep-merge",
+        s(&plan),
+        s(&strided),
+        "--data",
+        s(&table),
+        "--json",
+    ]);
     assert_eq!(merged, local);
-    assert_eq!(ok(&["sweep-merge", s(&plan), s(&strided)]), local_text);
+    assert_eq!(
+        ok(&["sweep-merge", s(&plan), s(&strided), "--data", s(&table)]),
+        local_text
+    );
 }
 
 /// A plan changed after it was written (here a fold seed rounded the way
@@ -345,7 +355,17 @@ fn random_search_reproduces_locally_and_through_trial_files() {
         "--out-dir",
         s(&out),
     ]);
-    assert_eq!(json(&["sweep-merge", s(&plan), s(&out), "--json"]), local);
+    assert_eq!(
+        json(&[
+            "sweep-merge",
+            s(&plan),
+            s(&out),
+            "--data",
+            s(&table),
+            "--json"
+        ]),
+        local
+    );
 }
 
 /// Successive halving gives the same rounds and final table locally and
@@ -406,8 +426,21 @@ fn successive_halving_reproduces_locally_and_round_by_round() {
             ok(&["sweep-merge", s(&plan), s(&out), "--next-plan", s(&next)]);
             plan = next;
         } else {
-            assert_eq!(json(&["sweep-merge", s(&plan), s(&out), "--json"]), local);
-            assert_eq!(ok(&["sweep-merge", s(&plan), s(&out)]), local_text);
+            assert_eq!(
+                json(&[
+                    "sweep-merge",
+                    s(&plan),
+                    s(&out),
+                    "--data",
+                    s(&table),
+                    "--json"
+                ]),
+                local
+            );
+            assert_eq!(
+                ok(&["sweep-merge", s(&plan), s(&out), "--data", s(&table)]),
+                local_text
+            );
             let model = dir.join("best.json");
             ok(&[
                 "sweep-merge",

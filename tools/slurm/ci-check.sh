@@ -124,12 +124,13 @@ echo "plan: $TRIALS trials ($(jq -r .configurations <<<"$out") configurations) i
 pass "plan of $TRIALS trials and the local table"
 
 # Merges the trial folder $2 of plan $1 into $WORK/merged-$3.{json,txt} and
-# compares the whole JSON and the whole text with $4.{json,txt}, byte for byte.
+# compares the whole JSON and the whole text with $4.{json,txt}, byte for byte
+# (given --data, the merge reads and reports the table as the local sweep does).
 merge_and_compare() {
   local plan=$1 dir=$2 tag=$3 local=$4
-  "$STRATANET" sweep-merge "$plan" "$dir" --json --quiet >"$WORK/merged-$tag.json" \
+  "$STRATANET" sweep-merge "$plan" "$dir" --data "$DATA" --json --quiet >"$WORK/merged-$tag.json" \
     || fail "sweep-merge of $dir failed"
-  "$STRATANET" sweep-merge "$plan" "$dir" --quiet >"$WORK/merged-$tag.txt" \
+  "$STRATANET" sweep-merge "$plan" "$dir" --data "$DATA" --quiet >"$WORK/merged-$tag.txt" \
     || fail "sweep-merge of $dir (text) failed"
   for ext in json txt; do
     if ! cmp -s "$local.$ext" "$WORK/merged-$tag.$ext"; then

@@ -375,7 +375,6 @@ impl BrierPartition {
 ///
 /// # Example
 /// ```
-/// use stratanet::ndarray::array;
 /// use stratanet::validate::metrics::brier_partition;
 /// // Five rows forecast 0.2 for the second class (one came true), five 0.8 (four did).
 /// let mut p = Vec::new();
