@@ -421,6 +421,11 @@ impl Message {
         Message(format!("{prefix}{}", self.0))
     }
 
+    /// The text with its options still marked.
+    pub(crate) fn marked(&self) -> &str {
+        &self.0
+    }
+
     /// Does the text start with `s` (the options still marked)?
     pub(crate) fn starts_with(&self, s: &str) -> bool {
         self.0.starts_with(s)
