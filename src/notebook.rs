@@ -269,7 +269,7 @@ impl TableSummary {
                     c.name.clone(),
                     c.role.clone(),
                     c.kind.clone(),
-                    c.why.clone(),
+                    c.why.to_string(),
                     c.missing.map_or(String::new(), |m| m.to_string()),
                     c.distinct.map_or(String::new(), |d| d.to_string()),
                     values,

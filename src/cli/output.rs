@@ -191,7 +191,7 @@ pub(crate) fn summary_json(s: &crate::data::TableSummary) -> Value {
                 "name": c.name,
                 "role": c.role,
                 "type": c.kind,
-                "why": c.why,
+                "why": c.why.render(&flag_name),
                 "missing": c.missing,
                 "distinct": c.distinct,
                 "min": c.range.map(|r| r.0),
@@ -248,7 +248,7 @@ pub(crate) fn summary_text(s: &crate::data::TableSummary, out: &mut String) {
             c.kind,
             detail.join(", ")
         );
-        let _ = writeln!(out, "  {:<20} why: {}", "", c.why);
+        let _ = writeln!(out, "  {:<20} why: {}", "", c.why.render(&flag_name));
         if !c.levels.is_empty() {
             let shown: Vec<String> = c
                 .levels

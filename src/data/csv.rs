@@ -822,11 +822,8 @@ fn odd_hint(levels: &Levels, rules: &CellRules) -> String {
 /// cannot be decided.
 fn decide_column(col: &Tally, rules: &CellRules, path: &Path) -> Result<(bool, String)> {
     let texts: usize = col.texts.counts.iter().sum();
-    if col.declared_text {
-        return Ok((
-            true,
-            format!("declared categorical ({})", opt("categorical")),
-        ));
+    if col.declared_text && texts > 0 {
+        return Ok((true, "declared categorical".to_string()));
     }
     match (col.numbers, texts) {
         (0, 0) => Err(column_error(
@@ -836,7 +833,7 @@ fn decide_column(col: &Tally, rules: &CellRules, path: &Path) -> Result<(bool, S
             format!(
                 "every one of its {} cells is missing, so it holds nothing to learn from; drop it ({})",
                 col.missing,
-                opt("drop")
+                opt_is("drop", &col.name)
             ),
         )),
         (_, 0) => Ok((false, "every non-missing cell is a number".into())),
@@ -1468,6 +1465,20 @@ mod tests {
             .read_str("a,junk,y\n1,??,p\n2,,q\n1,x,p\n2,,q\n", "t.csv")
             .unwrap();
         assert_eq!(d.feature_names, ["a"]);
+    }
+
+    // Found by fuzzing (fuzz/regressions/csv_table/declared-categorical-all-missing).
+    #[test]
+    fn a_declared_column_without_a_value_is_refused() {
+        let e = CsvOptions::new("y")
+            .categorical(&["c"])
+            .missing(Missing::Impute)
+            .read_str("a,c,y\n1,,0.5\n2,NA,1.5\n", "t.csv")
+            .unwrap_err();
+        assert_eq!(
+            e.to_string(),
+            "t.csv: column \"c\" (1): every one of its 2 cells is missing, so it holds nothing to learn from; drop it (drop = c)"
+        );
     }
 
     #[test]

@@ -22,7 +22,7 @@ pub struct ColumnSummary {
     /// `not read`.
     pub kind: String,
     /// Why it got that kind.
-    pub why: String,
+    pub why: Message,
     /// Missing cells (counted in every row read, dropped rows included).
     pub missing: Option<usize>,
     /// Distinct non-missing values.
@@ -107,7 +107,7 @@ impl Dataset {
                     name: name.clone(),
                     role: c.role.clone(),
                     kind: c.kind.clone(),
-                    why: c.why.clone(),
+                    why: Message::new(c.why.clone()),
                     missing: Some(c.missing),
                     distinct: c.distinct,
                     range: c.min_max,
@@ -134,7 +134,7 @@ impl Dataset {
                     name: name.clone(),
                     role: "id".into(),
                     kind: "text".into(),
-                    why: "named an ID column: carried with the rows, never a feature".into(),
+                    why: Message::new("named an ID column: carried with the rows, never a feature"),
                     missing: None,
                     distinct,
                     range: None,
@@ -155,7 +155,7 @@ impl Dataset {
                         name: name.clone(),
                         role: "feature".into(),
                         kind: "numeric".into(),
-                        why: "built from numbers".into(),
+                        why: Message::new("built from numbers"),
                         missing: Some(0),
                         distinct: Some(distinct_numbers(col.iter().copied())),
                         range: Some((lo, hi)),
@@ -169,11 +169,11 @@ impl Dataset {
                 name: name.clone(),
                 role: if dropped { "dropped" } else { "not used" }.into(),
                 kind: "not read".into(),
-                why: if dropped {
-                    "named in drop".into()
+                why: Message::new(if dropped {
+                    format!("named in {}", opt("drop"))
                 } else {
-                    "not among the listed features".into()
-                },
+                    format!("not among the {}", opt("features"))
+                }),
                 missing: None,
                 distinct: None,
                 range: None,
@@ -229,9 +229,8 @@ impl Dataset {
         let why = self
             .decisions()
             .iter()
-            .map(ToString::to_string)
-            .find_map(|d| d.strip_prefix("task: ").map(str::to_string))
-            .unwrap_or_else(|| "given as arrays".to_string());
+            .find_map(|d| d.marked().strip_prefix("task: ").map(Message::new))
+            .unwrap_or_else(|| Message::new("given as arrays"));
         match &self.target {
             Target::Classes { names, .. } => ColumnSummary {
                 name: self.target_name.clone(),

@@ -292,7 +292,7 @@ fn the_summary_says_what_each_column_is_and_why() {
         (
             width.role.as_str(),
             width.kind.as_str(),
-            width.why.as_str(),
+            width.why.to_string().as_str(),
             width.missing
         ),
         (
