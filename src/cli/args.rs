@@ -7,6 +7,7 @@ use crate::data::{DecimalMark, Delimiter, Missing, Scaling, Task};
 use crate::fit::ClassWeights;
 use crate::network::{Activation, Arithmetic, Init, Precision};
 use crate::train::{BatchSize, Loss, Optimiser, Schedule};
+use crate::validate::metrics::Binning;
 use crate::validate::Metric;
 use clap::{Args, Parser, Subcommand};
 use std::path::PathBuf;
@@ -416,6 +417,15 @@ pub(crate) struct CvArgs {
     /// Write the charts (SVG) into this folder.
     #[arg(long, value_name = "DIR")]
     pub charts: Option<PathBuf>,
+    /// Write every row's out-of-fold prediction (one line per row and repeat, with the table's ID columns) to this CSV file.
+    #[arg(long, value_name = "PATH")]
+    pub out_of_fold: Option<PathBuf>,
+    /// A cost matrix CSV (a header of true classes, one line per decision): report the cost per row of the least-expected-cost decisions on the held-out rows.
+    #[arg(long, value_name = "PATH")]
+    pub costs: Option<PathBuf>,
+    /// How calibration bins the held-out probabilities: count:B (equal rows per bin) or width:B (equal widths) [count:10].
+    #[arg(long, value_name = "RULE", value_parser = parsed::<Binning>, default_value = "count:10")]
+    pub bins: Binning,
     #[command(flatten)]
     pub output: OutputArgs,
 }
