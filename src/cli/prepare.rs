@@ -40,6 +40,7 @@ pub(crate) struct FitJob {
     pub seed: u64,
     pub out: PathBuf,
     pub charts: Option<PathBuf>,
+    pub costs: Option<CostMatrix>,
 }
 
 pub(crate) struct CheckJob {
@@ -235,6 +236,15 @@ fn fit_options(n: &NetArgs) -> Result<FitOptions> {
     if let Some(s) = n.target_scaling {
         o.target_scaling = s;
     }
+    if let Some(c) = n.calibration {
+        o.calibration = c;
+    }
+    o.threshold_target = match (n.target_recall, n.target_precision) {
+        (Some(r), _) => Some(crate::fit::ThresholdTarget::Recall(r)),
+        (None, Some(q)) => Some(crate::fit::ThresholdTarget::Precision(q)),
+        (None, None) => None,
+    };
+    o.positive_class = n.positive_class.clone();
     if let Some(w) = &n.class_weights {
         o.class_weights = w.clone();
     }
@@ -320,7 +330,10 @@ fn fit(a: FitArgs) -> Result<FitJob> {
                 .collect(),
         );
     }
-    outputs.check(&[&a.data])?;
+    let mut inputs: Vec<&std::path::Path> = vec![&a.data];
+    inputs.extend(a.costs.as_deref());
+    outputs.check(&inputs)?;
+    let costs = a.costs.as_deref().map(CostMatrix::read).transpose()?;
     Ok(FitJob {
         data: a.data,
         table: table(a.table)?,
@@ -328,6 +341,7 @@ fn fit(a: FitArgs) -> Result<FitJob> {
         seed: a.net.seed,
         out: a.out,
         charts: a.charts,
+        costs,
     })
 }
 

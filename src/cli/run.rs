@@ -73,7 +73,11 @@ fn fit(j: FitJob, progress: &Progress) -> Result<Outcome> {
     // As `fit` with the generator seeded from `--seed`.
     let seed = child_seed(&mut seeded_rng(j.seed));
     let fitted = fit_checked(Cow::Borrowed(&data), &options, seed, None)?;
-    fitted.model().save(&j.out)?;
+    let saved = match &j.costs {
+        Some(c) => Cow::Owned(fitted.model().clone().with_costs(c)?),
+        None => Cow::Borrowed(fitted.model()),
+    };
+    saved.save(&j.out)?;
     let mut written = Vec::new();
     if let Some(dir) = &j.charts {
         let filled = fitted.model().filled(&data)?;
@@ -81,9 +85,8 @@ fn fit(j: FitJob, progress: &Progress) -> Result<Outcome> {
     }
     let r = fitted.report();
     let model = fitted.model();
-    let last = r.history.last();
     let baseline = fitted.baseline();
-    let validation = if fitted.split().validation.is_empty() || model.is_classifier() {
+    let validation = if fitted.split().validation.is_empty() {
         None
     } else {
         Scores::of(model, &data.select(&fitted.split().validation))
@@ -115,7 +118,7 @@ fn fit(j: FitJob, progress: &Progress) -> Result<Outcome> {
         "stopped_early": r.stopped_early,
         "best_validation_loss": r.best_validation_loss,
         "final_training_loss": r.final_training_loss,
-        "validation_accuracy": last.and_then(|e| e.validation_accuracy),
+        "validation_accuracy": validation.as_ref().and_then(|s| s.value(crate::validate::Metric::Accuracy).ok()),
         "validation_r_squared": r_squared,
         "baseline": {
             "description": baseline.description,
@@ -123,6 +126,16 @@ fn fit(j: FitJob, progress: &Progress) -> Result<Outcome> {
             "validation_loss": baseline.validation_loss,
         },
         "seed": j.seed,
+        "training_rows": fitted.split().train.len(),
+        "validation_rows": fitted.split().validation.len(),
+        "validation_scored_rows": crate::data::ScoredRows::Validation.name(),
+        "temperature": model.temperature().map(|t| json!({
+            "value": t.value,
+            "rows": t.rows,
+            "log_loss_before": t.log_loss_before,
+            "log_loss_after": t.log_loss_after,
+        })),
+        "decision_rule": saved.decision_rule().map(|r| r.describe(model.target_names())),
         "table_fingerprint": model.provenance().table_fingerprint,
         "charts": written,
         "decisions": flags(data.decisions()),
@@ -131,12 +144,18 @@ fn fit(j: FitJob, progress: &Progress) -> Result<Outcome> {
     });
     let mut text = String::new();
     read_text(&data, &j.data, &mut text);
+    let (trained, held) = (fitted.split().train.len(), fitted.split().validation.len());
     let _ = writeln!(
         text,
-        "fitted {:?} on {} rows of {}",
+        "fitted {:?} on {} rows of {}: {trained} training rows{}",
         model.network().sizes(),
         data.n_rows(),
-        j.data.display()
+        j.data.display(),
+        if held == 0 {
+            String::new()
+        } else {
+            format!(", {held} validation rows (they chose the stopping epoch and the network kept, so their scores are mildly optimistic)")
+        }
     );
     let _ = writeln!(text, "  loss: {}", loss_words(r.loss, scaled));
     let _ = writeln!(
@@ -172,8 +191,18 @@ fn fit(j: FitJob, progress: &Progress) -> Result<Outcome> {
             }
         }
     }
-    if let Some(a) = last.and_then(|e| e.validation_accuracy) {
-        let _ = writeln!(text, "  validation accuracy {a:.4}");
+    if let Some(a) = validation
+        .as_ref()
+        .and_then(|s| s.value(crate::validate::Metric::Accuracy).ok())
+    {
+        let _ = writeln!(
+            text,
+            "  validation accuracy {a:.4} (the kept network on the {held} validation rows)"
+        );
+    }
+    // A threshold is in the fit's notes; costs were attached here.
+    if let Some(rule @ crate::fit::DecisionRule::Costs(_)) = saved.decision_rule() {
+        let _ = writeln!(text, "  decides by {}", rule.describe(model.target_names()));
     }
     if let Some(r2) = r_squared {
         let _ = writeln!(
