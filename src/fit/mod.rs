@@ -32,11 +32,11 @@
 //!    [`Fitted::warnings`] and the model's provenance.
 
 mod baseline;
-mod decision;
+pub mod decision;
 mod model;
 mod options;
 mod provenance;
-mod temperature;
+pub mod temperature;
 
 pub use baseline::Baseline;
 pub use decision::{
