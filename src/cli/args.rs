@@ -56,6 +56,11 @@ pub(crate) enum Command {
         after_help = "Example:\n  stratanet nested demo-data/parts.csv --target verdict --drop part_id --grid-hidden 4,12 --grid-learning-rate 0.003,0.01 --folds 5 --inner-folds 3"
     )]
     Nested(NestedArgs),
+    /// Which input columns the network relies on: the drop in a score when one column is shuffled, on each fold's held-out rows (permutation importance).
+    #[command(
+        after_help = "Example:\n  stratanet importance demo-data/parts.csv --target verdict --id part_id --folds 5 --shuffles 5"
+    )]
+    Importance(ImportanceArgs),
     /// Run trials of a sweep plan (for array jobs): one, a list, or task I of N.
     #[command(
         name = "sweep-trial",
@@ -612,6 +617,27 @@ pub(crate) struct SweepStatusArgs {
     pub output: OutputArgs,
 }
 
+/// `stratanet importance`.
+#[derive(Debug, Args)]
+pub(crate) struct ImportanceArgs {
+    /// The CSV file.
+    pub data: PathBuf,
+    #[command(flatten)]
+    pub table: TableArgs,
+    #[command(flatten)]
+    pub net: NetArgs,
+    #[command(flatten)]
+    pub folds: FoldArgs,
+    /// The score whose drop is measured [accuracy for classes, root_mean_squared_error for numbers].
+    #[arg(long, value_name = "NAME", value_parser = parsed::<Metric>)]
+    pub metric: Option<Metric>,
+    /// Shuffles of each column on each fold's held-out rows.
+    #[arg(long, value_name = "N", default_value_t = 5)]
+    pub shuffles: usize,
+    #[command(flatten)]
+    pub output: OutputArgs,
+}
+
 /// `stratanet demo`.
 #[derive(Debug, Args)]
 pub(crate) struct DemoArgs {
@@ -636,6 +662,7 @@ impl Command {
             Command::Cv(a) => &a.output,
             Command::Sweep(a) => &a.output,
             Command::Nested(a) => &a.output,
+            Command::Importance(a) => &a.output,
             Command::SweepTrial(a) => &a.output,
             Command::SweepMerge(a) => &a.output,
             Command::SweepStatus(a) => &a.output,

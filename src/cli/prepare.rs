@@ -2,9 +2,9 @@
 //! [`Job`] before any work starts (see the module docs of `cli`).
 
 use super::args::{
-    CheckArgs, Cli, Command, CvArgs, DemoArgs, DialectArgs, FitArgs, FoldArgs, InspectArgs,
-    NestedArgs, NetArgs, PredictArgs, SearchArgs, SweepArgs, SweepMergeArgs, SweepStatusArgs,
-    SweepTrialArgs, TableArgs,
+    CheckArgs, Cli, Command, CvArgs, DemoArgs, DialectArgs, FitArgs, FoldArgs, ImportanceArgs,
+    InspectArgs, NestedArgs, NetArgs, PredictArgs, SearchArgs, SweepArgs, SweepMergeArgs,
+    SweepStatusArgs, SweepTrialArgs, TableArgs,
 };
 use super::charts;
 use super::paths::Outputs;
@@ -27,6 +27,7 @@ pub(crate) enum Job {
     Sweep(SweepJob),
     WritePlan(SweepJob, PathBuf),
     Nested(NestedJob),
+    Importance(ImportanceJob),
     SweepTrial(TrialJob),
     SweepMerge(MergeJob),
     SweepStatus(StatusJob),
@@ -138,6 +139,15 @@ pub(crate) struct StatusJob {
     pub tasks: Option<usize>,
 }
 
+pub(crate) struct ImportanceJob {
+    pub data: PathBuf,
+    pub table: CsvOptions,
+    pub options: FitOptions,
+    pub cv: CvOptions,
+    pub importance: crate::validate::importance::ImportanceOptions,
+    pub seed: u64,
+}
+
 pub(crate) struct DemoJob {
     pub out: PathBuf,
     pub seed: u64,
@@ -157,6 +167,7 @@ pub(crate) fn prepare(cli: Cli) -> Result<Job> {
         Command::Cv(a) => Job::Cv(cv(a)?),
         Command::Sweep(a) => sweep(a)?,
         Command::Nested(a) => Job::Nested(nested(a)?),
+        Command::Importance(a) => Job::Importance(importance(a)?),
         Command::SweepTrial(a) => Job::SweepTrial(sweep_trial(a)?),
         Command::SweepMerge(a) => Job::SweepMerge(sweep_merge(a)?),
         Command::SweepStatus(a) => Job::SweepStatus(sweep_status(a)?),
@@ -396,6 +407,22 @@ fn cv(a: CvArgs) -> Result<CvJob> {
         out_of_fold: a.out_of_fold,
         costs,
         bins: a.bins,
+    })
+}
+
+fn importance(a: ImportanceArgs) -> Result<ImportanceJob> {
+    let importance = crate::validate::importance::ImportanceOptions {
+        metric: a.metric,
+        shuffles: a.shuffles,
+    };
+    importance.validate()?;
+    Ok(ImportanceJob {
+        options: fit_options(&a.net)?,
+        cv: fold_options(&a.folds)?,
+        table: table(a.table)?,
+        data: a.data,
+        importance,
+        seed: a.net.seed,
     })
 }
 

@@ -604,3 +604,62 @@ fn cv_names_its_rows_with_baselines_calibration_costs_and_out_of_fold_rows() {
         / 600.0;
     assert!((brier - f(&out["metrics"]["brier"]["mean"])).abs() < 1e-9);
 }
+
+/// `importance` prints the library's permutation importance for the same
+/// table, options and seed, ranked, with the rows it was measured on.
+#[test]
+fn importance_shows_the_library_result_ranked() {
+    use stratanet::prelude::*;
+    use stratanet::validate::importance::ImportanceOptions;
+    let out = json(&stratanet(&[
+        "importance",
+        &parts(),
+        "--target",
+        "verdict",
+        "--id",
+        "part_id",
+        "--folds",
+        "3",
+        "--epochs",
+        "20",
+        "--shuffles",
+        "2",
+        "--seed",
+        "7",
+        "--json",
+    ]));
+    let data = CsvOptions::new("verdict")
+        .ids(&["part_id"])
+        .read(parts())
+        .unwrap();
+    let mut rng = seeded_rng(7);
+    let cv = cross_validate(
+        &data,
+        &FitOptions::default().epochs(20),
+        &CvOptions {
+            folds: 3,
+            ..Default::default()
+        },
+        &mut rng,
+    )
+    .unwrap();
+    let imp = cv
+        .permutation_importance(
+            &data,
+            &ImportanceOptions {
+                metric: None,
+                shuffles: 2,
+            },
+            &mut rng,
+        )
+        .unwrap();
+    assert_eq!(out["scored_rows"], "out-of-fold");
+    assert_eq!(out["metric"], "accuracy");
+    let shown = out["columns"].as_array().unwrap();
+    for (row, c) in shown.iter().zip(imp.ranked()) {
+        assert_eq!(row["column"], c.column.as_str());
+        assert_eq!(row["mean_drop"].as_f64().unwrap(), c.summary.mean);
+        assert_eq!(row["clearly_used"], c.clearly_used());
+    }
+    assert_eq!(shown.len(), 4);
+}
