@@ -478,8 +478,8 @@ fn importance(j: ImportanceJob, progress: &Progress) -> Result<Outcome> {
     );
     let _ = writeln!(
         text,
-        "  {:<24} {:>10}   {:<22} {}",
-        "column", "mean drop", "95% interval", "inputs"
+        "  {:<24} {:>10}   {:<22} inputs",
+        "column", "mean drop", "95% interval"
     );
     for c in imp.ranked() {
         let _ = writeln!(
