@@ -13,6 +13,8 @@ mod gradcheck;
 mod loss;
 mod options;
 
+#[doc(hidden)]
+pub use gradcheck::check_gradients_in;
 pub use gradcheck::{check_gradients, GradientCheck};
 pub use loss::Loss;
 pub use options::{BatchSize, EarlyStopping, Optimiser, Schedule, TrainingOptions};
