@@ -198,13 +198,17 @@ pub(crate) fn available() -> Vec<Isa> {
     out
 }
 
-/// The name of the kernel this CPU runs (`avx512`, `avx2` or `sse2`), for
-/// benchmarks and reports.
+/// The instruction set the kernels run on with this CPU (`avx512`,
+/// `avx2+fma`, `avx2` or `sse2`), for benchmarks and the cross-CPU check.
+/// The portable mode gives the same bits on each; the fast mode fuses
+/// multiply-adds on `avx512` and `avx2+fma`.
 pub fn kernel_name() -> &'static str {
     match isa() {
         Isa::Base => "sse2",
         #[cfg(target_arch = "x86_64")]
-        Isa::Avx2 { .. } => "avx2",
+        Isa::Avx2 { fma: true } => "avx2+fma",
+        #[cfg(target_arch = "x86_64")]
+        Isa::Avx2 { fma: false } => "avx2",
         #[cfg(target_arch = "x86_64")]
         Isa::Avx512 => "avx512",
     }
