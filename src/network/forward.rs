@@ -91,11 +91,11 @@ impl<F: Real> Params<F> {
             ws.run(self, m, activation, self.n_layers());
             let z = &mut ws.acts.last_mut().expect("layers")[..m * n_out];
             head.apply_block(z, n_out);
-            for (i, row) in z.chunks_exact(n_out).enumerate() {
-                for (k, v) in row.iter().enumerate() {
-                    out[[start + i, k]] = v.as_f64();
-                }
-            }
+            let dst = &mut out.as_slice_mut().expect("a new array is contiguous")
+                [start * n_out..end * n_out];
+            dst.iter_mut()
+                .zip(z.iter())
+                .for_each(|(d, v)| *d = v.as_f64());
         }
         out
     }

@@ -174,10 +174,50 @@ pub(crate) enum Isa {
     Avx512,
 }
 
-/// The widest instruction set this CPU has.
+impl Isa {
+    /// Does the CPU have fused multiply-add?
+    fn has_fma(self) -> bool {
+        match self {
+            Isa::Base => false,
+            #[cfg(target_arch = "x86_64")]
+            Isa::Avx2 { fma } => fma,
+            #[cfg(target_arch = "x86_64")]
+            Isa::Avx512 => true,
+        }
+    }
+}
+
+/// The widest instruction set this CPU has: detected on the first call and
+/// kept in an atomic (later calls cost one relaxed load).
 #[inline]
 pub(crate) fn isa() -> Isa {
-    *available().last().expect("the baseline")
+    use std::sync::atomic::{AtomicU8, Ordering};
+    static DETECTED: AtomicU8 = AtomicU8::new(0);
+    let code = match DETECTED.load(Ordering::Relaxed) {
+        0 => {
+            let code = match *available().last().expect("the baseline") {
+                Isa::Base => 1,
+                #[cfg(target_arch = "x86_64")]
+                Isa::Avx2 { fma: false } => 2,
+                #[cfg(target_arch = "x86_64")]
+                Isa::Avx2 { fma: true } => 3,
+                #[cfg(target_arch = "x86_64")]
+                Isa::Avx512 => 4,
+            };
+            DETECTED.store(code, Ordering::Relaxed);
+            code
+        }
+        code => code,
+    };
+    match code {
+        #[cfg(target_arch = "x86_64")]
+        2 => Isa::Avx2 { fma: false },
+        #[cfg(target_arch = "x86_64")]
+        3 => Isa::Avx2 { fma: true },
+        #[cfg(target_arch = "x86_64")]
+        4 => Isa::Avx512,
+        _ => Isa::Base,
+    }
 }
 
 /// Every instruction set this CPU has, narrowest first.
@@ -383,9 +423,13 @@ unsafe fn pack<F: Float>(
 ) {
     unsafe {
         if rcs == 1 {
+            // Rows of a few cache lines: a plain loop (a `memcpy` call per
+            // row cost more than the copy).
             for q in 0..kc {
-                let dst = buf.add(q * nr);
-                std::ptr::copy_nonoverlapping(src.add(q * rrs), dst, cols);
+                let (s, dst) = (src.add(q * rrs), buf.add(q * nr));
+                for j in 0..cols {
+                    *dst.add(j) = *s.add(j);
+                }
                 for j in cols..nr {
                     *dst.add(j) = F::zero();
                 }
@@ -499,6 +543,45 @@ unsafe fn run<F: Float>(
     }
 }
 
+/// The naive loop itself, for products too small for tiles.
+#[inline(always)]
+fn tiny<F: Float, const FMA: bool>(
+    (m, n, p): (usize, usize, usize),
+    ops: Operands<'_, F>,
+    out: &mut [F],
+    bias: Option<&[F]>,
+) {
+    for r in 0..m {
+        for j in 0..n {
+            let mut acc = F::zero();
+            for q in 0..p {
+                let (a, b) = (
+                    ops.lhs[r * ops.lrs + q * ops.lcs],
+                    ops.rhs[q * ops.rrs + j * ops.rcs],
+                );
+                acc = madd::<F, FMA>(acc, a, b);
+            }
+            out[r * n + j] = match bias {
+                Some(b) => acc + b[j],
+                None => acc,
+            };
+        }
+    }
+}
+
+/// [`tiny`] with fused multiply-add, compiled for CPUs that have it (so
+/// that `mul_add` is one instruction, not a library call).
+#[cfg(target_arch = "x86_64")]
+#[target_feature(enable = "fma")]
+unsafe fn tiny_fma<F: Float>(
+    shape: (usize, usize, usize),
+    ops: Operands<'_, F>,
+    out: &mut [F],
+    bias: Option<&[F]>,
+) {
+    tiny::<F, true>(shape, ops, out, bias)
+}
+
 /// Where the operands are: `lhs[r][q]` is `lhs[r * lrs + q * lcs]` and
 /// `rhs[q][j]` is `rhs[q * rrs + j * rcs]`.
 #[derive(Clone, Copy)]
@@ -547,23 +630,15 @@ pub(crate) fn product_on<F: Element>(
     if work <= TINY {
         // Tiny products (W1's 2-2-1 network, one row per update): the
         // naive loop itself, without the tile set-up. Same order, same bits.
-        let fast = arithmetic.is_fast();
-        for r in 0..m {
-            for j in 0..n {
-                let mut acc = F::zero();
-                for q in 0..p {
-                    let (a, b) = (
-                        ops.lhs[r * ops.lrs + q * ops.lcs],
-                        ops.rhs[q * ops.rrs + j * ops.rcs],
-                    );
-                    acc = if fast { a.mul_add(b, acc) } else { acc + a * b };
-                }
-                out[r * n + j] = match bias {
-                    Some(b) => acc + b[j],
-                    None => acc,
-                };
-            }
+        let fma = arithmetic.is_fast() && isa.has_fma();
+        #[cfg(target_arch = "x86_64")]
+        if fma {
+            // SAFETY: the CPU has fused multiply-add (checked above).
+            unsafe { tiny_fma((m, n, p), ops, out, bias) };
+            return;
         }
+        let _ = fma;
+        tiny::<F, false>((m, n, p), ops, out, bias);
         return;
     }
     let k = F::kernel_for(isa, arithmetic.is_fast());
