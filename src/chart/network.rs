@@ -323,7 +323,11 @@ mod tests {
     fn weights(rows: usize, columns: usize, seed: usize) -> Array2<f64> {
         Array2::from_shape_fn((rows, columns), |(i, j)| {
             (((i * 31 + j * 17 + seed * 7) % 41) as f64 / 10.0 - 2.0)
-                * if (i + j + seed).is_multiple_of(3) { 0.3 } else { 1.0 }
+                * if (i + j + seed).is_multiple_of(3) {
+                    0.3
+                } else {
+                    1.0
+                }
         })
     }
 

@@ -7,7 +7,7 @@ use crate::chart::Chart;
 use crate::data::{CsvOptions, Dataset};
 use crate::error::Result;
 use crate::fit::{fit_with_seed, FitOptions, Fitted};
-use crate::notebook::{notes, show};
+use crate::notebook::{notes, show, warnings};
 use crate::validate::Scores;
 use std::path::Path;
 
@@ -61,12 +61,13 @@ fn analyse(data: Dataset, options: &FitOptions, seed: u64) -> Result<Analysis> {
         Some(Scores::of(fitted.model(), &data.select(&split.validation))?.0)
     };
     let learning_curves = fitted.learning_curves_chart()?;
+    let filled = fitted.model().filled(&data)?;
     let decision_map = match (
         fitted.model().is_classifier(),
-        crate::chart::decision_features(&data),
+        crate::chart::decision_features(&filled),
     ) {
         (true, Some((x, y))) => {
-            let train = data.select(&split.train);
+            let train = filled.select(&split.train);
             Some(fitted.model().decision_map_chart(&train, &x, &y)?)
         }
         _ => None,
@@ -85,6 +86,8 @@ impl Analysis {
     pub fn to_html(&self) -> String {
         let mut h = self.data.to_html();
         h.push_str(&self.fitted.report().to_html());
+        h.push_str(&notes(self.fitted.notes()));
+        h.push_str(&warnings(self.fitted.warnings()));
         if let Some(v) = &self.validation {
             h.push_str(&format!(
                 "<p style=\"font-family:sans-serif;font-size:13px\">Scores on the {} validation rows (held out from training, used for early stopping):</p>",
