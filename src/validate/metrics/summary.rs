@@ -276,13 +276,13 @@ impl ClassificationMetrics {
 /// Regression errors of one output (one target column).
 #[derive(Debug, Clone, PartialEq)]
 pub struct OutputReport {
-    /// See [`mean_squared_error`].
+    /// See [`mean_squared_error`](super::regression::mean_squared_error).
     pub mean_squared_error: f64,
-    /// See [`root_mean_squared_error`].
+    /// See [`root_mean_squared_error`](super::regression::root_mean_squared_error).
     pub root_mean_squared_error: f64,
-    /// See [`mean_absolute_error`].
+    /// See [`mean_absolute_error`](super::regression::mean_absolute_error).
     pub mean_absolute_error: f64,
-    /// See [`r_squared`]; 0 with a note when undefined.
+    /// See [`r_squared`](super::regression::r_squared); 0 with a note when undefined.
     pub r_squared: f64,
 }
 
@@ -296,13 +296,13 @@ pub struct OutputReport {
 pub struct RegressionMetrics {
     /// The number of samples (rows).
     pub n_samples: usize,
-    /// Mean over outputs of [`mean_squared_error`].
+    /// Mean over outputs of [`mean_squared_error`](super::regression::mean_squared_error).
     pub mean_squared_error: f64,
-    /// Mean over outputs of [`root_mean_squared_error`].
+    /// Mean over outputs of [`root_mean_squared_error`](super::regression::root_mean_squared_error).
     pub root_mean_squared_error: f64,
-    /// Mean over outputs of [`mean_absolute_error`].
+    /// Mean over outputs of [`mean_absolute_error`](super::regression::mean_absolute_error).
     pub mean_absolute_error: f64,
-    /// Mean of [`r_squared`] over the outputs where it is defined; 0 with a
+    /// Mean of [`r_squared`](super::regression::r_squared) over the outputs where it is defined; 0 with a
     /// note when it is defined for none.
     pub r_squared: f64,
     /// One entry per output.
@@ -315,7 +315,7 @@ impl RegressionMetrics {
     /// Metrics for one output.
     ///
     /// # Errors
-    /// As [`mean_squared_error`].
+    /// As [`mean_squared_error`](super::regression::mean_squared_error).
     pub fn from_slices(truth: &[f64], predicted: &[f64]) -> Result<Self> {
         check_regression("regression metrics", truth, predicted)?;
         let ndarray_truth = ArrayView2::from_shape((truth.len(), 1), truth)
