@@ -88,7 +88,9 @@ def head_loss_delta(m, z, y, scale):
         p = e / s
         total = float((y.sum(axis=1, keepdims=True) * (zmax + np.log(s)) - (y * z).sum(axis=1, keepdims=True)).sum())
         return p, total, (p - y) * scale
-    if head == "logistic" and loss == "squared_error":
+    # The library names its squared-error loss "half_squared_error" (it is
+    # half the squared error); older data folders say "squared_error".
+    if head == "logistic" and loss in ("half_squared_error", "squared_error"):
         a = 1.0 / (1.0 + np.exp(-z))
         total = float(0.5 * ((a - y) ** 2).sum())
         return a, total, (a - y) * a * (1 - a) * scale

@@ -31,9 +31,12 @@ SIZES = {
     "W3": [784, 256, 10], "W5": [2, 32, 32, 3], "W2-cv": [30, 64, 32, 2],
     "CV-small-cv": [20, 32, 2],
 }
+# Issue 16's targets (the default, portable mode; fast at least as fast).
 TARGETS = {
-    ("W1", 1): 100.0, ("W2", 1): 3.0, ("W3", 1): 1.2, ("W3", 2): 1.0,
+    ("W1", 1): 150.0, ("W2", 1): 5.0, ("W3", 1): 1.2, ("W3", 2): 1.3, ("W5", 1): 2.0,
 }
+# W3 on one thread: at least this share of numpy's measured GEMM peak.
+PEAK_SHARE = {("W3", 1): 0.85}
 
 
 def main():
@@ -66,16 +69,20 @@ def main():
                 ok = lrel <= 1e-2
             check = f"{'ok' if ok else 'DIFFERS'} ({a:.6g} / {b:.6g})"
         target = TARGETS.get((w, t))
-        if w == "W2" and r["dtype"] == "f32" and t == 1:
-            target = 3.0
+        if w == "W2" and r["dtype"] != "f32":
+            target = None
         rss = f"{r['peak_rss_kb'] / 1024:.0f} / {ref['peak_rss_kb'] / 1024:.0f}" if ref else f"{r['peak_rss_kb'] / 1024:.0f} / -"
         print(f"| {w} | {t} | {r['dtype']} | {r.get('arithmetic', '')} | {r['samples_per_s']:,.0f} | "
               f"{ref['samples_per_s']:,.0f} | " if ref else f"| {w} | {t} | {r['dtype']} | {r.get('arithmetic', '')} | {r['samples_per_s']:,.0f} | - | ", end="")
         print(f"{ratio:.2f}x | " if ratio else "- | ", end="")
         print(f">= {target}x | " if target else "- | ", end="")
-        print(f"{frac:.1%} | " if frac else "- | ", end="")
+        share = PEAK_SHARE.get((w, t))
+        if frac and share:
+            print(f"{frac:.1%} (target >= {share:.0%}) | ", end="")
+        else:
+            print(f"{frac:.1%} | " if frac else "- | ", end="")
         print(f"{rss} | {check} |")
-    # Thread scaling of cross-validation (stratanet, fast mode).
+    # Thread scaling of cross-validation (stratanet, portable mode).
     print()
     for w, target in [("W2-cv", None), ("CV-small-cv", 1.7)]:
         one = next((r for r in rs if r["workload"] == w and r["threads"] == 1), None)

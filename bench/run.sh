@@ -54,9 +54,9 @@ if [ -z "${QUICK:-}" ]; then
   done
 fi
 for t in 1 2; do
-  rs cv "$DATA/W2" "$t" fast
+  rs cv "$DATA/W2" "$t" portable
   np "$t" cv "$DATA/W2" "$t"
-  rs cv "$DATA/CV-small" "$t" fast
+  rs cv "$DATA/CV-small" "$t" portable
 done
 for a in fast portable; do rs predict "$DATA/W5" 1 "$a"; done
 np 1 predict "$DATA/W5" 1

@@ -8,6 +8,7 @@
 //! bench cv DIR THREADS fast|portable     5-fold cross-validation of a workload's configuration
 //! bench draw DIR 1 fast                  W5 in full: predict the grid and draw the decision map
 //! bench csv FILE                         load a CSV, report peak RSS against the f64 matrix size
+//! bench kernel                           print the instruction set the kernels run on here
 //! ```
 //! Every workload is written from fixed seeds, so the numpy reference
 //! (`bench/reference.py`) reads exactly the same rows, starting weights and
@@ -363,6 +364,10 @@ fn main() {
     let cmd = args.first().map(String::as_str).unwrap_or("");
     if cmd == "prepare" {
         prepare(Path::new(&args[1]));
+        return;
+    }
+    if cmd == "kernel" {
+        println!("{}", stratanet::network::kernel_name());
         return;
     }
     if cmd == "prepare-csv" {

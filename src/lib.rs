@@ -64,12 +64,23 @@
 //!
 //! ## Features
 //!
-//! None: the charts, model files and command line are always built.
+//! One, `cli` (on by default): the command line, the `stratanet` binary,
+//! [`command_line_main`] and [`check_command_line`], and the argument
+//! parser they need. A notebook compiles less without it:
+//!
+//! ```text
+//! :dep stratanet = { path = "..", default-features = false }
+//! ```
+//! Charts and model files are always built.
 #![warn(missing_docs)]
+// Without the command line, some crate-private helpers it alone calls are
+// unused; that is expected, not a warning.
+#![cfg_attr(not(feature = "cli"), allow(dead_code, unused_imports))]
 #![doc(test(attr(deny(warnings))))]
 
 mod atomic;
 pub mod chart;
+#[cfg(feature = "cli")]
 mod cli;
 pub mod data;
 pub mod error;
@@ -96,6 +107,7 @@ pub use rng::seeded_rng;
 /// object with `--json`) and returns the exit code: 0 on success, 2 on bad
 /// input or usage, with a message on stderr naming the file, line, column or
 /// flag.
+#[cfg(feature = "cli")]
 pub fn command_line_main() -> i32 {
     cli::main()
 }
@@ -114,6 +126,7 @@ pub fn command_line_main() -> i32 {
 ///     .unwrap_err()
 ///     .contains("--folds"));
 /// ```
+#[cfg(feature = "cli")]
 pub fn check_command_line<I, S>(args: I) -> std::result::Result<(), String>
 where
     I: IntoIterator<Item = S>,

@@ -19,9 +19,20 @@ export JUPYTER_DATA_DIR="$NB_STATE"
 export JUPYTER_CONFIG_DIR="$NB_STATE/config"
 export JUPYTER_RUNTIME_DIR="$NB_STATE/runtime"
 export JUPYTER_PLATFORM_DIRS=1
-# evcxr: an empty config folder of our own, so a developer's
+# evcxr: a config folder of our own, so a developer's
 # ~/.config/evcxr/init.evcxr (say `:timing` or `:opt 0`) cannot change outputs.
+# Ours holds only init.evcxr with `:cache`, which turns on evcxr's
+# compilation cache (setup.sh writes it; no effect on outputs).
 export EVCXR_CONFIG_DIR="$NB_STATE/evcxr-config"
+# evcxr's compilation cache lives in $XDG_CACHE_HOME/evcxr: for our kernels,
+# in target/jupyter/cache/evcxr (the kernelspec sets XDG_CACHE_HOME to this).
+NB_CACHE_HOME="$NB_STATE/cache"
+NB_EVCXR_CACHE="$NB_CACHE_HOME/evcxr"
+NB_EVCXR_CACHE_MIB=2048
+# Build folders that outlive a kernel (EVCXR_TMPDIR), one per kernel running
+# at the same time, so a later kernel finds the crate already compiled. Not
+# inside the repo, for the reason nbcheck.py gives for its own build folder.
+NB_BUILD_SLOTS="${TMPDIR:-/tmp}/stratanet-evcxr-$(printf '%s' "$NB_ROOT" | sha256sum | cut -c1-12)"
 # cargo/rustup/evcxr_jupyter live in CARGO_HOME/bin (default ~/.cargo/bin).
 case ":$PATH:" in
   *":${CARGO_HOME:-$HOME/.cargo}/bin:"*) ;;

@@ -3,8 +3,11 @@
 #
 #   target/notebook-venv   Python venv with the pinned Jupyter client
 #                          (notebooks/tools/requirements.txt)
-#   target/jupyter         the evcxr kernelspec ("rust"), Jupyter's runtime and
-#                          config folders, an empty evcxr config folder
+#   target/jupyter         the evcxr kernelspec ("rust", started through its
+#                          start-kernel.sh), Jupyter's runtime and config
+#                          folders, an evcxr config folder whose init.evcxr
+#                          turns on evcxr's compilation cache (in
+#                          target/jupyter/cache/evcxr)
 #
 # and, outside the repo, only what the Rust toolchain itself owns:
 # `cargo install evcxr_jupyter --locked --version 0.22.0` when it is missing,
@@ -79,17 +82,74 @@ else
 fi
 
 # 4. The kernelspec, in our own Jupyter folder --------------------------------
-mkdir -p "$JUPYTER_RUNTIME_DIR" "$JUPYTER_CONFIG_DIR" "$EVCXR_CONFIG_DIR"
-kernel_json="$JUPYTER_PATH/kernels/$NB_KERNEL/kernel.json"
+# evcxr_jupyter --install writes the kernelspec (and its logos); then its
+# kernel.json is replaced by ours, which starts the kernel through
+# start-kernel.sh (written here) with evcxr's compilation cache turned on:
+#
+# - every kernel, however Jupyter was started, gets EVCXR_CONFIG_DIR (our
+#   init.evcxr: `:cache $NB_EVCXR_CACHE_MIB`, evcxr's cache of compiled
+#   crates) and XDG_CACHE_HOME (so that cache is target/jupyter/cache/evcxr);
+# - start-kernel.sh gives the kernel a build folder that outlives it
+#   (EVCXR_TMPDIR; evcxr's default is a new folder per kernel, deleted at
+#   shutdown): the first free one of 8 slots under $NB_BUILD_SLOTS, held with
+#   flock for the kernel's life, so two kernels never share one. The cache
+#   alone would not do: evcxr does not cache crates compiled incrementally,
+#   and cargo compiles a path dependency such as `stratanet = { path = ".." }`
+#   incrementally. A caller that sets EVCXR_TMPDIR itself (nbcheck) keeps it.
+mkdir -p "$JUPYTER_RUNTIME_DIR" "$JUPYTER_CONFIG_DIR" "$EVCXR_CONFIG_DIR" "$NB_CACHE_HOME"
+printf ':cache %s\n' "$NB_EVCXR_CACHE_MIB" >"$EVCXR_CONFIG_DIR/init.evcxr"
+spec_dir="$JUPYTER_PATH/kernels/$NB_KERNEL"
+kernel_json="$spec_dir/kernel.json"
+starter="$spec_dir/start-kernel.sh"
 exe=$(command -v evcxr_jupyter)
-if [ -f "$kernel_json" ] && grep -qF "\"$exe\"" "$kernel_json"; then
-  say "ok: kernel '$NB_KERNEL' registered in $JUPYTER_PATH/kernels"
-else
+if [ ! -f "$kernel_json" ]; then
   # evcxr_jupyter --install writes to $JUPYTER_PATH/kernels/rust when
   # JUPYTER_PATH is set (else to ~/.local/share/jupyter).
   evcxr_jupyter --install >/dev/null
   [ -f "$kernel_json" ] || { echo "setup: evcxr_jupyter --install did not write $kernel_json" >&2; exit 1; }
-  say "registered kernel '$NB_KERNEL' in $JUPYTER_PATH/kernels (argv[0] $exe)"
+fi
+want_starter=$(cat <<EOF
+#!/usr/bin/env bash
+# Written by notebooks/tools/setup.sh: starts evcxr_jupyter in a build folder
+# that outlives the kernel (the first free slot; see setup.sh, step 4).
+set -euo pipefail
+if [ -z "\${EVCXR_TMPDIR:-}" ] && command -v flock >/dev/null 2>&1; then
+  mkdir -p "$NB_BUILD_SLOTS"
+  for slot in 0 1 2 3 4 5 6 7; do
+    exec 9>"$NB_BUILD_SLOTS/slot-\$slot.lock"
+    if flock -n 9; then
+      export EVCXR_TMPDIR="$NB_BUILD_SLOTS/slot-\$slot"
+      mkdir -p "\$EVCXR_TMPDIR"
+      # The same dependency versions as cargo build, until a notebook adds some.
+      [ -f "\$EVCXR_TMPDIR/Cargo.lock" ] || cp "$NB_ROOT/Cargo.lock" "\$EVCXR_TMPDIR/" 2>/dev/null || true
+      break
+    fi
+    exec 9>&-
+  done
+fi
+exec "$exe" --control_file "\$1"
+EOF
+)
+want_json=$("$NB_PY" - "$starter" "$EVCXR_CONFIG_DIR" "$NB_CACHE_HOME" <<'PY'
+import json, sys
+starter, config, cache = sys.argv[1:]
+print(json.dumps({
+    "argv": ["bash", starter, "{connection_file}"],
+    "display_name": "Rust",
+    "interrupt_mode": "message",
+    "language": "rust",
+    "env": {"EVCXR_CONFIG_DIR": config, "XDG_CACHE_HOME": cache},
+}, indent=2))
+PY
+)
+if [ "$(cat "$kernel_json")" = "$want_json" ] \
+   && [ -f "$starter" ] && [ "$(cat "$starter")" = "$want_starter" ]; then
+  say "ok: kernel '$NB_KERNEL' registered in $JUPYTER_PATH/kernels (compilation cache on)"
+else
+  printf '%s\n' "$want_starter" >"$starter"
+  printf '%s\n' "$want_json" >"$kernel_json"
+  say "registered kernel '$NB_KERNEL' in $JUPYTER_PATH/kernels (started by $starter, then $exe;" \
+    "evcxr's cache in $NB_EVCXR_CACHE, build folders in $NB_BUILD_SLOTS)"
 fi
 
 # 5. Prove the client finds that kernel, and only ours -------------------------

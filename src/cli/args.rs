@@ -180,7 +180,7 @@ pub(crate) struct NetArgs {
     /// Float type: f64 or f32 [f64].
     #[arg(long, value_name = "f64|f32", value_parser = parsed::<Precision>)]
     pub precision: Option<Precision>,
-    /// How sums are computed: fast (this CPU's kernels) or portable [fast].
+    /// How sums are computed: portable (the same bits on any CPU) or fast [portable].
     #[arg(long, value_name = "fast|portable", value_parser = parsed::<Arithmetic>)]
     pub arithmetic: Option<Arithmetic>,
     /// Most epochs [500].

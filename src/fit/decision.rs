@@ -45,7 +45,7 @@ use std::path::Path;
 /// The most decisions or classes a cost matrix may hold.
 pub const MAX_COST_ENTRIES: usize = 256;
 
-/// What each decision costs under each true class (see the [module docs](self)).
+/// What each decision costs under each true class (see the module docs).
 #[derive(Clone, Debug, PartialEq)]
 pub struct CostMatrix {
     decisions: Vec<String>,
@@ -471,7 +471,7 @@ pub struct ChosenThreshold {
 }
 
 /// Chooses a threshold on `scores` (the positive class's probabilities)
-/// for `target` (see the [module docs](self)).
+/// for `target` (see the module docs).
 ///
 /// # Errors
 /// Lists of different lengths, no positive row, a non-finite score, or a

@@ -53,7 +53,7 @@ pub struct Temperature {
 
 /// Probabilities from output sums `logits` divided by `temperature`, one
 /// column per class (a logistic head's single sum gives `1 - p`, `p`); see
-/// the [module docs](self).
+/// the module docs.
 ///
 /// # Errors
 /// A head that does not give probabilities, or a temperature that is not a
@@ -145,7 +145,7 @@ fn loss_and_slope(logits: ArrayView2<'_, f64>, labels: &[usize], head: Head, b: 
 }
 
 /// Fits the temperature on validation rows: their output sums `logits`
-/// (before the head) and true classes `labels` (see the [module docs](self)).
+/// (before the head) and true classes `labels` (see the module docs).
 ///
 /// # Errors
 /// No rows, rows and labels that disagree, a label beyond the classes, a

@@ -18,12 +18,15 @@ pub(crate) mod kernels;
 mod layer;
 mod perceptron;
 mod real;
+mod vecmath;
 
 pub(crate) use activation::sigmoid;
 pub use activation::{Activation, Head};
 pub(crate) use forward::{Forward, Params, EVAL_CHUNK};
 pub use init::Init;
-pub use kernels::Arithmetic;
+pub use kernels::{kernel_name, Arithmetic};
+#[doc(hidden)]
+pub use kernels::{matrix_product_f32, matrix_product_f64};
 pub use layer::Layer;
 pub(crate) use perceptron::{argmax, classes_from_outputs, probabilities_from_outputs};
 pub use perceptron::{Network, Precision, MAX_PARAMETERS};

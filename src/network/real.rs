@@ -1,10 +1,16 @@
-//! The float types a network computes in, and the two operations the
-//! engine needs from them beyond arithmetic: transcendental functions with
-//! the same bits on every machine, and a matrix product for the fast mode.
+//! The float types a network computes in, and the functions the engine
+//! needs from them beyond arithmetic, all with the same bits on every
+//! machine: `exp`, `tanh` and the logistic function from
+//! [`vecmath`](super::vecmath) (one value, or a whole slice at once on the
+//! CPU's widest vectors), `ln` and `ln(1 + x)` from the pure-Rust `libm`.
+
+use super::kernels::Element;
+use super::vecmath;
 
 /// The float types a network can compute in.
 pub(crate) trait Real:
     num_traits::Float
+    + Element
     + ndarray::LinalgScalar
     + ndarray::ScalarOperand
     + Send
@@ -19,40 +25,26 @@ pub(crate) trait Real:
     fn as_f64(self) -> f64;
     /// The same slice, when `Self` is `f64` (no copy needed); `None` otherwise.
     fn borrow_f64(s: &[f64]) -> Option<&[Self]>;
-    /// `e^self` from the pure-Rust `libm` (the same bits on every machine).
+    /// `e^self` (vecmath: the same bits on every machine).
     fn exp_det(self) -> Self;
-    /// `tanh(self)` from `libm`.
+    /// `tanh(self)` (vecmath).
     fn tanh_det(self) -> Self;
+    /// `1 / (1 + e^-self)` (vecmath, without overflow for either sign).
+    fn logistic(self) -> Self;
+    /// [`Real::exp_det`] on every element, vectorised (the same bits).
+    fn exp_slice(v: &mut [Self]);
+    /// [`Real::tanh_det`] on every element, vectorised (the same bits).
+    fn tanh_slice(v: &mut [Self]);
+    /// [`Real::logistic`] on every element, vectorised (the same bits).
+    fn logistic_slice(v: &mut [Self]);
     /// `ln(self)` from `libm`.
     fn ln_det(self) -> Self;
     /// `ln(1 + self)` from `libm`.
     fn ln_1p_det(self) -> Self;
-    /// `c = a b` through `matrixmultiply` (`m x k` times `k x n`, strides in
-    /// elements).
-    ///
-    /// # Safety
-    /// The pointers and strides must address valid `m x k`, `k x n` and
-    /// `m x n` matrices, `c` not overlapping the others.
-    #[allow(clippy::too_many_arguments)]
-    #[doc(hidden)]
-    unsafe fn gemm(
-        m: usize,
-        k: usize,
-        n: usize,
-        a: *const Self,
-        rsa: isize,
-        csa: isize,
-        b: *const Self,
-        rsb: isize,
-        csb: isize,
-        c: *mut Self,
-        rsc: isize,
-        csc: isize,
-    );
 }
 
-macro_rules! real_math {
-    ($exp:path, $tanh:path, $ln:path, $ln1p:path, $gemm:path) => {
+macro_rules! real {
+    ($t:ty, $exp:path, $tanh:path, $logistic:path, $exps:path, $tanhs:path, $logistics:path, $ln:path, $ln1p:path) => {
         #[inline]
         fn exp_det(self) -> Self {
             $exp(self)
@@ -62,29 +54,28 @@ macro_rules! real_math {
             $tanh(self)
         }
         #[inline]
+        fn logistic(self) -> Self {
+            $logistic(self)
+        }
+        #[inline]
+        fn exp_slice(v: &mut [Self]) {
+            $exps(v)
+        }
+        #[inline]
+        fn tanh_slice(v: &mut [Self]) {
+            $tanhs(v)
+        }
+        #[inline]
+        fn logistic_slice(v: &mut [Self]) {
+            $logistics(v)
+        }
+        #[inline]
         fn ln_det(self) -> Self {
             $ln(self)
         }
         #[inline]
         fn ln_1p_det(self) -> Self {
             $ln1p(self)
-        }
-        #[inline]
-        unsafe fn gemm(
-            m: usize,
-            k: usize,
-            n: usize,
-            a: *const Self,
-            rsa: isize,
-            csa: isize,
-            b: *const Self,
-            rsb: isize,
-            csb: isize,
-            c: *mut Self,
-            rsc: isize,
-            csc: isize,
-        ) {
-            $gemm(m, k, n, 1.0, a, rsa, csa, b, rsb, csb, 0.0, c, rsc, csc)
         }
     };
 }
@@ -102,12 +93,16 @@ impl Real for f64 {
     fn as_f64(self) -> f64 {
         self
     }
-    real_math!(
-        libm::exp,
-        libm::tanh,
+    real!(
+        f64,
+        vecmath::exp_f64,
+        vecmath::tanh_f64,
+        vecmath::logistic_f64,
+        vecmath::exp_slice_f64,
+        vecmath::tanh_slice_f64,
+        vecmath::logistic_slice_f64,
         libm::log,
-        libm::log1p,
-        matrixmultiply::dgemm
+        libm::log1p
     );
 }
 
@@ -124,11 +119,15 @@ impl Real for f32 {
     fn as_f64(self) -> f64 {
         self as f64
     }
-    real_math!(
-        libm::expf,
-        libm::tanhf,
+    real!(
+        f32,
+        vecmath::exp_f32,
+        vecmath::tanh_f32,
+        vecmath::logistic_f32,
+        vecmath::exp_slice_f32,
+        vecmath::tanh_slice_f32,
+        vecmath::logistic_slice_f32,
         libm::logf,
-        libm::log1pf,
-        matrixmultiply::sgemm
+        libm::log1pf
     );
 }

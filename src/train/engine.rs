@@ -10,8 +10,9 @@
 //! dJ/dW_l = a_{l-1}^T delta_l,   dJ/db_l = column sums of delta_l
 //! delta_{l-1} = (delta_l W_l^T) * f'(a_{l-1})        (element-wise product)
 //! ```
-//! Every product goes through the network's kernels (a fixed-order kernel of
-//! our own, or `matrixmultiply` for wide layers in the fast mode).
+//! Every product goes through the network's kernels, which sum each element
+//! in one fixed order (see [`Arithmetic`]) and split wide layers across
+//! threads without changing a bit.
 
 use crate::network::kernels::{self, Operands};
 use crate::network::{Activation, Arithmetic, Forward, Head, Params, Real};
@@ -47,14 +48,11 @@ pub(crate) struct Backprop<F: Real> {
     pub grad: Vec<F>,
     /// Each gathered row's loss weight, when rows are weighted.
     pub row_weights: Option<Vec<F>>,
-    /// Transposed weights of one layer (for the fixed-order kernel).
-    wt: Vec<F>,
 }
 
 impl<F: Real> Backprop<F> {
     pub fn new(params: &Params<F>, capacity: usize, arithmetic: Arithmetic) -> Backprop<F> {
         let n_out = params.shapes.last().expect("layers").1;
-        let widest = params.shapes.iter().map(|&(i, o)| i * o).max().unwrap_or(0);
         Backprop {
             fwd: Forward::new(params, capacity, arithmetic),
             targets: vec![F::zero(); capacity * n_out],
@@ -65,7 +63,6 @@ impl<F: Real> Backprop<F> {
                 .collect(),
             grad: vec![F::zero(); params.data.len()],
             row_weights: None,
-            wt: vec![F::zero(); widest],
         }
     }
 
@@ -169,7 +166,8 @@ impl<F: Real> Backprop<F> {
                     lrs: 1,
                     lcs: n_in,
                     rhs: delta,
-                    ldr: n_out,
+                    rrs: n_out,
+                    rcs: 1,
                 },
                 &mut self.grad[wr.clone()],
                 None,
@@ -184,43 +182,21 @@ impl<F: Real> Backprop<F> {
             if l > 0 {
                 // delta_{l-1} = delta_l W^T (no input gradient for layer 0).
                 let prev = &mut before[l - 1][..m * n_in];
-                let w = &params.data[wr];
-                if arithmetic == Arithmetic::Fast && m * n_in * n_out >= kernels::WIDE {
-                    // SAFETY: delta is m x n_out, W^T is read through
-                    // strides (n_out x n_in view of the n_in x n_out block),
-                    // prev is m x n_in; all lengths hold by construction.
-                    unsafe {
-                        F::gemm(
-                            m,
-                            n_out,
-                            n_in,
-                            delta.as_ptr(),
-                            n_out as isize,
-                            1,
-                            w.as_ptr(),
-                            1,
-                            n_out as isize,
-                            prev.as_mut_ptr(),
-                            n_in as isize,
-                            1,
-                        );
-                    }
-                } else {
-                    kernels::transpose(w, n_in, n_out, &mut self.wt);
-                    kernels::product(
-                        arithmetic,
-                        (m, n_in, n_out),
-                        Operands {
-                            lhs: delta,
-                            lrs: n_out,
-                            lcs: 1,
-                            rhs: &self.wt,
-                            ldr: n_in,
-                        },
-                        prev,
-                        None,
-                    );
-                }
+                // W^T is read through strides: rhs[q][j] = W[j][q].
+                kernels::product(
+                    arithmetic,
+                    (m, n_in, n_out),
+                    Operands {
+                        lhs: delta,
+                        lrs: n_out,
+                        lcs: 1,
+                        rhs: &params.data[wr],
+                        rrs: 1,
+                        rcs: n_out,
+                    },
+                    prev,
+                    None,
+                );
                 times_derivative(prev, &self.fwd.acts[l - 1][..m * n_in], activation);
             }
         }

@@ -69,6 +69,24 @@ pub fn check_gradients(
     loss: Loss,
     h: f64,
 ) -> Result<GradientCheck> {
+    check_gradients_in(network, x, y, loss, h, Arithmetic::Portable)
+}
+
+/// [`check_gradients`] with every pass (the backpropagated gradients and
+/// the losses of the finite differences) computed in the given arithmetic
+/// mode, for tests of the fast mode.
+///
+/// # Errors
+/// As [`check_gradients`].
+#[doc(hidden)]
+pub fn check_gradients_in(
+    network: &Network,
+    x: ArrayView2<'_, f64>,
+    y: ArrayView2<'_, f64>,
+    loss: Loss,
+    h: f64,
+    arithmetic: Arithmetic,
+) -> Result<GradientCheck> {
     if !(h > 0.0 && h.is_finite()) {
         return Err(Error::option(
             "h",
@@ -96,7 +114,7 @@ pub fn check_gradients(
     let (act, head) = (network.activation(), network.head());
     let m = x.nrows();
     let mut params = Params::<f64>::from_network(network);
-    let mut bp = Backprop::new(&params, m, Arithmetic::Portable);
+    let mut bp = Backprop::new(&params, m, arithmetic);
     let rows: Vec<usize> = (0..m).collect();
     let xf: Vec<f64> = x.iter().copied().collect();
     let yf: Vec<f64> = y.iter().copied().collect();

@@ -18,7 +18,7 @@ use crate::error::{Error, Result};
 use crate::fit::CostMatrix;
 use ndarray::Array2;
 
-/// Cost per row under cross-validation (see the [module docs](self)).
+/// Cost per row under cross-validation (see the module docs).
 #[derive(Clone, Debug, PartialEq)]
 pub struct CostSummary {
     /// The matrix, its columns in the table's class order.

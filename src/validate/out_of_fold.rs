@@ -8,7 +8,7 @@ use crate::data::Dataset;
 use crate::error::{Error, Result};
 use ndarray::Array2;
 
-/// One repeat's out-of-fold predictions (see the [module docs](self)).
+/// One repeat's out-of-fold predictions (see the module docs).
 #[derive(Clone, Debug, PartialEq)]
 pub struct OutOfFold {
     /// The repeat (from 0) whose folds made the predictions.

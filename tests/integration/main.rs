@@ -3,6 +3,7 @@
 //! Every check against an outside source names it beside the check.
 
 mod architecture;
+mod arithmetic;
 mod classic_problems;
 mod cli;
 mod cli_safety;

@@ -70,7 +70,7 @@ use std::fmt;
 use std::str::FromStr;
 
 /// How rows are grouped into bins for a reliability diagram (see the
-/// [module docs](self)).
+/// module docs).
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Binning {
     /// `B` bins holding equal numbers of rows (give or take one).
@@ -151,7 +151,7 @@ impl FromStr for Binning {
     }
 }
 
-/// What a reliability diagram's predicted value is (see the [module docs](self)).
+/// What a reliability diagram's predicted value is (see the module docs).
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub enum Forecast {
     /// Two classes: the probability of class 1 (the second class).
@@ -253,7 +253,7 @@ fn bin_rows(values: &[f64], binning: Binning) -> Vec<Vec<usize>> {
 }
 
 /// Reliability-diagram data, expected and maximum calibration error (see
-/// the [module docs](self) for what is binned and the formulas).
+/// the module docs for what is binned and the formulas).
 ///
 /// # Errors
 /// As [`log_loss`](super::log_loss), and a bin count outside 1 to
@@ -335,7 +335,7 @@ pub enum Grouping {
     Bins(Binning),
 }
 
-/// The Brier score's partition (see the [module docs](self) for the formulas).
+/// The Brier score's partition (see the module docs for the formulas).
 #[derive(Clone, Debug, PartialEq)]
 pub struct BrierPartition {
     /// How the rows were grouped.
