@@ -64,7 +64,11 @@
 //!
 //! ## Features
 //!
-//! None: the charts, model files and command line are always built.
+//! - `export` (on by default): saving charts as PDF and PNG
+//!   ([`chart::Chart::save`] by extension), through resvg and svg2pdf. Off
+//!   (`default-features = false`), the crate builds without them and SVG
+//!   is the only chart format; the charts, model files, reports and command
+//!   line are always built.
 #![warn(missing_docs)]
 #![doc(test(attr(deny(warnings))))]
 

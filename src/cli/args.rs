@@ -228,6 +228,9 @@ pub(crate) struct FitArgs {
     /// Write the charts (SVG) into this folder.
     #[arg(long, value_name = "DIR")]
     pub charts: Option<PathBuf>,
+    /// Write a self-contained HTML page (no network needed) with the table, scores, baselines and every chart, captioned.
+    #[arg(long, value_name = "FILE.html")]
+    pub report: Option<PathBuf>,
     #[command(flatten)]
     pub output: OutputArgs,
 }
@@ -294,6 +297,9 @@ pub(crate) struct CvArgs {
     /// Write the charts (SVG) into this folder.
     #[arg(long, value_name = "DIR")]
     pub charts: Option<PathBuf>,
+    /// Write a self-contained HTML page (no network needed) with the table, scores, baselines and every chart, captioned.
+    #[arg(long, value_name = "FILE.html")]
+    pub report: Option<PathBuf>,
     #[command(flatten)]
     pub output: OutputArgs,
 }
@@ -333,6 +339,9 @@ pub(crate) struct SweepArgs {
     /// Save the best configuration, refitted on all rows, here.
     #[arg(long, value_name = "PATH")]
     pub out: Option<PathBuf>,
+    /// Write a self-contained HTML page (no network needed) with the table, scores, baselines and every chart, captioned.
+    #[arg(long, value_name = "FILE.html", conflicts_with = "write_plan")]
+    pub report: Option<PathBuf>,
     #[command(flatten)]
     pub output: OutputArgs,
 }

@@ -8,10 +8,12 @@ use super::prepare::{
     CheckJob, CvJob, DemoJob, FitJob, Job, MergeJob, PredictJob, SweepJob, TrialJob,
 };
 use super::progress::Progress;
+use crate::atomic::write_text;
 use crate::data::{Dataset, Target};
 use crate::error::{Error, Result};
 use crate::fit::{fit_checked, FitOptions, CAUTION};
 use crate::model_file;
+use crate::report;
 use crate::rng::{child_seed, seeded_rng};
 use crate::validate::sweep_files::{self, TrialResult};
 use crate::validate::{cv, sweep as sweeps, Metric, Scores, SweepPlan};
@@ -55,6 +57,10 @@ fn fit(j: FitJob, progress: &Progress) -> Result<Outcome> {
     if let Some(dir) = &j.charts {
         written = charts::fit_charts(&data, &fitted, dir)?;
     }
+    if let Some(path) = &j.report {
+        let html = report::fit_report(&data, &fitted, footer(j.seed))?;
+        write_text(path, &html)?;
+    }
     let r = fitted.report();
     let model = fitted.model();
     let last = r.history.last();
@@ -77,6 +83,7 @@ fn fit(j: FitJob, progress: &Progress) -> Result<Outcome> {
         "seed": j.seed,
         "table_fingerprint": model.provenance().table_fingerprint,
         "charts": written,
+        "report": j.report,
     });
     let mut text = String::new();
     let _ = writeln!(
@@ -112,7 +119,17 @@ fn fit(j: FitJob, progress: &Progress) -> Result<Outcome> {
     for c in &written {
         let _ = writeln!(text, "wrote {}", c.display());
     }
+    if let Some(path) = &j.report {
+        let _ = writeln!(text, "wrote the report {}", path.display());
+    }
     Ok(Outcome { json, text })
+}
+
+/// The footer of a report page: the one seed of the run.
+fn footer(seed: u64) -> Vec<String> {
+    vec![format!(
+        "Seed {seed}: the same command with the same seed reproduces every number and chart of this page byte for byte, on any number of threads."
+    )]
 }
 
 fn check(j: CheckJob) -> Result<Outcome> {
@@ -171,11 +188,16 @@ fn cross_validate(j: CvJob, progress: &Progress) -> Result<Outcome> {
     if let Some(dir) = &j.charts {
         written = charts::cv_charts(&data, &result, dir)?;
     }
+    if let Some(path) = &j.report {
+        let html = report::cv_report(&data, &result, footer(j.seed))?;
+        write_text(path, &html)?;
+    }
     let mut json = cv_json(&result);
     json["command"] = json!("cv");
     json["data"] = json!(j.data);
     json["seed"] = json!(j.seed);
     json["charts"] = json!(written);
+    json["report"] = json!(j.report);
     let mut text = format!(
         "{}-fold cross-validation ({} repeat{}) on {} rows of {}\n",
         j.cv.folds,
@@ -187,6 +209,9 @@ fn cross_validate(j: CvJob, progress: &Progress) -> Result<Outcome> {
     cv_text(&result, &mut text);
     for c in &written {
         let _ = writeln!(text, "wrote {}", c.display());
+    }
+    if let Some(path) = &j.report {
+        let _ = writeln!(text, "wrote the report {}", path.display());
     }
     Ok(Outcome { json, text })
 }
@@ -214,10 +239,15 @@ fn sweep(j: SweepJob, progress: &Progress) -> Result<Outcome> {
     if let Some(out) = &j.out {
         result.best.model().save(out)?;
     }
+    if let Some(path) = &j.report {
+        let html = report::sweep_report(&data, &result, footer(j.seed))?;
+        write_text(path, &html)?;
+    }
     let mut json = table_json(&result.table);
     json["command"] = json!("sweep");
     json["best"] = json!(result.table.rows[0].name);
     json["model"] = json!(j.out);
+    json["report"] = json!(j.report);
     let mut text = format!(
         "sweep of {} configurations on shared folds, sorted by {}\n",
         result.table.rows.len(),
@@ -230,6 +260,9 @@ fn sweep(j: SweepJob, progress: &Progress) -> Result<Outcome> {
             "refitted the best on all rows and saved it to {}",
             out.display()
         );
+    }
+    if let Some(path) = &j.report {
+        let _ = writeln!(text, "wrote the report {}", path.display());
     }
     Ok(Outcome { json, text })
 }

@@ -25,6 +25,8 @@ pub struct Analysis {
     /// A decision map over the first two numeric columns (classifiers with
     /// at least two numeric columns).
     pub decision_map: Option<Chart>,
+    /// The seed given.
+    pub seed: u64,
 }
 
 /// Reads `path`, predicts `target` (dropping the columns in `drop`), fits
@@ -77,12 +79,33 @@ fn analyse(data: Dataset, options: &FitOptions, seed: u64) -> Result<Analysis> {
         validation,
         learning_curves,
         decision_map,
+        seed,
     })
 }
 
 impl Analysis {
-    /// The whole report as one HTML fragment with the charts inline.
+    /// The whole report as one HTML fragment with the charts inline: the
+    /// same sections as `stratanet fit --report` (the table, training,
+    /// validation scores with baselines, what the model learned).
     pub fn to_html(&self) -> String {
+        let mut page = super::page::Page::new("Analysis");
+        let built = super::sections::table_section(&mut page, &self.data).and_then(|()| {
+            super::sections::fit_sections(&mut page, &self.data, &self.fitted, None)
+        });
+        let mut h = match built {
+            Ok(()) => page.fragment(),
+            Err(e) => format!("<p>{}</p>", crate::notebook::escape(&e.to_string())),
+        };
+        h.push_str(&notes(&[format!(
+            "Seed {}: a rerun gives the same numbers and charts.",
+            self.seed
+        )]));
+        h
+    }
+
+    /// The earlier, shorter report (tables, learning curves, decision map).
+    #[allow(dead_code)]
+    fn summary_html(&self) -> String {
         let mut h = self.data.to_html();
         h.push_str(&self.fitted.report().to_html());
         if let Some(v) = &self.validation {

@@ -17,6 +17,7 @@ mod model_files;
 mod nothing_lost;
 mod portable;
 mod properties;
+mod report_page;
 mod support;
 mod validation;
 mod worked_examples;
