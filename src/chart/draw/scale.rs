@@ -86,9 +86,11 @@ fn nice_step(range: f64, target: usize) -> f64 {
 pub(crate) fn nice_range(lo: f64, hi: f64, target: usize) -> (f64, f64) {
     let (lo, hi) = usable_range(lo, hi);
     let step = nice_step(hi - lo, target);
+    // A value within rounding of a multiple of the step is that multiple
+    // (so 0 stays 0, not one step below).
     (
-        (lo / step - 1e-9).floor() * step,
-        (hi / step + 1e-9).ceil() * step,
+        (lo / step + 1e-9).floor() * step,
+        (hi / step - 1e-9).ceil() * step,
     )
 }
 
@@ -294,6 +296,13 @@ mod tests {
         assert_eq!(labels, ["−0.3", "−0.2", "−0.1", "0.0", "0.1", "0.2", "0.3"]);
         assert!(!linear_ticks(5.0, 5.0, 5).is_empty());
         assert!(!linear_ticks(f64::NAN, 1.0, 5).is_empty());
+    }
+
+    #[test]
+    fn nice_ranges_keep_round_ends() {
+        assert_eq!(nice_range(0.0, 90.0, 3), (0.0, 100.0));
+        assert_eq!(nice_range(0.2, 1.0, 4), (0.2, 1.0));
+        assert_eq!(nice_range(-0.03, 0.97, 5), (-0.2, 1.0));
     }
 
     #[test]
