@@ -617,3 +617,117 @@ impl Model {
         )
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::data::CsvOptions;
+    use crate::fit::{fit, FitOptions};
+    use crate::rng::seeded_rng;
+
+    fn parts() -> Dataset {
+        CsvOptions::new("verdict")
+            .drop(&["part_id"])
+            .read_str(include_str!("../../../demo-data/parts.csv"), "parts.csv")
+            .unwrap()
+    }
+
+    fn subtitle(chart: &Chart) -> String {
+        chart
+            .boxes()
+            .texts
+            .iter()
+            .map(|t| t.text.clone())
+            .collect::<Vec<_>>()
+            .join(" | ")
+    }
+
+    /// Text inputs are held at a real level (never the all-zeros row no
+    /// part has), numbers at their median, and the subtitle says which.
+    #[test]
+    fn decision_maps_hold_other_inputs_at_real_values() {
+        let data = parts();
+        let model = fit(
+            &data,
+            &FitOptions::default().hidden(&[4]).epochs(20),
+            &mut seeded_rng(1),
+        )
+        .unwrap()
+        .into_model();
+        let (base, line) = held_values(&data, ["bore_dev_um", "roundness_um"], &[]).unwrap();
+        // The most frequent spindle, counted here from the table itself.
+        let text = include_str!("../../../demo-data/parts.csv");
+        let mut counts = std::collections::BTreeMap::new();
+        for row in text.lines().skip(1) {
+            *counts
+                .entry(row.split(',').nth(4).unwrap().to_string())
+                .or_insert(0) += 1;
+        }
+        let most = counts
+            .iter()
+            .max_by_key(|(level, n)| (**n, std::cmp::Reverse((*level).clone())))
+            .unwrap()
+            .0
+            .clone();
+        let line = line.unwrap();
+        assert!(
+            line.contains(&format!("spindle = {most} (most frequent)")),
+            "{line}"
+        );
+        assert!(
+            line.contains("roughness ra (µm) = ") && line.contains("(median)"),
+            "{line}"
+        );
+        // Exactly one spindle column is 1.
+        let spindle: Vec<f64> = data
+            .feature_names()
+            .iter()
+            .zip(&base)
+            .filter(|(n, _)| n.starts_with("spindle="))
+            .map(|(_, v)| *v)
+            .collect();
+        assert_eq!(spindle.iter().sum::<f64>(), 1.0);
+        let chart = model
+            .decision_map_chart(&data, "bore_dev_um", "roundness_um")
+            .unwrap();
+        assert!(subtitle(&chart).contains(&format!("spindle = {most} (most frequent)")));
+
+        let picked = DecisionMapOptions {
+            hold: vec![
+                ("spindle".into(), "north".into()),
+                ("roughness_ra_um".into(), "0.8".into()),
+            ],
+            resolution: 20,
+            ..Default::default()
+        };
+        let chart = model
+            .decision_map_chart_with(&data, "bore_dev_um", "roundness_um", &picked)
+            .unwrap();
+        let all = subtitle(&chart);
+        assert!(
+            all.contains("spindle = north (chosen)")
+                && all.contains("roughness ra (µm) = 0.800 (chosen)"),
+            "{all}"
+        );
+
+        let bad = DecisionMapOptions {
+            hold: vec![("spindle".into(), "west".into())],
+            ..Default::default()
+        };
+        let err = model
+            .decision_map_chart_with(&data, "bore_dev_um", "roundness_um", &bad)
+            .unwrap_err();
+        assert_eq!(
+            err.to_string(),
+            "option hold = spindle = west: is not a level of spindle; its levels are east, north, south"
+        );
+        let err = model
+            .decision_map_chart(&data, "spindle=east", "roundness_um")
+            .unwrap_err();
+        assert!(
+            err.to_string()
+                .contains("is one level of the text column spindle"),
+            "{err}"
+        );
+    }
+}
