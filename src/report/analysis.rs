@@ -103,34 +103,6 @@ impl Analysis {
         h
     }
 
-    /// The earlier, shorter report (tables, learning curves, decision map).
-    #[allow(dead_code)]
-    fn summary_html(&self) -> String {
-        let mut h = self.data.to_html();
-        h.push_str(&self.fitted.report().to_html());
-        if let Some(v) = &self.validation {
-            h.push_str(&format!(
-                "<p style=\"font-family:sans-serif;font-size:13px\">Scores on the {} validation rows (held out from training, used for early stopping):</p>",
-                self.fitted.split().validation.len()
-            ));
-            h.push_str(&v.to_html());
-        }
-        h.push_str("<div>");
-        h.push_str(self.learning_curves.as_svg());
-        h.push_str("</div>");
-        if let Some(m) = &self.decision_map {
-            h.push_str("<div>");
-            h.push_str(m.as_svg());
-            h.push_str("</div>");
-        }
-        h.push_str(&self.fitted.model().network().to_html());
-        h.push_str(&notes(&[format!(
-            "Seed {}: a rerun gives the same numbers and charts.",
-            self.fitted.model().seed()
-        )]));
-        h
-    }
-
     /// Shows the report in a notebook.
     pub fn evcxr_display(&self) {
         show("text/html", &self.to_html());

@@ -40,7 +40,11 @@ pub(crate) fn fit_exhibits(data: &Dataset, fitted: &Fitted) -> Vec<Exhibit> {
     let mut out = vec![
         exhibit(
             "learning-curves",
-            "Loss per epoch on the training rows (solid) and on the validation rows (dashed) for each restart; the dashed vertical line is the epoch whose weights were kept.",
+            if fitted.restarts().len() > 1 {
+                "Loss per epoch on the training rows (solid) and on the validation rows (dashed): thin lines for each restart, bold lines their medians; dashed vertical lines mark the epoch each restart kept."
+            } else {
+                "Loss per epoch on the training rows (solid) and on the validation rows (dashed); the dashed vertical line is the epoch whose weights were kept."
+            },
             fitted.learning_curves_chart(),
         ),
         exhibit(

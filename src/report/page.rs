@@ -87,12 +87,17 @@ impl Page {
         let link = file.map_or(String::new(), |f| {
             format!(" <a href=\"{}\">{}</a>", escape(f), escape(f))
         });
+        let mut chars = caption.chars();
+        let caption: String = chars
+            .next()
+            .map(|c| c.to_uppercase().chain(chars).collect())
+            .unwrap_or_default();
         let _ = writeln!(
             self.body,
             "<figure>{}<figcaption><b>Figure {}.</b> {}{}</figcaption></figure>",
             chart.as_svg().trim_end(),
             self.figures,
-            escape(caption),
+            escape(&caption),
             link
         );
     }
