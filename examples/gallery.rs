@@ -7,22 +7,17 @@
 //! cargo run --release --example gallery -- [FOLDER]
 //! ```
 //!
-//! The kinds whose results other parts of the library compute on their
-//! own (reliability bins, permutation importance, nested cross-validation)
-//! are fed here by a few lines of plain computation, for the picture only.
+//! Every chart is drawn from the library's own results, through the
+//! methods a notebook user calls.
 
 use std::path::{Path, PathBuf};
-use stratanet::chart::plot::{
-    column_overview, nested_cross_validation, permutation_importance, reliability_diagram,
-    weight_maps, ColumnSummary, FeatureImportance, NestedOutcome, NetworkWeights, OuterFold,
-    ReliabilityBin,
-};
+use stratanet::chart::plot::{weight_maps, NetworkWeights};
 use stratanet::chart::{Chart, ChartOptions, HiddenView};
-use stratanet::data::{stratified_folds, ColumnEncoding, CsvOptions, TargetKind};
-use stratanet::ndarray::Array2;
+use stratanet::data::{CsvOptions, ScoredRows, Task};
 use stratanet::prelude::*;
-use stratanet::rand::RngCore;
-use stratanet::validate::{sweep, Grid, Scores, Summary};
+use stratanet::validate::importance::ImportanceOptions;
+use stratanet::validate::metrics::Binning;
+use stratanet::validate::{nested_cross_validate, sweep, Grid, Scores};
 
 fn save(out: &Path, name: &str, chart: &Chart) -> stratanet::Result<()> {
     let path = out.join(format!("{name}.svg"));
@@ -32,142 +27,6 @@ fn save(out: &Path, name: &str, chart: &Chart) -> stratanet::Result<()> {
     std::fs::write(&png_path, png).map_err(|e| stratanet::Error::io(&png_path, "writing", e))?;
     println!("wrote {} and .png", path.display());
     Ok(())
-}
-
-/// Ten bins of P(class) on `rows`: mean predicted, observed share, count.
-fn reliability_bins(
-    model: &Model,
-    rows: &Dataset,
-    class: usize,
-) -> stratanet::Result<Vec<ReliabilityBin>> {
-    let p = model.predict_probabilities(rows.x())?;
-    let labels = rows.labels().expect("classes");
-    let mut bins = vec![(0.0, 0.0, 0usize); 10];
-    for (i, &l) in labels.iter().enumerate() {
-        let q = p[[i, class]];
-        let b = ((q * 10.0).floor() as usize).min(9);
-        bins[b].0 += q;
-        bins[b].1 += f64::from(u8::from(l == class));
-        bins[b].2 += 1;
-    }
-    Ok(bins
-        .into_iter()
-        .map(|(sum, hits, n)| ReliabilityBin {
-            mean_predicted: if n > 0 { sum / n as f64 } else { f64::NAN },
-            observed: if n > 0 { hits / n as f64 } else { f64::NAN },
-            count: n,
-        })
-        .collect())
-}
-
-/// Accuracy drop when one source column is shuffled, 10 seeded shuffles,
-/// mean and Student t 95% interval over the shuffles.
-fn importances(model: &Model, rows: &Dataset) -> stratanet::Result<Vec<FeatureImportance>> {
-    let x = rows.x().to_owned();
-    let labels = rows.labels().expect("classes");
-    let accuracy = |x: &Array2<f64>| -> stratanet::Result<f64> {
-        let p = model.predict_classes(x.view())?;
-        Ok(p.iter().zip(labels).filter(|(a, b)| a == b).count() as f64 / labels.len() as f64)
-    };
-    let base = accuracy(&x)?;
-    let mut rng = seeded_rng(11);
-    let mut out = Vec::new();
-    let mut offset = 0;
-    for column in rows.columns() {
-        let width = column.width();
-        let mut drops = Vec::new();
-        for _ in 0..10 {
-            let mut order: Vec<usize> = (0..x.nrows()).collect();
-            for i in (1..order.len()).rev() {
-                let j = (rng.next_u64() % (i as u64 + 1)) as usize;
-                order.swap(i, j);
-            }
-            let mut shuffled = x.clone();
-            for (i, &from) in order.iter().enumerate() {
-                for c in offset..offset + width {
-                    shuffled[[i, c]] = x[[from, c]];
-                }
-            }
-            drops.push(base - accuracy(&shuffled)?);
-        }
-        let s = Summary::from_values(&drops)?;
-        out.push(FeatureImportance {
-            name: column.name().to_string(),
-            mean_drop: s.mean,
-            interval: (s.ci_low, s.ci_high),
-        });
-        offset += width;
-    }
-    Ok(out)
-}
-
-/// A small nested cross-validation: 5 outer folds, a sweep of three
-/// layouts on 3 inner folds of each outer training set.
-fn nested(parts: &Dataset) -> stratanet::Result<NestedOutcome> {
-    let mut rng = seeded_rng(21);
-    let labels = parts.labels().expect("classes");
-    let folds = stratified_folds(labels, 5, &mut rng)?;
-    let base = FitOptions::default().epochs(120);
-    let grid = Grid {
-        hidden_layers: vec![vec![], vec![4], vec![12]],
-        ..Grid::default()
-    };
-    let inner = CvOptions {
-        folds: 3,
-        ..CvOptions::default()
-    };
-    let mut outer = Vec::new();
-    let mut scores = Vec::new();
-    for fold in &folds {
-        let train = parts.select(&fold.train);
-        let test = parts.select(&fold.test);
-        let s = sweep(&train, &base, &grid, &inner, Metric::Accuracy, &mut rng)?;
-        let (scored, _) = Scores::of(s.best.model(), &test)?;
-        let score = scored.value(Metric::Accuracy)?;
-        scores.push(score);
-        outer.push(OuterFold {
-            score,
-            winner: s.table.rows[0].name.clone(),
-        });
-    }
-    let s = Summary::from_values(&scores)?;
-    Ok(NestedOutcome {
-        folds: outer,
-        metric: "accuracy".into(),
-        higher_is_better: true,
-        summary: Some((s.mean, (s.ci_low, s.ci_high))),
-    })
-}
-
-fn columns(data: &Dataset) -> Vec<ColumnSummary> {
-    let x = data.x();
-    let mut offset = 0;
-    data.columns()
-        .iter()
-        .map(|c| {
-            let summary = match c {
-                ColumnEncoding::Numeric { name } => {
-                    let mut v = x.column(offset).to_vec();
-                    v.sort_by(f64::total_cmp);
-                    v.dedup();
-                    ColumnSummary {
-                        name: name.clone(),
-                        kind: "numeric".into(),
-                        missing: 0,
-                        distinct: v.len(),
-                    }
-                }
-                ColumnEncoding::OneHot { name, levels } => ColumnSummary {
-                    name: name.clone(),
-                    kind: "text".into(),
-                    missing: 0,
-                    distinct: levels.len(),
-                },
-            };
-            offset += c.width();
-            summary
-        })
-        .collect()
 }
 
 fn main() -> stratanet::Result<()> {
@@ -186,8 +45,8 @@ fn main() -> stratanet::Result<()> {
     let model = fitted.model();
     let train = parts.select(&fitted.split().train);
     let val = parts.select(&fitted.split().validation);
-    let on_train = ChartOptions::default().rows("training rows");
-    let on_val = ChartOptions::default().rows("validation rows");
+    let on_train = ChartOptions::default().scored(ScoredRows::Training);
+    let on_val = ChartOptions::default().scored(ScoredRows::Validation);
     let (scores, _) = Scores::of(model, &val)?;
     let Scores::Classification(metrics) = &scores else {
         unreachable!("a classifier")
@@ -219,14 +78,14 @@ fn main() -> stratanet::Result<()> {
     let swept = sweep(
         &parts,
         &FitOptions::default().epochs(150),
-        &grid,
+        &grid.into(),
         &CvOptions::default(),
         Metric::Accuracy,
         &mut seeded_rng(8),
     )?;
     let sensors = CsvOptions::new("power_kw")
         .drop(&["run_id", "condition"])
-        .target_kind(TargetKind::Values)
+        .task(Task::Regression)
         .read(root.join("demo-data/sensors.csv"))?;
     let regression = fit(
         &sensors,
@@ -234,6 +93,26 @@ fn main() -> stratanet::Result<()> {
         &mut seeded_rng(9),
     )?;
     let sensors_val = sensors.select(&regression.split().validation);
+    let importance =
+        cv.permutation_importance(&parts, &ImportanceOptions::default(), &mut seeded_rng(11))?;
+    let nested = nested_cross_validate(
+        &parts,
+        &FitOptions::default().epochs(120),
+        &Grid {
+            hidden_layers: vec![vec![], vec![4], vec![12]],
+            ..Grid::default()
+        }
+        .into(),
+        &CvOptions::default(),
+        &CvOptions {
+            folds: 3,
+            ..CvOptions::default()
+        },
+        Metric::Accuracy,
+        &mut seeded_rng(21),
+    )?;
+    // The table as read with its identifier kept, for the column overview.
+    let parts_all = CsvOptions::new("verdict").read(&parts_csv)?;
     // A network of the acceptance size, 30-64-32-2, freshly initialised.
     let wide = stratanet::network::Network::new(
         &[30, 64, 32, 2],
@@ -312,32 +191,11 @@ fn main() -> stratanet::Result<()> {
         ),
         (
             "reliability",
-            reliability_diagram(
-                &reliability_bins(model, &val, 2)?,
-                "P(scrap)",
-                &ChartOptions::default().rows("validation rows"),
-            )?,
+            cv.reliability_chart(&parts, Binning::EqualCount(10))?,
         ),
-        (
-            "permutation-importance",
-            permutation_importance(
-                &importances(model, &val)?,
-                "accuracy",
-                &ChartOptions::default(),
-            )?,
-        ),
-        (
-            "nested-cv",
-            nested_cross_validation(&nested(&parts)?, &ChartOptions::default())?,
-        ),
-        (
-            "columns",
-            column_overview(
-                &columns(&parts),
-                parts.n_rows(),
-                &ChartOptions::titled("Columns of parts.csv"),
-            )?,
-        ),
+        ("permutation-importance", importance.chart()?),
+        ("nested-cv", nested.chart()?),
+        ("columns", parts_all.summary(None).columns_chart()?),
     ];
     for (name, c) in &charts {
         save(&out, name, c)?;

@@ -105,7 +105,7 @@ pub enum ErrorKind {
         /// What the cell should have been and how to fix it.
         reason: String,
     },
-    /// A cell is missing (empty, `NA`, `NaN`, `?`, ...).
+    /// A cell is missing (empty, or a missing marker such as `NA`).
     MissingValue {
         /// The file.
         path: PathBuf,
@@ -117,6 +117,21 @@ pub enum ErrorKind {
         index: usize,
         /// The cell's text (possibly empty).
         value: String,
+        /// Whether filling the cell (`missing = impute`) is possible here.
+        can_impute: bool,
+    },
+    /// A column's cells, taken together, do not say what the column is (a
+    /// mix of numbers and text, numbers with the other decimal mark, no
+    /// value at all); the reason lists the cells and how to decide.
+    ColumnType {
+        /// The file.
+        path: PathBuf,
+        /// The column's header name.
+        column: String,
+        /// The column's 0-based position in the header.
+        index: usize,
+        /// What the cells hold and how to decide.
+        reason: String,
     },
     /// A named column does not exist.
     MissingColumn {
@@ -373,6 +388,74 @@ impl Error {
     }
 }
 
+/// A sentence about the user's data or a fit (a decision the library made,
+/// or a warning) that may name options and the fix. It shows the library's
+/// option names (`missing = impute`); the command line shows its flags
+/// (`--missing impute`) instead.
+#[derive(Clone)]
+pub struct Message(String);
+
+/// Two messages are equal when they read the same (a message read back
+/// from a file has its options written out).
+impl PartialEq for Message {
+    fn eq(&self, other: &Message) -> bool {
+        self.to_string() == other.to_string()
+    }
+}
+
+impl Eq for Message {}
+
+impl Message {
+    /// A message whose options are marked with `opt` / `opt_is`.
+    pub(crate) fn new(marked: impl Into<String>) -> Message {
+        Message(marked.into())
+    }
+
+    /// The message with every option named by `name`.
+    pub(crate) fn render(&self, name: &dyn Fn(&str, Option<&str>) -> String) -> String {
+        unmark(&self.0, name)
+    }
+
+    /// The same message with `prefix` before it.
+    pub(crate) fn prefixed(&self, prefix: &str) -> Message {
+        Message(format!("{prefix}{}", self.0))
+    }
+
+    /// The text with its options still marked.
+    pub(crate) fn marked(&self) -> &str {
+        &self.0
+    }
+
+    /// Does the text start with `s` (the options still marked)?
+    pub(crate) fn starts_with(&self, s: &str) -> bool {
+        self.0.starts_with(s)
+    }
+}
+
+impl fmt::Display for Message {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(&self.render(&library_name))
+    }
+}
+
+impl fmt::Debug for Message {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        write!(f, "{:?}", self.to_string())
+    }
+}
+
+impl PartialEq<&str> for Message {
+    fn eq(&self, other: &&str) -> bool {
+        self.to_string().as_str() == *other
+    }
+}
+
+impl PartialEq<str> for Message {
+    fn eq(&self, other: &str) -> bool {
+        self.to_string().as_str() == other
+    }
+}
+
 /// Marks an option's name inside a message, so that [`Error::render`] can
 /// show it as the caller names it (`batch_size` in the library,
 /// `--batch-size` on the command line).
@@ -482,11 +565,32 @@ impl fmt::Display for Raw<'_> {
                 column,
                 index,
                 value,
+                can_impute,
+            } => {
+                write!(
+                    f,
+                    "{}: line {line}, column \"{column}\" ({index}): missing value \"{value}\"; fill the cell, or set {} to drop rows with missing cells",
+                    path.display(),
+                    opt_is("missing", "drop"),
+                )?;
+                if *can_impute {
+                    write!(
+                        f,
+                        ", or {} to fill them from the training rows",
+                        opt_is("missing", "impute")
+                    )?;
+                }
+                Ok(())
+            }
+            ErrorKind::ColumnType {
+                path,
+                column,
+                index,
+                reason,
             } => write!(
                 f,
-                "{}: line {line}, column \"{column}\" ({index}): missing value \"{value}\"; fill the cell, or set {} to drop rows with missing cells",
-                path.display(),
-                opt_is("missing", "drop")
+                "{}: column \"{column}\" ({index}): {reason}",
+                path.display()
             ),
             ErrorKind::MissingColumn {
                 path,

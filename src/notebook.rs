@@ -7,7 +7,7 @@
 //! nondeterministic (times, addresses, hash order) appears, so a rerun
 //! reproduces every output byte for byte.
 
-use crate::data::{Dataset, Target};
+use crate::data::{Dataset, TableSummary, Target};
 use crate::fit::{Fitted, Model};
 use crate::network::Network;
 use crate::train::TrainingReport;
@@ -58,8 +58,23 @@ pub(crate) fn table(caption: &str, header: &[&str], rows: &[Vec<String>]) -> Str
     h
 }
 
+/// Warnings under a table, marked so they stand out.
+pub(crate) fn warnings<T: std::fmt::Display>(lines: &[T]) -> String {
+    if lines.is_empty() {
+        return String::new();
+    }
+    let mut h = String::from(
+        "<ul style=\"font-family:sans-serif;font-size:12px;color:#8a3b00;margin:0 0 8px 0\">",
+    );
+    for l in lines {
+        let _ = write!(h, "<li><b>Warning:</b> {}</li>", escape(&l.to_string()));
+    }
+    h.push_str("</ul>");
+    h
+}
+
 /// Notes under a table.
-pub(crate) fn notes(lines: &[String]) -> String {
+pub(crate) fn notes<T: std::fmt::Display>(lines: &[T]) -> String {
     if lines.is_empty() {
         return String::new();
     }
@@ -67,7 +82,7 @@ pub(crate) fn notes(lines: &[String]) -> String {
         "<ul style=\"font-family:sans-serif;font-size:12px;color:#444;margin:0 0 8px 0\">",
     );
     for l in lines {
-        let _ = write!(h, "<li>{}</li>", escape(l));
+        let _ = write!(h, "<li>{}</li>", escape(&l.to_string()));
     }
     h.push_str("</ul>");
     h
@@ -147,7 +162,14 @@ impl TrainingReport {
     pub fn to_html(&self) -> String {
         let last = self.history.last();
         let mut rows = vec![
-            vec!["loss".into(), self.loss.name().to_string()],
+            vec![
+                "loss".into(),
+                match self.loss {
+                    crate::train::Loss::SquaredError => "half the squared error, mean per row",
+                    crate::train::Loss::CrossEntropy => "cross-entropy, mean per row",
+                }
+                .to_string(),
+            ],
             vec!["epochs run".into(), self.epochs_run.to_string()],
             vec!["epoch kept".into(), self.best_epoch.to_string()],
             vec![
@@ -198,7 +220,91 @@ impl Dataset {
             }
             Target::Values { names, .. } => rows.push(vec!["outputs".into(), names.join(", ")]),
         }
-        table("Table", &["", "value"], &rows)
+        if self.missing_cells() > 0 {
+            rows.push(vec![
+                "missing cells (filled when fitting)".into(),
+                self.missing_cells().to_string(),
+            ]);
+        }
+        if let Some(ids) = self.row_ids() {
+            rows.push(vec!["ID columns".into(), ids.names().join(", ")]);
+        }
+        let mut h = table("Table", &["", "value"], &rows);
+        h.push_str(&notes(self.decisions()));
+        h.push_str(&warnings(self.warnings()));
+        h
+    }
+
+    /// Shows the summary in a notebook.
+    pub fn evcxr_display(&self) {
+        show("text/html", &self.to_html());
+    }
+}
+
+impl TableSummary {
+    /// HTML tables: every column with its role, type and why, missing
+    /// cells, distinct values, range or levels; then decisions and warnings.
+    pub fn to_html(&self) -> String {
+        let rows: Vec<Vec<String>> = self
+            .columns
+            .iter()
+            .map(|c| {
+                let values = match (&c.range, c.levels.is_empty()) {
+                    (Some((lo, hi)), _) => format!("{lo} to {hi}"),
+                    (None, false) => {
+                        let mut l: Vec<String> = c
+                            .levels
+                            .iter()
+                            .take(10)
+                            .map(|(n, k)| format!("{n} ({k})"))
+                            .collect();
+                        if c.levels.len() > 10 {
+                            l.push("...".into());
+                        }
+                        l.join(", ")
+                    }
+                    (None, true) => String::new(),
+                };
+                vec![
+                    c.name.clone(),
+                    c.role.clone(),
+                    c.kind.clone(),
+                    c.why.to_string(),
+                    c.missing.map_or(String::new(), |m| m.to_string()),
+                    c.distinct.map_or(String::new(), |d| d.to_string()),
+                    values,
+                ]
+            })
+            .collect();
+        let caption = format!(
+            "{}: {} rows{}, {} (target {}), {} network inputs",
+            self.source,
+            self.rows,
+            if self.dropped_rows > 0 {
+                format!(" ({} dropped)", self.dropped_rows)
+            } else {
+                String::new()
+            },
+            self.task,
+            self.target,
+            self.inputs
+        );
+        let mut h = table(
+            &caption,
+            &[
+                "column",
+                "role",
+                "type",
+                "why",
+                "missing",
+                "distinct",
+                "range or levels (rows)",
+            ],
+            &rows,
+        );
+        h.push_str(&notes(&self.decisions));
+        h.push_str(&warnings(&self.warnings));
+        h
     }
 
     /// Shows the summary in a notebook.
@@ -378,15 +484,17 @@ impl CrossValidation {
         );
         let mut h = table(
             &caption,
-            &["metric", "mean", "sd", "95% interval (t)", "per fold"],
+            &["metric", "mean", "sd", "95% interval", "per fold"],
             &rows,
         );
         let mut n = vec![
-            "The interval treats folds as independent; they share training rows, so it is too narrow (Bengio & Grandvalet 2004)."
+            "The interval allows for the folds sharing training rows (corrected resampled variance, Nadeau & Bengio 2003) and stays within each metric's range."
                 .to_string(),
         ];
         n.extend(self.notes());
+        n.extend(self.fit_notes().iter().map(ToString::to_string));
         h.push_str(&notes(&n));
+        h.push_str(&warnings(&self.warnings()));
         h
     }
 
@@ -420,7 +528,7 @@ impl Comparison {
         }
         let mut h = table(
             &format!("{} over shared folds", self.metric.name()),
-            &["configuration", "mean", "sd", "95% interval (t)"],
+            &["configuration", "mean", "sd", "95% interval"],
             &rows,
         );
         let t = &self.test;
@@ -474,7 +582,7 @@ impl SweepTable {
             .collect();
         let mut table_html = table(
             &format!("Sweep sorted by {}", self.metric.name()),
-            &["rank", "configuration", "mean", "sd", "95% interval (t)"],
+            &["rank", "configuration", "mean", "sd", "95% interval"],
             &rows,
         );
         // Left-align the configuration column's text as well.
@@ -497,6 +605,22 @@ impl Sweep {
             self.table.rows[0].name,
             self.best.model().provenance.table_rows
         )]));
+        let mut w: Vec<String> = Vec::new();
+        for r in &self.table.rows {
+            w.extend(
+                r.cross_validation
+                    .warnings()
+                    .iter()
+                    .map(|m| format!("configuration \"{}\", {m}", r.name)),
+            );
+        }
+        w.extend(
+            self.best
+                .warnings()
+                .iter()
+                .map(|m| format!("the best refitted on all rows: {m}")),
+        );
+        h.push_str(&warnings(&w));
         h
     }
 
@@ -544,7 +668,39 @@ impl Model {
         if let Some(v) = p.best_validation_loss {
             rows.push(vec!["best validation loss".into(), f(v)]);
         }
+        if let Some(v) = p.baseline_validation_loss {
+            rows.push(vec!["baseline validation loss".into(), f(v)]);
+        }
+        if !self.ids.is_empty() {
+            rows.push(vec!["ID columns".into(), self.ids.join(", ")]);
+        }
+        if self.imputer.is_some() {
+            rows.push(vec![
+                "missing cells".into(),
+                "filled with values learnt from the training rows".into(),
+            ]);
+        }
+        if let Some(t) = &self.target_scaler {
+            rows.push(vec![
+                "target scaling".into(),
+                format!(
+                    "{} (offset {}, scale {}); predictions in the target's own units",
+                    t.kind(),
+                    t.offsets()
+                        .iter()
+                        .map(|v| format!("{v:.6}"))
+                        .collect::<Vec<_>>()
+                        .join(", "),
+                    t.scales()
+                        .iter()
+                        .map(|v| format!("{v:.6}"))
+                        .collect::<Vec<_>>()
+                        .join(", ")
+                ),
+            ]);
+        }
         let mut h = table("Model", &["", "value"], &rows);
+        h.push_str(&warnings(&p.warnings));
         h.push_str(&self.network.to_html());
         h
     }
@@ -556,9 +712,27 @@ impl Model {
 }
 
 impl Fitted {
-    /// The model, the training summary and the network table.
+    /// The model, the training summary, the baseline, notes, warnings and
+    /// the network table.
     pub fn to_html(&self) -> String {
         let mut h = self.report().to_html();
+        let b = self.baseline();
+        let mut rows = Vec::new();
+        if let Some(v) = b.training_loss {
+            rows.push(vec!["training loss".into(), f(v)]);
+        }
+        if let Some(v) = b.validation_loss {
+            rows.push(vec!["validation loss".into(), f(v)]);
+        }
+        if !rows.is_empty() {
+            h.push_str(&table(
+                &format!("Baseline: {}", b.description),
+                &["", "value"],
+                &rows,
+            ));
+        }
+        h.push_str(&notes(self.notes()));
+        h.push_str(&warnings(self.warnings()));
         if self.restarts().len() > 1 {
             h.push_str(&notes(&[format!(
                 "Kept restart {} of {} (lowest validation loss).",

@@ -12,12 +12,25 @@
 use ndarray::Array2;
 use std::path::Path;
 use std::sync::OnceLock;
-use stratanet::data::{CsvOptions, Dataset, Missing, Scaler, Scaling, Target, TargetKind};
+use stratanet::data::Dataset;
+use stratanet::data::{
+    CsvOptions, DecimalMark, Delimiter, Imputer, Missing, Scaler, Scaling, Target, Task,
+};
 use stratanet::fit::{fit_with_seed, FitOptions, Model};
 use stratanet::model_file::{FeatureOptions, TargetColumn};
 use stratanet::validate::{metrics::Metric, CvOptions, Grid, SweepPlan};
 
-const DELIMITERS: [u8; 4] = [b',', b';', b'\t', b'|'];
+const DELIMITERS: [Delimiter; 4] = [
+    Delimiter::Auto,
+    Delimiter::Comma,
+    Delimiter::Semicolon,
+    Delimiter::Tab,
+];
+
+/// The byte a delimiter choice splits names on (detection: a comma).
+fn delimiter_byte(d: Delimiter) -> u8 {
+    d.byte().unwrap_or(b',')
+}
 
 /// An error must say something, and say where.
 fn check_error(e: &stratanet::Error, name: &str) {
@@ -62,9 +75,15 @@ fn check_dataset(d: &Dataset) {
         cols,
         "column encodings and feature width differ"
     );
+    let nan = d.x().iter().filter(|v| v.is_nan()).count();
     assert!(
-        d.x().iter().all(|v| v.is_finite()),
-        "a non-finite feature was accepted"
+        d.x().iter().all(|v| v.is_finite() || v.is_nan()),
+        "an infinite feature was accepted"
+    );
+    assert_eq!(
+        nan > 0,
+        d.missing_cells() > 0,
+        "NaN cells and the missing-cell count disagree"
     );
     assert_eq!(d.target().len(), rows, "target and features differ in rows");
     match &d.target() {
@@ -80,10 +99,31 @@ fn check_dataset(d: &Dataset) {
             assert!(values.iter().all(|v| v.is_finite()), "a non-finite target");
         }
     }
+    if let Some(ids) = d.row_ids() {
+        assert_eq!(ids.len(), rows, "IDs and rows differ");
+    }
     let _ = d.fingerprint();
+    let summary = d.summary(Some(5));
+    assert!(!summary.columns.is_empty(), "a summary without columns");
+    let mut x = d.x().to_owned();
+    if nan > 0 {
+        match Imputer::from_rows(d.columns(), d.x(), None) {
+            Ok(imputer) => {
+                imputer.impute_in_place(x.view_mut()).expect("same width");
+                assert!(
+                    x.iter().all(|v| v.is_finite()),
+                    "imputing left a non-finite value"
+                );
+            }
+            Err(e) => {
+                check_error(&e, "imputing");
+                return;
+            }
+        }
+    }
     for kind in [Scaling::Standardise, Scaling::MinMax] {
-        let s = Scaler::from_rows(kind, d.x(), None).expect("a finite table scales");
-        let t = s.scaled(d.x()).expect("the same width transforms");
+        let s = Scaler::from_rows(kind, x.view(), None).expect("a finite table scales");
+        let t = s.scaled(x.view()).expect("the same width transforms");
         assert!(
             t.iter().all(|v| v.is_finite()),
             "scaling made a non-finite value"
@@ -91,36 +131,42 @@ fn check_dataset(d: &Dataset) {
     }
 }
 
-/// The CSV table reader, with the target, the missing-cell policy, the
-/// target kind, the delimiter, a categorical column, a dropped column and
-/// an explicit feature list chosen by the first four bytes.
+/// The CSV table reader, with every option chosen by the first six bytes:
+/// the target (byte 0); the missing-cell policy (error, drop, impute,
+/// impute with indicators), the delimiter (detected, comma, semicolon,
+/// tab) and the task (auto, classification, regression) (byte 1); a
+/// categorical column, a dropped column, an explicit feature list, an ID
+/// column, the decimal comma and custom missing markers (byte 4, picks
+/// from bytes 2, 3 and 5).
 pub fn csv_table(data: &[u8]) {
-    if data.len() < 4 {
+    if data.len() < 6 {
         return;
     }
-    let (head, body) = data.split_at(4);
-    let flags = head[1];
-    let delimiter = DELIMITERS[((flags >> 3) & 3) as usize];
+    let (head, body) = data.split_at(6);
+    let (f1, f2) = (head[1], head[4]);
+    let delimiter = DELIMITERS[((f1 >> 2) & 3) as usize];
     let lossy = String::from_utf8_lossy(body);
-    let names = header_names(&lossy, delimiter);
+    let names = header_names(&lossy, delimiter_byte(delimiter));
     let target = pick(&names, head[0]);
-    let mut o = CsvOptions::new(&target);
-    o.delimiter = delimiter;
-    if flags & 1 != 0 {
-        o = o.missing(Missing::Drop);
-    }
-    o = o.target_kind(match (flags >> 1) & 3 {
-        1 => TargetKind::Classes,
-        2 => TargetKind::Values,
-        _ => TargetKind::Auto,
+    let mut o = CsvOptions::new(&target).delimiter(delimiter);
+    o = o.missing(match f1 & 3 {
+        0 => Missing::Error,
+        1 => Missing::Drop,
+        _ => Missing::Impute,
     });
-    if flags & 0x20 != 0 {
+    o.missing_indicators = f1 & 3 == 3;
+    o = o.task(match (f1 >> 4) & 3 {
+        1 => Task::Classification,
+        2 => Task::Regression,
+        _ => Task::Auto,
+    });
+    if f2 & 1 != 0 {
         o = o.categorical(&[&pick(&names, head[2])]);
     }
-    if flags & 0x40 != 0 {
+    if f2 & 2 != 0 {
         o = o.drop(&[&pick(&names, head[3])]);
     }
-    if flags & 0x80 != 0 {
+    if f2 & 4 != 0 {
         let chosen: Vec<&str> = names
             .iter()
             .filter(|n| **n != target)
@@ -128,6 +174,15 @@ pub fn csv_table(data: &[u8]) {
             .map(String::as_str)
             .collect();
         o = o.features(&chosen);
+    }
+    if f2 & 8 != 0 {
+        o = o.ids(&[&pick(&names, head[5])]);
+    }
+    if f2 & 16 != 0 {
+        o = o.decimal(DecimalMark::Comma);
+    }
+    if f2 & 32 != 0 {
+        o = o.missing_markers(&["n.a.", "-", &pick(&names, head[5])]);
     }
     match o.read_from(body, Path::new("fuzz.csv")) {
         Ok(d) => check_dataset(&d),
@@ -141,15 +196,18 @@ fn fixed_model() -> &'static Model {
     MODEL.get_or_init(|| {
         let mut text = String::from("length,colour,width,grade\n");
         for i in 0..40 {
-            let colour = ["red", "blue", "green"][i % 3];
+            let colour = ["red", "blue", "green", "NA"][i % 4];
             let grade = if i % 2 == 0 { "pass" } else { "fail" };
-            text.push_str(&format!(
-                "{},{colour},{},{grade}\n",
-                i as f64 * 0.25,
-                (i % 7) as f64
-            ));
+            let length = if i % 9 == 4 {
+                String::new()
+            } else {
+                format!("{}", i as f64 * 0.25)
+            };
+            text.push_str(&format!("{length},{colour},{},{grade}\n", (i % 7) as f64));
         }
         let data = CsvOptions::new("grade")
+            .missing(Missing::Impute)
+            .missing_indicators(true)
             .read_str(&text, "fixed.csv")
             .expect("the fixed table reads");
         let options = FitOptions::default()
@@ -162,10 +220,11 @@ fn fixed_model() -> &'static Model {
     })
 }
 
-/// The prediction-table reader (a CSV read against a saved model's columns),
-/// with `ignore_extra`, the target-column rule, the missing-cell policy and
-/// the delimiter chosen by the first byte; predictions of what it accepts
-/// must be finite.
+/// The prediction-table reader (a CSV read against a saved model's columns;
+/// the model imputes and has missing indicators), with `ignore_extra`, the
+/// target-column rule, the missing-cell policy (the model's, error, drop,
+/// impute), the delimiter and the decimal mark chosen by the first byte;
+/// predictions of what it accepts must be finite.
 pub fn feature_table(data: &[u8]) {
     let Some((&flags, body)) = data.split_first() else {
         return;
@@ -178,17 +237,22 @@ pub fn feature_table(data: &[u8]) {
             2 => TargetColumn::Require,
             _ => TargetColumn::Skip,
         })
-        .missing(if flags & 8 != 0 {
-            Missing::Drop
-        } else {
-            Missing::Error
-        })
         .delimiter(DELIMITERS[((flags >> 4) & 3) as usize]);
+    let mut options = options;
+    options.missing = match (flags >> 3) & 1 | (flags >> 5) & 2 {
+        0 => None,
+        1 => Some(Missing::Drop),
+        2 => Some(Missing::Error),
+        _ => Some(Missing::Impute),
+    };
+    if flags & 0x80 != 0 {
+        options = options.decimal(DecimalMark::Comma);
+    }
     match options.read_from(model, body, Path::new("fuzz.csv")) {
         Ok(t) => {
             assert_eq!(t.features.ncols(), model.network().sizes()[0]);
             assert_eq!(t.lines.len(), t.n_rows());
-            assert!(t.features.iter().all(|v| v.is_finite()));
+            assert!(t.features.iter().all(|v| v.is_finite() || v.is_nan()));
             let p = model
                 .predict_probabilities(t.x())
                 .expect("accepted rows predict");
@@ -254,8 +318,15 @@ fn fixed_plan() -> &'static (Dataset, SweepPlan) {
             ..CvOptions::default()
         };
         let mut rng = stratanet::rng::seeded_rng(11);
-        let plan = SweepPlan::new(&data, &base, &grid, &cv, Metric::Accuracy, &mut rng)
-            .expect("the fixed plan draws");
+        let plan = SweepPlan::new(
+            &data,
+            &base,
+            &grid.clone().into(),
+            &cv,
+            Metric::Accuracy,
+            &mut rng,
+        )
+        .expect("the fixed plan draws");
         (data, plan)
     })
 }

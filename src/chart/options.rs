@@ -101,6 +101,13 @@ impl ChartOptions {
         self
     }
 
+    /// These options naming the rows shown by what they are
+    /// ([`ScoredRows::label`](crate::data::ScoredRows::label): "validation
+    /// rows", "out-of-fold rows", "hold-out rows, use 1").
+    pub fn scored(self, rows: crate::data::ScoredRows) -> ChartOptions {
+        self.rows(rows.label())
+    }
+
     /// These options with a fixed height in CSS pixels.
     pub fn height(mut self, height: u32) -> ChartOptions {
         self.height = Some(height);

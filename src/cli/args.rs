@@ -3,7 +3,8 @@
 //! library's), and every flag whose default depends on the data or on
 //! another flag is an `Option` (left out means "the library decides").
 
-use crate::data::{Missing, Scaling};
+use crate::data::{DecimalMark, Delimiter, Missing, Scaling, Task};
+use crate::fit::ClassWeights;
 use crate::network::{Activation, Arithmetic, Init, Precision};
 use crate::train::{BatchSize, Loss, Optimiser, Schedule};
 use crate::validate::Metric;
@@ -21,6 +22,7 @@ pub(crate) struct Cli {
 
 /// The subcommands.
 #[derive(Debug, Subcommand)]
+#[allow(clippy::large_enum_variant)] // parsed once per process
 pub(crate) enum Command {
     /// Train a network on a CSV file and save the model.
     #[command(
@@ -35,6 +37,9 @@ pub(crate) enum Command {
         after_help = "Example:\n  stratanet predict parts-model.json new-parts.csv --out predictions.csv"
     )]
     Predict(PredictArgs),
+    /// Summarise a table as it would be read: each column's type and why, missing cells, levels, the task, warnings.
+    #[command(after_help = "Example:\n  stratanet inspect demo-data/parts.csv --target verdict")]
+    Inspect(InspectArgs),
     /// Cross-validate a configuration (stratified k-fold).
     #[command(
         after_help = "Example:\n  stratanet cv demo-data/parts.csv --target verdict --drop part_id --folds 5 --hidden 12"
@@ -45,18 +50,29 @@ pub(crate) enum Command {
         after_help = "Example:\n  stratanet sweep demo-data/parts.csv --target verdict --drop part_id --grid-hidden 4,8,8-8 --grid-learning-rate 0.01,0.03\n\nRunning trials elsewhere (an array job):\n  stratanet sweep ... --write-plan plan.jsonl     # one JSON line per trial, folds and seeds fixed\n  stratanet sweep-trial plan.jsonl demo-data/parts.csv --trial 7 --out trial-7.json\n  stratanet sweep-merge plan.jsonl trial-*.json"
     )]
     Sweep(SweepArgs),
-    /// Run one trial of a sweep plan (for array jobs).
+    /// Estimate a tuned procedure honestly: a sweep inside each outer fold (nested cross-validation).
+    #[command(
+        after_help = "Example:\n  stratanet nested demo-data/parts.csv --target verdict --drop part_id --grid-hidden 4,12 --grid-learning-rate 0.003,0.01 --folds 5 --inner-folds 3"
+    )]
+    Nested(NestedArgs),
+    /// Run trials of a sweep plan (for array jobs): one, a list, or task I of N.
     #[command(
         name = "sweep-trial",
-        after_help = "Example:\n  stratanet sweep-trial plan.jsonl demo-data/parts.csv --trial 0 --out trial-0.json"
+        after_help = "Example:\n  stratanet sweep-trial plan.jsonl demo-data/parts.csv --trial 0 --out trial-0.json\n  stratanet sweep-trial plan.jsonl demo-data/parts.csv --task \"$SLURM_ARRAY_TASK_ID\" --tasks 20 --out-dir trials"
     )]
     SweepTrial(SweepTrialArgs),
-    /// Merge trial results into the sweep table.
+    /// Merge trial results into the sweep table (the same table and JSON as a local sweep).
     #[command(
         name = "sweep-merge",
-        after_help = "Example:\n  stratanet sweep-merge plan.jsonl trial-*.json"
+        after_help = "Example:\n  stratanet sweep-merge plan.jsonl trials/\n  stratanet sweep-merge plan.jsonl trials/ --data demo-data/parts.csv --out best-model.json"
     )]
     SweepMerge(SweepMergeArgs),
+    /// Say which trials of a plan are done, missing, failed or stale, and what to run again.
+    #[command(
+        name = "sweep-status",
+        after_help = "Example:\n  stratanet sweep-status plan.jsonl trials/ --tasks 20"
+    )]
+    SweepStatus(SweepStatusArgs),
     /// The whole job on the embedded demo data: fit, cross-validate, compare, chart.
     #[command(after_help = "Example:\n  stratanet demo --out stratanet-demo")]
     Demo(DemoArgs),
@@ -76,24 +92,49 @@ pub(crate) struct OutputArgs {
     pub progress: bool,
 }
 
+/// How cells are read (every command that reads a CSV file).
+#[derive(Debug, Args, Clone)]
+pub(crate) struct DialectArgs {
+    /// Field delimiter: auto, comma, semicolon, tab [auto: detected from the header and the first rows].
+    #[arg(long, value_name = "NAME", value_parser = parsed::<Delimiter>)]
+    pub delimiter: Option<Delimiter>,
+    /// Decimal mark of numbers: point (1.5) or comma (1,5) [point; predict and check: the model's].
+    #[arg(long, value_name = "point|comma", value_parser = parsed::<DecimalMark>)]
+    pub decimal: Option<DecimalMark>,
+    /// Cells that mean "missing" (comma-separated; replaces the default set NA,N/A,NaN,nan,?,null,NULL; an empty cell is always missing).
+    #[arg(long, value_name = "LIST", value_delimiter = ',')]
+    pub missing_markers: Option<Vec<String>>,
+}
+
 /// How to read the table.
 #[derive(Debug, Args, Clone)]
 pub(crate) struct TableArgs {
     /// The target column.
     #[arg(long, value_name = "COL")]
     pub target: String,
+    /// classification, regression, or auto (decided from the target and printed) [auto].
+    #[arg(long, value_name = "TASK", value_parser = parsed::<Task>)]
+    pub task: Option<Task>,
     /// Columns to leave out (comma-separated).
     #[arg(long, value_name = "COLS", value_delimiter = ',')]
     pub drop: Vec<String>,
     /// Use only these feature columns (comma-separated, in this order).
     #[arg(long, value_name = "COLS", value_delimiter = ',')]
     pub features: Vec<String>,
-    /// Treat these columns as categorical (comma-separated).
+    /// Treat these columns as categorical (comma-separated; each must be a feature).
     #[arg(long, value_name = "COLS", value_delimiter = ',')]
     pub categorical: Vec<String>,
-    /// What to do with a row that has a missing cell: error or drop.
-    #[arg(long, value_name = "error|drop", default_value = "error", value_parser = parsed::<Missing>)]
+    /// An identifier column: carried into predictions, never a feature (repeatable, or comma-separated).
+    #[arg(long = "id", value_name = "COL", value_delimiter = ',', action = clap::ArgAction::Append)]
+    pub ids: Vec<String>,
+    /// What to do with a row that has a missing cell: error, drop, or impute (fill from the training rows) [error].
+    #[arg(long, value_name = "error|drop|impute", default_value = "error", value_parser = parsed::<Missing>)]
     pub missing: Missing,
+    /// With --missing impute: add a 0/1 column NAME:missing after each column with a missing cell.
+    #[arg(long)]
+    pub missing_indicators: bool,
+    #[command(flatten)]
+    pub dialect: DialectArgs,
 }
 
 /// The network and its training. Flags left out take the library's
@@ -112,6 +153,12 @@ pub(crate) struct NetArgs {
     /// Feature scaling: standardise, min-max, none [standardise].
     #[arg(long, value_name = "NAME", value_parser = parsed::<Scaling>)]
     pub scaling: Option<Scaling>,
+    /// Scaling of a numeric target, undone in predictions: standardise, min-max, none [standardise].
+    #[arg(long, value_name = "NAME", value_parser = parsed::<Scaling>)]
+    pub target_scaling: Option<Scaling>,
+    /// Class weights in the loss: none, balanced (n / (k n_c)), or CLASS=W,CLASS=W [none].
+    #[arg(long, value_name = "WEIGHTS", value_parser = parsed::<ClassWeights>)]
+    pub class_weights: Option<ClassWeights>,
     /// Float type: f64 or f32 [f64].
     #[arg(long, value_name = "f64|f32", value_parser = parsed::<Precision>)]
     pub precision: Option<Precision>,
@@ -166,6 +213,63 @@ pub(crate) struct NetArgs {
 /// only the reason of a refusal (clap names the flag and the value).
 fn parsed<T: std::str::FromStr<Err = crate::Error>>(text: &str) -> Result<T, String> {
     text.parse::<T>().map_err(|e| super::errors::reason(&e))
+}
+
+/// Parses `LOW:HIGH` of numbers.
+fn float_range(value: &str) -> Result<(f64, f64), String> {
+    let (lo, hi) = value
+        .split_once(':')
+        .ok_or_else(|| "give LOW:HIGH, e.g. 0.0001:0.1".to_string())?;
+    let n = |t: &str| {
+        t.trim()
+            .parse::<f64>()
+            .ok()
+            .filter(|v| v.is_finite())
+            .ok_or_else(|| format!("\"{t}\" is not a number; give LOW:HIGH, e.g. 0.0001:0.1"))
+    };
+    Ok((n(lo)?, n(hi)?))
+}
+
+/// Parses `LOW:HIGH` of whole numbers.
+fn whole_range(value: &str) -> Result<(usize, usize), String> {
+    let (lo, hi) = value
+        .split_once(':')
+        .ok_or_else(|| "give LOW:HIGH, e.g. 4:64".to_string())?;
+    let n = |t: &str| {
+        t.trim()
+            .parse::<usize>()
+            .map_err(|_| format!("\"{t}\" is not a whole number; give LOW:HIGH, e.g. 4:64"))
+    };
+    Ok((n(lo)?, n(hi)?))
+}
+
+/// Trial indices as typed (`0-99,150`), sorted and distinct.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub(crate) struct Indices(pub Vec<usize>);
+
+/// Parses a list of indices: `0-99,150`.
+fn index_list(value: &str) -> Result<Indices, String> {
+    let mut out = Vec::new();
+    for part in value.split(',') {
+        let part = part.trim();
+        let bad = || format!("\"{part}\" is not an index or a range; give e.g. 0-99,150");
+        match part.split_once('-') {
+            Some((a, b)) => {
+                let (a, b) = (
+                    a.trim().parse::<usize>().map_err(|_| bad())?,
+                    b.trim().parse::<usize>().map_err(|_| bad())?,
+                );
+                if b < a || b - a > 10_000_000 {
+                    return Err(bad());
+                }
+                out.extend(a..=b);
+            }
+            None => out.push(part.parse::<usize>().map_err(|_| bad())?),
+        }
+    }
+    out.sort_unstable();
+    out.dedup();
+    Ok(Indices(out))
 }
 
 /// Hidden-layer widths as typed (`16`, `16,8`, `16-8`, `none`).
@@ -245,9 +349,11 @@ pub(crate) struct CheckArgs {
     /// Accept and ignore columns the model does not use.
     #[arg(long)]
     pub ignore_extra: bool,
-    /// What to do with a row that has a missing cell: error or drop.
-    #[arg(long, value_name = "error|drop", default_value = "error", value_parser = parsed::<Missing>)]
-    pub missing: Missing,
+    /// What to do with a row that has a missing cell: error, drop, or impute with the model's fill values [impute if the model was fitted so, else error].
+    #[arg(long, value_name = "error|drop|impute", value_parser = parsed::<Missing>)]
+    pub missing: Option<Missing>,
+    #[command(flatten)]
+    pub dialect: DialectArgs,
     #[command(flatten)]
     pub output: OutputArgs,
 }
@@ -265,9 +371,25 @@ pub(crate) struct PredictArgs {
     /// Accept and ignore columns the model does not use.
     #[arg(long)]
     pub ignore_extra: bool,
-    /// What to do with a row that has a missing cell: error or drop.
-    #[arg(long, value_name = "error|drop", default_value = "error", value_parser = parsed::<Missing>)]
-    pub missing: Missing,
+    /// What to do with a row that has a missing cell: error, drop, or impute with the model's fill values [impute if the model was fitted so, else error].
+    #[arg(long, value_name = "error|drop|impute", value_parser = parsed::<Missing>)]
+    pub missing: Option<Missing>,
+    #[command(flatten)]
+    pub dialect: DialectArgs,
+    #[command(flatten)]
+    pub output: OutputArgs,
+}
+
+/// `stratanet inspect`.
+#[derive(Debug, Args)]
+pub(crate) struct InspectArgs {
+    /// The CSV file.
+    pub data: PathBuf,
+    #[command(flatten)]
+    pub table: TableArgs,
+    /// Warn when a class has fewer rows than this many folds.
+    #[arg(long, value_name = "K", default_value_t = 5)]
+    pub folds: usize,
     #[command(flatten)]
     pub output: OutputArgs,
 }
@@ -315,21 +437,8 @@ pub(crate) struct SweepArgs {
     pub net: NetArgs,
     #[command(flatten)]
     pub folds: FoldArgs,
-    /// Hidden layouts to try, comma-separated, layers joined by '-' (e.g. 4,8,8-8; "none" for no hidden layer).
-    #[arg(long, value_name = "LIST", value_parser = layouts)]
-    pub grid_hidden: Option<Layouts>,
-    /// Activations to try (comma-separated).
-    #[arg(long, value_name = "LIST", value_delimiter = ',', value_parser = parsed::<Activation>)]
-    pub grid_activation: Vec<Activation>,
-    /// Learning rates to try (comma-separated).
-    #[arg(long, value_name = "LIST", value_delimiter = ',')]
-    pub grid_learning_rate: Vec<f64>,
-    /// Batch sizes to try (comma-separated; "full" for every training row).
-    #[arg(long, value_name = "LIST", value_delimiter = ',', value_parser = parsed::<BatchSize>)]
-    pub grid_batch_size: Vec<BatchSize>,
-    /// Weight decays to try (comma-separated).
-    #[arg(long, value_name = "LIST", value_delimiter = ',')]
-    pub grid_weight_decay: Vec<f64>,
+    #[command(flatten)]
+    pub search: SearchArgs,
     /// The metric that sorts the table [accuracy for classes, root_mean_squared_error for numbers].
     #[arg(long, value_name = "NAME", value_parser = parsed::<Metric>)]
     pub metric: Option<Metric>,
@@ -346,6 +455,89 @@ pub(crate) struct SweepArgs {
     pub output: OutputArgs,
 }
 
+/// Which trials a `sweep-trial` runs.
+#[derive(Debug, Args)]
+#[group(required = true, multiple = true)]
+pub(crate) struct TrialChoice {
+    /// One trial index (0-based).
+    #[arg(long, value_name = "INDEX", conflicts_with_all = ["trials", "task"])]
+    pub trial: Option<usize>,
+    /// A list of trial indices, e.g. 0-99,150.
+    #[arg(long, value_name = "LIST", value_parser = index_list, conflicts_with = "task")]
+    pub trials: Option<Indices>,
+    /// Task I of --tasks N runs trials I, I+N, I+2N, ... (an array job's task index).
+    #[arg(long, value_name = "I", requires = "tasks")]
+    pub task: Option<usize>,
+    /// How many tasks share the plan (keep it fixed when you rerun a task).
+    #[arg(long, value_name = "N", requires = "task")]
+    pub tasks: Option<usize>,
+}
+
+/// What a sweep (or a nested cross-validation's sweeps) tries.
+#[derive(Debug, Args)]
+pub(crate) struct SearchArgs {
+    /// Hidden layouts to try, comma-separated, layers joined by '-' (e.g. 4,8,8-8; "none" for no hidden layer).
+    #[arg(long, value_name = "LIST", value_parser = layouts)]
+    pub grid_hidden: Option<Layouts>,
+    /// Activations to try (comma-separated).
+    #[arg(long, value_name = "LIST", value_delimiter = ',', value_parser = parsed::<Activation>)]
+    pub grid_activation: Vec<Activation>,
+    /// Learning rates to try (comma-separated).
+    #[arg(long, value_name = "LIST", value_delimiter = ',')]
+    pub grid_learning_rate: Vec<f64>,
+    /// Batch sizes to try (comma-separated; "full" for every training row).
+    #[arg(long, value_name = "LIST", value_delimiter = ',', value_parser = parsed::<BatchSize>)]
+    pub grid_batch_size: Vec<BatchSize>,
+    /// Weight decays to try (comma-separated).
+    #[arg(long, value_name = "LIST", value_delimiter = ',')]
+    pub grid_weight_decay: Vec<f64>,
+    /// Random search: draw this many configurations from the --range-* options instead of a grid.
+    #[arg(long, value_name = "N", conflicts_with_all = ["grid_hidden", "grid_activation", "grid_learning_rate", "grid_batch_size", "grid_weight_decay"])]
+    pub random: Option<usize>,
+    /// Random search: learning rates drawn log-uniformly from LOW:HIGH.
+    #[arg(long, value_name = "LOW:HIGH", value_parser = float_range, requires = "random")]
+    pub range_learning_rate: Option<(f64, f64)>,
+    /// Random search: weight decays drawn log-uniformly from LOW:HIGH.
+    #[arg(long, value_name = "LOW:HIGH", value_parser = float_range, requires = "random")]
+    pub range_weight_decay: Option<(f64, f64)>,
+    /// Random search: L1 penalties drawn log-uniformly from LOW:HIGH.
+    #[arg(long, value_name = "LOW:HIGH", value_parser = float_range, requires = "random")]
+    pub range_l1_penalty: Option<(f64, f64)>,
+    /// Random search: hidden-layer widths drawn log-uniformly from LOW:HIGH (whole numbers).
+    #[arg(long, value_name = "LOW:HIGH", value_parser = whole_range, requires = "random")]
+    pub range_hidden: Option<(usize, usize)>,
+    /// Random search: batch sizes drawn log-uniformly from LOW:HIGH (whole numbers).
+    #[arg(long, value_name = "LOW:HIGH", value_parser = whole_range, requires = "random")]
+    pub range_batch_size: Option<(usize, usize)>,
+    /// Successive halving with this factor: every configuration gets a share of --epochs, the best 1/ETA go on with ETA times as many.
+    #[arg(long, value_name = "ETA")]
+    pub halving: Option<usize>,
+}
+
+/// `stratanet nested`.
+#[derive(Debug, Args)]
+pub(crate) struct NestedArgs {
+    /// The CSV file.
+    pub data: PathBuf,
+    #[command(flatten)]
+    pub table: TableArgs,
+    #[command(flatten)]
+    pub net: NetArgs,
+    /// Outer folds (and --repeats of them).
+    #[command(flatten)]
+    pub folds: FoldArgs,
+    /// Folds of the sweep inside each outer training set.
+    #[arg(long, value_name = "J", default_value_t = 3)]
+    pub inner_folds: usize,
+    #[command(flatten)]
+    pub search: SearchArgs,
+    /// The metric the inner sweeps choose by [accuracy for classes, root_mean_squared_error for numbers].
+    #[arg(long, value_name = "NAME", value_parser = parsed::<Metric>)]
+    pub metric: Option<Metric>,
+    #[command(flatten)]
+    pub output: OutputArgs,
+}
+
 /// `stratanet sweep-trial`.
 #[derive(Debug, Args)]
 pub(crate) struct SweepTrialArgs {
@@ -353,13 +545,15 @@ pub(crate) struct SweepTrialArgs {
     pub plan: PathBuf,
     /// The same CSV file the plan was made from.
     pub data: PathBuf,
-    /// The trial index (0-based; an array job's task index).
-    #[arg(long, value_name = "INDEX")]
-    pub trial: usize,
-    /// Where to write the trial's result (JSON).
-    #[arg(long, value_name = "PATH")]
-    pub out: PathBuf,
-    /// Keep the per-epoch losses in the result file.
+    #[command(flatten)]
+    pub choice: TrialChoice,
+    /// Where to write the result of the one trial (JSON).
+    #[arg(long, value_name = "PATH", conflicts_with = "out_dir")]
+    pub out: Option<PathBuf>,
+    /// The folder for the results, one file per trial (trial-000007.json).
+    #[arg(long, value_name = "DIR")]
+    pub out_dir: Option<PathBuf>,
+    /// Keep the per-epoch losses in the result files.
     #[arg(long)]
     pub history: bool,
     #[command(flatten)]
@@ -371,9 +565,33 @@ pub(crate) struct SweepTrialArgs {
 pub(crate) struct SweepMergeArgs {
     /// The plan.
     pub plan: PathBuf,
-    /// The trial result files, in any order.
+    /// The trial result files, or folders of them, in any order.
     #[arg(required = true)]
     pub results: Vec<PathBuf>,
+    /// The CSV file the plan was made from: read, checked against the plan,
+    /// reported as a local sweep reports it (needed by --out).
+    #[arg(long, value_name = "PATH")]
+    pub data: Option<PathBuf>,
+    /// Save the best configuration, refitted on all rows of --data, here.
+    #[arg(long, value_name = "PATH", requires = "data")]
+    pub out: Option<PathBuf>,
+    /// Successive halving: write the next round's plan here.
+    #[arg(long, value_name = "PATH")]
+    pub next_plan: Option<PathBuf>,
+    #[command(flatten)]
+    pub output: OutputArgs,
+}
+
+/// `stratanet sweep-status`.
+#[derive(Debug, Args)]
+pub(crate) struct SweepStatusArgs {
+    /// The plan.
+    pub plan: PathBuf,
+    /// The folder of trial results.
+    pub dir: PathBuf,
+    /// The number of array tasks the trials were spread over (--tasks of sweep-trial), to list tasks to resubmit.
+    #[arg(long, value_name = "N")]
+    pub tasks: Option<usize>,
     #[command(flatten)]
     pub output: OutputArgs,
 }
@@ -398,10 +616,13 @@ impl Command {
             Command::Fit(a) => &a.output,
             Command::Check(a) => &a.output,
             Command::Predict(a) => &a.output,
+            Command::Inspect(a) => &a.output,
             Command::Cv(a) => &a.output,
             Command::Sweep(a) => &a.output,
+            Command::Nested(a) => &a.output,
             Command::SweepTrial(a) => &a.output,
             Command::SweepMerge(a) => &a.output,
+            Command::SweepStatus(a) => &a.output,
             Command::Demo(a) => &a.output,
         }
     }

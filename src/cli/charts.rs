@@ -49,7 +49,12 @@ pub(crate) const FIT_CHART_FILES: [&str; 10] = [
 ];
 
 /// The names (without `.svg`) of every chart [`cv_charts`] may write.
-pub(crate) const CV_CHART_FILES: [&str; 2] = ["cv-learning-curves", "cv-scores"];
+pub(crate) const CV_CHART_FILES: [&str; 4] = [
+    "cv-learning-curves",
+    "cv-scores",
+    "permutation-importance",
+    "reliability",
+];
 
 /// The charts of one fit, written as SVG into `dir`.
 ///

@@ -123,7 +123,7 @@ pub(crate) fn demo(out: &Path, seed: u64, progress: &Progress) -> Result<Outcome
         let idx = held_out.row_indices().to_vec();
         data.select(&idx)
     };
-    let test_options = ChartOptions::default().rows("held-out test rows");
+    let test_options = ChartOptions::default().scored(score.scored_rows());
     files.extend(save_all(
         &charts_dir,
         vec![
@@ -166,6 +166,18 @@ pub(crate) fn demo(out: &Path, seed: u64, progress: &Progress) -> Result<Outcome
     let summary = out.join("summary.html");
     write_text(&summary, &html)?;
 
+    let mut warnings: Vec<crate::error::Message> = fitted.warnings().to_vec();
+    for (name, cv) in [
+        ("hidden 12", &comparison.a),
+        ("no hidden layer", &comparison.b),
+    ] {
+        warnings.extend(
+            cv.warnings()
+                .into_iter()
+                .map(|w| w.prefixed(&format!("{name}, "))),
+        );
+    }
+    let warnings = super::output::flags(&warnings);
     let acc = |cv: &CrossValidation| cv.metric(Metric::Accuracy).map(|m| m.summary.clone());
     let (a, b) = (acc(&comparison.a)?, acc(&comparison.b)?);
     let json = json!({
@@ -196,6 +208,7 @@ pub(crate) fn demo(out: &Path, seed: u64, progress: &Progress) -> Result<Outcome
             "balanced_accuracy": test_metrics.balanced_accuracy,
             "macro_f1": test_metrics.macro_f1,
         },
+        "warnings": warnings,
     });
     let mut text = String::new();
     let _ = writeln!(
@@ -229,6 +242,9 @@ pub(crate) fn demo(out: &Path, seed: u64, progress: &Progress) -> Result<Outcome
         "chosen: {chosen_name}; held-out accuracy {:.3} (scored once)",
         test_metrics.accuracy
     );
+    for w in &warnings {
+        let _ = writeln!(text, "warning: {w}");
+    }
     let _ = writeln!(text, "wrote:");
     let _ = writeln!(
         text,

@@ -39,6 +39,7 @@ impl CliError {
 pub(crate) fn flag_name(name: &str, value: Option<&str>) -> String {
     let flag = match name {
         "hidden_layers" => "--hidden".to_string(),
+        "ids" => "--id".to_string(),
         n => format!("--{}", n.replace('_', "-")),
     };
     match value {

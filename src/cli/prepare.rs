@@ -2,8 +2,9 @@
 //! [`Job`] before any work starts (see the module docs of `cli`).
 
 use super::args::{
-    CheckArgs, Cli, Command, CvArgs, DemoArgs, FitArgs, FoldArgs, NetArgs, PredictArgs, SweepArgs,
-    SweepMergeArgs, SweepTrialArgs, TableArgs,
+    CheckArgs, Cli, Command, CvArgs, DemoArgs, DialectArgs, FitArgs, FoldArgs, InspectArgs,
+    NestedArgs, NetArgs, PredictArgs, SearchArgs, SweepArgs, SweepMergeArgs, SweepStatusArgs,
+    SweepTrialArgs, TableArgs,
 };
 use super::charts;
 use super::paths::Outputs;
@@ -12,7 +13,7 @@ use crate::error::{Error, Result};
 use crate::fit::FitOptions;
 use crate::model_file::{FeatureOptions, TargetColumn};
 use crate::train::EarlyStopping;
-use crate::validate::{CvOptions, Grid, Metric};
+use crate::validate::{Candidates, CvOptions, Grid, Halving, Metric, RandomSearch, Search};
 use std::path::PathBuf;
 
 /// A command, checked and ready to run.
@@ -20,11 +21,14 @@ pub(crate) enum Job {
     Fit(FitJob),
     Check(CheckJob),
     Predict(PredictJob),
+    Inspect(InspectJob),
     Cv(CvJob),
     Sweep(SweepJob),
     WritePlan(SweepJob, PathBuf),
+    Nested(NestedJob),
     SweepTrial(TrialJob),
     SweepMerge(MergeJob),
+    SweepStatus(StatusJob),
     Demo(DemoJob),
 }
 
@@ -51,6 +55,12 @@ pub(crate) struct PredictJob {
     pub out: PathBuf,
 }
 
+pub(crate) struct InspectJob {
+    pub data: PathBuf,
+    pub table: CsvOptions,
+    pub folds: usize,
+}
+
 pub(crate) struct CvJob {
     pub data: PathBuf,
     pub table: CsvOptions,
@@ -65,7 +75,7 @@ pub(crate) struct SweepJob {
     pub data: PathBuf,
     pub table: CsvOptions,
     pub base: FitOptions,
-    pub grid: Grid,
+    pub search: Search,
     pub cv: CvOptions,
     /// `None`: accuracy for classes, root mean squared error for numbers.
     pub metric: Option<Metric>,
@@ -74,17 +84,56 @@ pub(crate) struct SweepJob {
     pub report: Option<PathBuf>,
 }
 
+pub(crate) struct NestedJob {
+    pub data: PathBuf,
+    pub table: CsvOptions,
+    pub base: FitOptions,
+    pub search: Search,
+    pub outer: CvOptions,
+    pub inner: CvOptions,
+    pub metric: Option<Metric>,
+    pub seed: u64,
+}
+
+/// Which trials a `sweep-trial` runs.
+pub(crate) enum Trials {
+    /// These indices.
+    List(Vec<usize>),
+    /// Task `task` of `tasks`: indices task, task + tasks, ...
+    Stride { task: usize, tasks: usize },
+}
+
+/// Where `sweep-trial` writes.
+pub(crate) enum TrialOut {
+    /// One trial's file.
+    File(PathBuf),
+    /// A folder of `trial-NNNNNN.json` files.
+    Folder(PathBuf),
+}
+
 pub(crate) struct TrialJob {
     pub plan: PathBuf,
     pub data: PathBuf,
-    pub trial: usize,
-    pub out: PathBuf,
+    pub trials: Trials,
+    pub out: TrialOut,
     pub history: bool,
 }
 
 pub(crate) struct MergeJob {
     pub plan: PathBuf,
     pub results: Vec<PathBuf>,
+    /// The plan's table: read, checked against the plan's fingerprint and
+    /// reported as a local sweep reports it; needed to refit.
+    pub data: Option<PathBuf>,
+    /// Where to save the best configuration refitted on the whole table.
+    pub out: Option<PathBuf>,
+    pub next_plan: Option<PathBuf>,
+}
+
+pub(crate) struct StatusJob {
+    pub plan: PathBuf,
+    pub dir: PathBuf,
+    pub tasks: Option<usize>,
 }
 
 pub(crate) struct DemoJob {
@@ -102,23 +151,69 @@ pub(crate) fn prepare(cli: Cli) -> Result<Job> {
         Command::Fit(a) => Job::Fit(fit(a)?),
         Command::Check(a) => Job::Check(check(a)?),
         Command::Predict(a) => Job::Predict(predict(a)?),
+        Command::Inspect(a) => Job::Inspect(inspect(a)?),
         Command::Cv(a) => Job::Cv(cv(a)?),
         Command::Sweep(a) => sweep(a)?,
+        Command::Nested(a) => Job::Nested(nested(a)?),
         Command::SweepTrial(a) => Job::SweepTrial(sweep_trial(a)?),
         Command::SweepMerge(a) => Job::SweepMerge(sweep_merge(a)?),
+        Command::SweepStatus(a) => Job::SweepStatus(sweep_status(a)?),
         Command::Demo(a) => Job::Demo(demo(a)?),
     })
 }
 
-fn table(t: TableArgs) -> CsvOptions {
+/// The table options the flags ask for, checked (an option without effect
+/// is refused here, before any file is read).
+fn table(t: TableArgs) -> Result<CsvOptions> {
     let mut o = CsvOptions::new(&t.target);
     o.drop = t.drop;
     o.categorical = t.categorical;
+    o.ids = t.ids;
     if !t.features.is_empty() {
         o.features = Some(t.features);
     }
     o.missing = t.missing;
-    o
+    o.missing_indicators = t.missing_indicators;
+    if let Some(task) = t.task {
+        o.task = task;
+    }
+    if let Some(d) = t.dialect.delimiter {
+        o.delimiter = d;
+    }
+    if let Some(d) = t.dialect.decimal {
+        o.decimal = d;
+    }
+    o.missing_markers = t.dialect.missing_markers;
+    o.validate()?;
+    Ok(o)
+}
+
+/// Rows for a model, read as the flags ask.
+fn rows(
+    ignore_extra: bool,
+    missing: Option<crate::data::Missing>,
+    d: DialectArgs,
+) -> Result<FeatureOptions> {
+    let mut o = FeatureOptions::default().ignore_extra(ignore_extra);
+    o.missing = missing;
+    if let Some(x) = d.delimiter {
+        o.delimiter = x;
+    }
+    o.decimal = d.decimal;
+    o.missing_markers = d.missing_markers;
+    o.validate()?;
+    Ok(o)
+}
+
+fn inspect(a: InspectArgs) -> Result<InspectJob> {
+    if a.folds < 2 {
+        return Err(Error::option("folds", a.folds, "must be at least 2"));
+    }
+    Ok(InspectJob {
+        data: a.data,
+        table: table(a.table)?,
+        folds: a.folds,
+    })
 }
 
 /// The fit options the flags ask for, validated.
@@ -135,6 +230,12 @@ fn fit_options(n: &NetArgs) -> Result<FitOptions> {
     }
     if let Some(s) = n.scaling {
         o.scaling = s;
+    }
+    if let Some(s) = n.target_scaling {
+        o.target_scaling = s;
+    }
+    if let Some(w) = &n.class_weights {
+        o.class_weights = w.clone();
     }
     if let Some(p) = n.precision {
         o.precision = p;
@@ -240,7 +341,7 @@ fn fit(a: FitArgs) -> Result<FitJob> {
     outputs.check(&[&a.data])?;
     Ok(FitJob {
         data: a.data,
-        table: table(a.table),
+        table: table(a.table)?,
         options,
         seed: a.net.seed,
         out: a.out,
@@ -251,10 +352,7 @@ fn fit(a: FitArgs) -> Result<FitJob> {
 
 fn check(a: CheckArgs) -> Result<CheckJob> {
     Ok(CheckJob {
-        rows: FeatureOptions::default()
-            .ignore_extra(a.ignore_extra)
-            .missing(a.missing)
-            .target(TargetColumn::Require),
+        rows: rows(a.ignore_extra, a.missing, a.dialect)?.target(TargetColumn::Require),
         model: a.model,
         data: a.data,
     })
@@ -265,9 +363,7 @@ fn predict(a: PredictArgs) -> Result<PredictJob> {
         .file("out", &a.out)
         .check(&[&a.data, &a.model])?;
     Ok(PredictJob {
-        rows: FeatureOptions::default()
-            .ignore_extra(a.ignore_extra)
-            .missing(a.missing),
+        rows: rows(a.ignore_extra, a.missing, a.dialect)?,
         model: a.model,
         data: a.data,
         out: a.out,
@@ -291,7 +387,7 @@ fn cv(a: CvArgs) -> Result<CvJob> {
     outputs.check(&[&a.data])?;
     Ok(CvJob {
         data: a.data,
-        table: table(a.table),
+        table: table(a.table)?,
         options,
         cv,
         seed: a.net.seed,
@@ -300,25 +396,40 @@ fn cv(a: CvArgs) -> Result<CvJob> {
     })
 }
 
-fn grid(a: &SweepArgs) -> Result<Grid> {
-    let mut g = Grid::default();
-    if let Some(l) = &a.grid_hidden {
-        g.hidden_layers = l.0.clone();
-    }
-    g.activations = a.grid_activation.clone();
-    g.learning_rates = a.grid_learning_rate.clone();
-    g.batch_sizes = a.grid_batch_size.clone();
-    g.weight_decays = a.grid_weight_decay.clone();
-    Ok(g)
+fn search(a: &SearchArgs) -> Result<Search> {
+    let candidates = match a.random {
+        Some(n) => Candidates::Random(RandomSearch {
+            configurations: n,
+            learning_rate: a.range_learning_rate,
+            weight_decay: a.range_weight_decay,
+            l1_penalty: a.range_l1_penalty,
+            hidden_width: a.range_hidden,
+            batch_size: a.range_batch_size,
+        }),
+        None => {
+            let mut g = Grid::default();
+            if let Some(l) = &a.grid_hidden {
+                g.hidden_layers = l.0.clone();
+            }
+            g.activations = a.grid_activation.clone();
+            g.learning_rates = a.grid_learning_rate.clone();
+            g.batch_sizes = a.grid_batch_size.clone();
+            g.weight_decays = a.grid_weight_decay.clone();
+            Candidates::Grid(g)
+        }
+    };
+    let search = Search {
+        candidates,
+        halving: a.halving.map(|eta| Halving { eta }),
+    };
+    search.validate()?;
+    Ok(search)
 }
 
 fn sweep(a: SweepArgs) -> Result<Job> {
     let base = fit_options(&a.net)?;
-    let grid = grid(&a)?;
-    for (name, o) in grid.configurations(&base)? {
-        o.validate()
-            .map_err(|e| e.context(format!("sweep configuration \"{name}\"")))?;
-    }
+    let search = search(&a.search)?;
+    check_grid(&search, &base)?;
     let cv = fold_options(&a.folds)?;
     let mut outputs = Outputs::default();
     if let Some(p) = &a.write_plan {
@@ -331,9 +442,9 @@ fn sweep(a: SweepArgs) -> Result<Job> {
     outputs.check(&[&a.data])?;
     let job = SweepJob {
         data: a.data,
-        table: table(a.table),
+        table: table(a.table)?,
         base,
-        grid,
+        search,
         cv,
         metric: a.metric,
         seed: a.net.seed,
@@ -346,23 +457,136 @@ fn sweep(a: SweepArgs) -> Result<Job> {
     })
 }
 
+/// Every grid configuration's options, validated (named by configuration).
+fn check_grid(search: &Search, base: &FitOptions) -> Result<()> {
+    if let Candidates::Grid(grid) = &search.candidates {
+        for (name, o) in grid.configurations(base)? {
+            o.validate()
+                .map_err(|e| e.context(format!("sweep configuration \"{name}\"")))?;
+        }
+    }
+    Ok(())
+}
+
+fn nested(a: NestedArgs) -> Result<NestedJob> {
+    let base = fit_options(&a.net)?;
+    let search = search(&a.search)?;
+    check_grid(&search, &base)?;
+    let outer = fold_options(&a.folds)?;
+    let inner = CvOptions {
+        folds: a.inner_folds,
+        ..Default::default()
+    };
+    inner.validate().map_err(|e| match e.kind() {
+        crate::error::ErrorKind::InvalidOption { value, reason, .. } => {
+            Error::option("inner_folds", value, reason.clone())
+        }
+        _ => e,
+    })?;
+    Ok(NestedJob {
+        data: a.data,
+        table: table(a.table)?,
+        base,
+        search,
+        outer,
+        inner,
+        metric: a.metric,
+        seed: a.net.seed,
+    })
+}
+
 fn sweep_trial(a: SweepTrialArgs) -> Result<TrialJob> {
-    Outputs::default()
-        .file("out", &a.out)
-        .check(&[&a.plan, &a.data])?;
+    let c = a.choice;
+    let trials = match (c.trial, c.trials, c.task, c.tasks) {
+        (Some(t), _, _, _) => Trials::List(vec![t]),
+        (None, Some(list), _, _) => Trials::List(list.0),
+        (None, None, Some(task), Some(tasks)) => {
+            if tasks == 0 || task >= tasks {
+                return Err(Error::option(
+                    "task",
+                    task,
+                    format!(
+                        "must be below {} ({}), counting from 0",
+                        crate::error::opt("tasks"),
+                        tasks
+                    ),
+                ));
+            }
+            Trials::Stride { task, tasks }
+        }
+        _ => unreachable!("clap requires one of --trial, --trials, --task with --tasks"),
+    };
+    let single = matches!(&trials, Trials::List(l) if l.len() == 1);
+    let out = match (a.out, a.out_dir) {
+        (Some(file), None) if single => TrialOut::File(file),
+        (Some(_), None) => {
+            return Err(Error::option(
+                "out",
+                "one file",
+                format!(
+                    "holds one trial, but several are asked for; give {} for one file per trial",
+                    crate::error::opt("out_dir")
+                ),
+            ))
+        }
+        (None, Some(dir)) => TrialOut::Folder(dir),
+        _ => {
+            return Err(Error::option(
+                "out_dir",
+                "missing",
+                format!(
+                    "say where the results go: {} for a folder (or {} for a single trial)",
+                    crate::error::opt("out_dir"),
+                    crate::error::opt("out")
+                ),
+            ))
+        }
+    };
+    match &out {
+        TrialOut::File(f) => Outputs::default().file("out", f),
+        TrialOut::Folder(d) => Outputs::default().folder("out_dir", d, Vec::new()),
+    }
+    .check(&[&a.plan, &a.data])?;
     Ok(TrialJob {
         plan: a.plan,
         data: a.data,
-        trial: a.trial,
-        out: a.out,
+        trials,
+        out,
         history: a.history,
     })
 }
 
 fn sweep_merge(a: SweepMergeArgs) -> Result<MergeJob> {
+    let mut inputs: Vec<&std::path::Path> = vec![&a.plan];
+    inputs.extend(a.results.iter().map(PathBuf::as_path));
+    if let Some(d) = &a.data {
+        inputs.push(d);
+    }
+    let mut outputs = Outputs::default();
+    if let Some(p) = &a.out {
+        outputs = outputs.file("out", p);
+    }
+    if let Some(p) = &a.next_plan {
+        outputs = outputs.file("next_plan", p);
+    }
+    outputs.check(&inputs)?;
     Ok(MergeJob {
         plan: a.plan,
         results: a.results,
+        data: a.data,
+        out: a.out,
+        next_plan: a.next_plan,
+    })
+}
+
+fn sweep_status(a: SweepStatusArgs) -> Result<StatusJob> {
+    if a.tasks == Some(0) {
+        return Err(Error::option("tasks", 0, "must be at least 1"));
+    }
+    Ok(StatusJob {
+        plan: a.plan,
+        dir: a.dir,
+        tasks: a.tasks,
     })
 }
 

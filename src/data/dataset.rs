@@ -1,8 +1,10 @@
 //! [`Dataset`]: a table of samples ready for a network, with its column
 //! encoding and its [`Target`].
 
-use crate::error::{Error, Result};
+use super::rows::{DecimalMark, Delimiter};
+use crate::error::{Error, Message, Result};
 use ndarray::{Array2, ArrayView2, Axis};
+use std::sync::Arc;
 
 /// How one source column became feature columns.
 #[derive(Clone, Debug, PartialEq)]
@@ -20,20 +22,28 @@ pub enum ColumnEncoding {
         /// The levels seen, sorted.
         levels: Vec<String>,
     },
+    /// A 0/1 column that is 1 where the source column's cell is missing
+    /// (with missing-cell imputation), named `name:missing`.
+    MissingIndicator {
+        /// The source column's name.
+        name: String,
+    },
 }
 
 impl ColumnEncoding {
     /// The source column's name.
     pub fn name(&self) -> &str {
         match self {
-            ColumnEncoding::Numeric { name } | ColumnEncoding::OneHot { name, .. } => name,
+            ColumnEncoding::Numeric { name }
+            | ColumnEncoding::OneHot { name, .. }
+            | ColumnEncoding::MissingIndicator { name } => name,
         }
     }
 
     /// How many feature columns this source column produces.
     pub fn width(&self) -> usize {
         match self {
-            ColumnEncoding::Numeric { .. } => 1,
+            ColumnEncoding::Numeric { .. } | ColumnEncoding::MissingIndicator { .. } => 1,
             ColumnEncoding::OneHot { levels, .. } => levels.len(),
         }
     }
@@ -45,8 +55,182 @@ impl ColumnEncoding {
             ColumnEncoding::OneHot { name, levels } => {
                 levels.iter().map(|l| format!("{name}={l}")).collect()
             }
+            ColumnEncoding::MissingIndicator { name } => vec![format!("{name}:missing")],
         }
     }
+}
+
+/// What to do with a row that has a missing cell in a used column.
+///
+/// Text form: `error`, `drop`, `impute`.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub enum Missing {
+    /// Stop with an error naming the line and column (the default).
+    #[default]
+    Error,
+    /// Drop the row and count it.
+    Drop,
+    /// Keep the row: a missing feature cell is filled when fitting, from
+    /// the training rows only (inside every fold): the median of a numeric
+    /// column, the most frequent level of a text column (see
+    /// [`Imputer`](super::Imputer)). The model records the fill values
+    /// and applies them to new rows.
+    Impute,
+}
+
+crate::error::text_forms!(Missing, "missing", {
+    Missing::Error => "error",
+    Missing::Drop => "drop",
+    Missing::Impute => "impute",
+});
+
+/// Classification or regression.
+///
+/// Text form: `auto`, `classification`, `regression`.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub enum Task {
+    /// Decided from the target column (see [`CsvOptions`](super::CsvOptions));
+    /// the decision is reported.
+    #[default]
+    Auto,
+    /// Predict classes (the target's distinct cells are the classes).
+    Classification,
+    /// Predict numbers.
+    Regression,
+}
+
+crate::error::text_forms!(Task, "task", {
+    Task::Auto => "auto",
+    Task::Classification => "classification",
+    Task::Regression => "regression",
+});
+
+/// The identifier columns of a table, carried with its rows (and into
+/// predictions), never used as features.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct RowIds {
+    /// The ID columns' names.
+    pub(crate) names: Vec<String>,
+    /// Their cells, row-major (trimmed text).
+    pub(crate) values: Vec<String>,
+}
+
+impl RowIds {
+    /// The ID columns' names.
+    pub fn names(&self) -> &[String] {
+        &self.names
+    }
+
+    /// Number of rows.
+    pub fn len(&self) -> usize {
+        if self.names.is_empty() {
+            0
+        } else {
+            self.values.len() / self.names.len()
+        }
+    }
+
+    /// True when there are no rows.
+    pub fn is_empty(&self) -> bool {
+        self.len() == 0
+    }
+
+    /// The ID cells of row `row` (one per ID column).
+    ///
+    /// # Panics
+    /// When `row` is out of range.
+    pub fn row(&self, row: usize) -> &[String] {
+        let k = self.names.len();
+        &self.values[row * k..(row + 1) * k]
+    }
+
+    /// The rows at `rows`, in that order.
+    pub fn select(&self, rows: &[usize]) -> RowIds {
+        RowIds {
+            names: self.names.clone(),
+            values: rows
+                .iter()
+                .flat_map(|&r| self.row(r).iter().cloned())
+                .collect(),
+        }
+    }
+}
+
+/// How one source column of a CSV table was read: for
+/// [`Dataset::report`] and the table summary.
+#[derive(Clone, Debug, PartialEq)]
+pub struct ColumnReport {
+    /// The header name.
+    pub name: String,
+    /// Its 0-based position in the header.
+    pub index: usize,
+    /// `feature`, or `left out (looks like an identifier)`.
+    pub role: String,
+    /// `numeric` or `categorical`.
+    pub kind: String,
+    /// Why it got that kind.
+    pub why: String,
+    /// Missing cells seen (in dropped rows too).
+    pub missing: usize,
+    /// The smallest and largest number (numeric columns).
+    pub min_max: Option<(f64, f64)>,
+    /// The most frequent levels with their counts, at most 20 (categorical
+    /// columns).
+    pub levels: Vec<(String, usize)>,
+    /// Distinct levels (categorical columns).
+    pub distinct: Option<usize>,
+}
+
+/// How a table was read from CSV: the dialect, each column's decision, and
+/// every decision and warning the reader reported.
+#[derive(Clone, Debug, PartialEq)]
+pub struct ReadReport {
+    /// The file.
+    pub source: String,
+    /// The header's names.
+    pub header: Vec<String>,
+    /// The delimiter in use.
+    pub delimiter: Delimiter,
+    /// The decimal mark.
+    pub decimal: DecimalMark,
+    /// The missing-cell policy.
+    pub missing: Missing,
+    /// The missing-cell markers in force (besides the empty cell).
+    pub missing_markers: Vec<String>,
+    /// The task as asked for ([`Task::Auto`] when decided).
+    pub task: Task,
+    /// The target column.
+    pub target: String,
+    /// Every candidate feature column, in order.
+    pub columns: Vec<ColumnReport>,
+    /// The ID columns.
+    pub ids: Vec<String>,
+    /// The dropped columns.
+    pub dropped: Vec<String>,
+    /// Decisions the reader made (delimiter, task, rows dropped, cells to
+    /// impute), one sentence each.
+    pub decisions: Vec<Message>,
+    /// What looks wrong (an identifier left out, a constant column, a
+    /// high-cardinality text column, a feature that determines the target).
+    pub warnings: Vec<Message>,
+}
+
+/// Missing source cells in an encoded matrix: a NaN in the first column of
+/// each encoding (a one-hot column's missing cell is NaN in all its columns).
+pub(crate) fn count_missing(features: &Array2<f64>, columns: &[ColumnEncoding]) -> usize {
+    let mut n = 0;
+    let mut offset = 0;
+    for c in columns {
+        if !matches!(c, ColumnEncoding::MissingIndicator { .. }) && offset < features.ncols() {
+            n += features
+                .column(offset)
+                .iter()
+                .filter(|v| v.is_nan())
+                .count();
+        }
+        offset += c.width();
+    }
+    n
 }
 
 /// What the network is asked to predict.
@@ -129,6 +313,12 @@ pub struct Dataset {
     pub(crate) source: String,
     /// Rows dropped while reading because of missing cells.
     pub(crate) dropped_rows: usize,
+    /// Missing feature cells kept as NaN (with missing-cell imputation).
+    pub(crate) missing_cells: usize,
+    /// The identifier columns, when there are any.
+    pub(crate) ids: Option<RowIds>,
+    /// How the table was read (CSV tables only).
+    pub(crate) report: Option<Arc<ReadReport>>,
 }
 
 impl std::fmt::Debug for Dataset {
@@ -258,6 +448,9 @@ impl Dataset {
             target,
             source: "in-memory table".to_string(),
             dropped_rows: 0,
+            missing_cells: 0,
+            ids: None,
+            report: None,
         })
     }
 
@@ -321,6 +514,38 @@ impl Dataset {
         self.dropped_rows
     }
 
+    /// Missing feature cells kept as NaN (read with
+    /// [`Missing::Impute`](super::Missing::Impute)); [`fit`](crate::fit::fit)
+    /// fills them from its training rows.
+    pub fn missing_cells(&self) -> usize {
+        self.missing_cells
+    }
+
+    /// The identifier columns and each row's IDs (tables read with
+    /// [`CsvOptions::ids`](super::CsvOptions::ids)); row `i` here is row `i`
+    /// of the table, also after [`Dataset::select`].
+    pub fn row_ids(&self) -> Option<&RowIds> {
+        self.ids.as_ref()
+    }
+
+    /// How the table was read from CSV (`None` for tables built from arrays).
+    pub fn report(&self) -> Option<&ReadReport> {
+        self.report.as_deref()
+    }
+
+    /// The decisions the CSV reader made about this table (delimiter, task,
+    /// rows dropped, cells to impute), one sentence each.
+    pub fn decisions(&self) -> &[Message] {
+        self.report.as_deref().map_or(&[], |r| &r.decisions[..])
+    }
+
+    /// What looks wrong in the table (an identifier left out, a constant
+    /// column, a high-cardinality text column, a feature that determines
+    /// the target), one sentence each.
+    pub fn warnings(&self) -> &[Message] {
+        self.report.as_deref().map_or(&[], |r| &r.warnings[..])
+    }
+
     /// Number of rows (samples).
     pub fn n_rows(&self) -> usize {
         self.features.nrows()
@@ -363,16 +588,25 @@ impl Dataset {
         self.features.view()
     }
 
-    /// The rows at `rows` (in that order) as a new table.
+    /// The rows at `rows` (in that order) as a new table (with their IDs).
     pub fn select(&self, rows: &[usize]) -> Dataset {
+        let features = self.features.select(Axis(0), rows);
+        let missing_cells = if self.missing_cells == 0 {
+            0
+        } else {
+            count_missing(&features, &self.columns)
+        };
         Dataset {
-            features: self.features.select(Axis(0), rows),
+            features,
             feature_names: self.feature_names.clone(),
             columns: self.columns.clone(),
             target_name: self.target_name.clone(),
             target: self.target.select(rows),
             source: self.source.clone(),
             dropped_rows: self.dropped_rows,
+            missing_cells,
+            ids: self.ids.as_ref().map(|i| i.select(rows)),
+            report: self.report.clone(),
         }
     }
 

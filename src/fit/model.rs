@@ -3,7 +3,8 @@
 //! from ([`Provenance`](super::Provenance)).
 
 use super::{FitOptions, Provenance};
-use crate::data::{ColumnEncoding, Dataset, Scaler};
+use crate::data::rows::CellRules;
+use crate::data::{ColumnEncoding, Dataset, Imputer, Scaler};
 use crate::error::{Error, Result};
 use crate::network::Network;
 use ndarray::{Array2, ArrayView2};
@@ -16,6 +17,17 @@ pub struct Model {
     pub(crate) network: Network,
     /// The scaler learnt from the training rows.
     pub(crate) scaler: Scaler,
+    /// Fill values for missing cells, learnt from the training rows (a
+    /// table read with missing cells imputed).
+    pub(crate) imputer: Option<Imputer>,
+    /// The target's scaler (regression with the identity head): the
+    /// network predicts scaled values, the model's predictions are unscaled.
+    pub(crate) target_scaler: Option<Scaler>,
+    /// The training table's ID columns (carried into predictions).
+    pub(crate) ids: Vec<String>,
+    /// How the training table's cells were read (decimal mark, missing
+    /// markers): new rows are read the same way unless told otherwise.
+    pub(crate) cell_rules: CellRules,
     /// How source columns become features.
     pub(crate) columns: Vec<ColumnEncoding>,
     /// Feature names in network input order.
@@ -44,6 +56,23 @@ impl Model {
     /// The scaler learnt from the training rows.
     pub fn scaler(&self) -> &Scaler {
         &self.scaler
+    }
+
+    /// The fill values for missing cells, when the model was fitted with
+    /// missing cells imputed.
+    pub fn imputer(&self) -> Option<&Imputer> {
+        self.imputer.as_ref()
+    }
+
+    /// The target's scaler, when the network learnt a scaled target
+    /// (predictions are returned in the target's own units).
+    pub fn target_scaler(&self) -> Option<&Scaler> {
+        self.target_scaler.as_ref()
+    }
+
+    /// The training table's ID columns, carried into predictions.
+    pub fn id_columns(&self) -> &[String] {
+        &self.ids
     }
 
     /// How the source columns become the network's inputs, in order.
@@ -101,7 +130,11 @@ impl Model {
                 x.dim(),
             ));
         }
-        let z = self.scaler.scaled(x)?;
+        let mut z = x.to_owned();
+        if let Some(imputer) = &self.imputer {
+            imputer.impute_in_place(z.view_mut())?;
+        }
+        self.scaler.scale_in_place(z.view_mut())?;
         if let Some(i) = z.iter().position(|v| !v.is_finite()) {
             let (row, col) = (i / z.ncols(), i % z.ncols());
             let value = x[[row, col]];
@@ -123,12 +156,19 @@ impl Model {
         Ok(z)
     }
 
-    /// Network outputs for raw (unscaled) feature rows.
+    /// Network outputs for raw (unscaled) feature rows: class probabilities
+    /// or a logistic output for a classifier, values in the target's own
+    /// units for regression (the target scaling undone). Missing (NaN) cells
+    /// are filled first when the model was fitted with imputation.
     ///
     /// # Errors
-    /// Wrong column count.
+    /// Wrong column count; a NaN the model cannot fill.
     pub fn predict(&self, x: ArrayView2<'_, f64>) -> Result<Array2<f64>> {
-        self.network.predict(self.scaled(x)?.view())
+        let mut out = self.network.predict(self.scaled(x)?.view())?;
+        if let Some(t) = &self.target_scaler {
+            t.unscale_in_place(out.view_mut())?;
+        }
+        Ok(out)
     }
 
     /// Class probabilities (one column per class) for raw feature rows.
@@ -154,6 +194,28 @@ impl Model {
     pub fn hidden_activations(&self, x: ArrayView2<'_, f64>, layer: usize) -> Result<Array2<f64>> {
         self.network
             .hidden_activations(self.scaled(x)?.view(), layer)
+    }
+
+    /// A copy of `data` with its missing cells filled by the model's fill
+    /// values (for charts and other uses that need every cell); the table
+    /// itself when it has none.
+    ///
+    /// # Errors
+    /// Missing cells and no imputer, or a width unlike the model's.
+    pub fn filled<'d>(&self, data: &'d Dataset) -> Result<std::borrow::Cow<'d, Dataset>> {
+        if data.missing_cells == 0 {
+            return Ok(std::borrow::Cow::Borrowed(data));
+        }
+        let Some(imputer) = &self.imputer else {
+            return Err(Error::input(
+                format!("{}: filling missing cells", data.source),
+                "the model was fitted without imputation, so it has no fill values",
+            ));
+        };
+        let mut d = data.clone();
+        imputer.impute_in_place(d.features.view_mut())?;
+        d.missing_cells = 0;
+        Ok(std::borrow::Cow::Owned(d))
     }
 
     /// Checks that a table's feature columns are this model's, in order.
@@ -189,5 +251,5 @@ impl Model {
 }
 
 /// The usual caution, printed by every command whose output could drive a
-/// decision about a part.
-pub(crate) const CAUTION: &str = "A model fitted here supports, and never replaces, qualified judgement, the applicable standards and local practice. Do not accept, rework or scrap a part on its output alone.";
+/// decision (the demo prints its own, for its invented scenario).
+pub(crate) const CAUTION: &str = "A model fitted here supports, and never replaces, qualified judgement, the applicable standards and local practice. Do not take a decision that matters on its output alone.";

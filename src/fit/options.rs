@@ -5,6 +5,157 @@ use crate::error::{Error, Result};
 use crate::network::{Activation, Head, Init, Precision};
 use crate::observe::{Event, Observer};
 use crate::train::{BatchSize, EarlyStopping, Optimiser, TrainingOptions};
+use std::fmt;
+use std::str::FromStr;
+
+/// How each class's rows weigh in the loss (for imbalanced classes).
+///
+/// Row `i` of class `c` contributes `w_c E_i` to the objective (the batch
+/// loss is `(1/|B|) sum_i w_c(i) E_i`; see
+/// [`TrainingOptions`]), and the validation loss is weighted alike; the
+/// reported metrics stay unweighted. With `n` training rows, `k` classes
+/// and `n_c` training rows of class `c` (counted on the fit's training rows,
+/// so inside every fold):
+///
+/// ```text
+/// none       w_c = 1
+/// balanced   w_c = n / (k n_c)        (every class weighs as much in total;
+///                                      the mean weight over the rows is 1)
+/// given      w_c as listed
+/// ```
+/// Balanced weights: common practice, no source.
+///
+/// Text form: `none`, `balanced`, or `CLASS=W,CLASS=W,...` naming every
+/// class with a finite weight above 0.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub enum ClassWeights {
+    /// Every row weighs 1.
+    #[default]
+    None,
+    /// `n / (k n_c)`.
+    Balanced,
+    /// One weight per class name.
+    Given(Vec<(String, f64)>),
+}
+
+impl fmt::Display for ClassWeights {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            ClassWeights::None => f.write_str("none"),
+            ClassWeights::Balanced => f.write_str("balanced"),
+            ClassWeights::Given(list) => {
+                let parts: Vec<String> = list.iter().map(|(c, w)| format!("{c}={w}")).collect();
+                f.write_str(&parts.join(","))
+            }
+        }
+    }
+}
+
+impl FromStr for ClassWeights {
+    type Err = Error;
+
+    fn from_str(text: &str) -> Result<ClassWeights> {
+        match text.trim() {
+            "none" => return Ok(ClassWeights::None),
+            "balanced" => return Ok(ClassWeights::Balanced),
+            _ => {}
+        }
+        let mut list: Vec<(String, f64)> = Vec::new();
+        for part in text.split(',') {
+            let Some((c, w)) = part.split_once('=') else {
+                return Err(Error::option(
+                    "class_weights",
+                    text,
+                    "must be none, balanced, or CLASS=WEIGHT pairs separated by commas (e.g. ok=1,fault=5)",
+                ));
+            };
+            let c = c.trim();
+            let w: f64 = w
+                .trim()
+                .parse()
+                .ok()
+                .filter(|v: &f64| v.is_finite() && *v > 0.0)
+                .ok_or_else(|| {
+                    Error::option(
+                        "class_weights",
+                        text,
+                        format!("the weight of \"{c}\" must be a finite number above 0"),
+                    )
+                })?;
+            if c.is_empty() || list.iter().any(|(n, _)| n == c) {
+                return Err(Error::option(
+                    "class_weights",
+                    text,
+                    format!("names class \"{c}\" twice or not at all"),
+                ));
+            }
+            list.push((c.to_string(), w));
+        }
+        Ok(ClassWeights::Given(list))
+    }
+}
+
+impl ClassWeights {
+    /// The weight of each class (in class order) for training rows whose
+    /// class counts are `counts`; `None` when rows are not weighted.
+    ///
+    /// # Errors
+    /// Given weights that do not name every class, or name an unknown one.
+    pub fn per_class(&self, names: &[String], counts: &[usize]) -> Result<Option<Vec<f64>>> {
+        match self {
+            ClassWeights::None => Ok(None),
+            ClassWeights::Balanced => {
+                let n: usize = counts.iter().sum();
+                let k = counts.iter().filter(|&&c| c > 0).count();
+                Ok(Some(
+                    counts
+                        .iter()
+                        .map(|&c| {
+                            if c == 0 {
+                                0.0
+                            } else {
+                                n as f64 / (k as f64 * c as f64)
+                            }
+                        })
+                        .collect(),
+                ))
+            }
+            ClassWeights::Given(list) => {
+                for (c, _) in list {
+                    if !names.contains(c) {
+                        return Err(Error::option(
+                            "class_weights",
+                            self,
+                            format!(
+                                "names \"{c}\", which is not a class; the classes are {}",
+                                names.join(", ")
+                            ),
+                        ));
+                    }
+                }
+                names
+                    .iter()
+                    .map(|n| {
+                        list.iter()
+                            .find(|(c, _)| c == n)
+                            .map(|&(_, w)| w)
+                            .ok_or_else(|| {
+                                Error::option(
+                                    "class_weights",
+                                    self,
+                                    format!(
+                                        "gives no weight for class \"{n}\"; name every class ({})",
+                                        names.join(", ")
+                                    ),
+                                )
+                            })
+                    })
+                    .collect::<Result<Vec<f64>>>()
+                    .map(Some)
+            }
+        }
+    }
+}
 
 /// Everything [`fit`](super::fit()) needs beyond the data.
 ///
@@ -25,6 +176,14 @@ pub struct FitOptions {
     pub init: Init,
     /// Feature scaling, fitted on the training rows.
     pub scaling: Scaling,
+    /// Scaling of a numeric target (regression with the identity head),
+    /// fitted on the training rows (inside every fold): the network learns
+    /// the scaled target and the model's predictions come back in the
+    /// target's own units. Losses are reported in the scaled units. Other
+    /// heads learn the target as given.
+    pub target_scaling: Scaling,
+    /// How each class's rows weigh in the loss ([`ClassWeights`]).
+    pub class_weights: ClassWeights,
     /// Share of rows held out as validation rows (for early stopping and
     /// for choosing among restarts), in `[0, 1)`, stratified by class.
     /// `None` takes [`FitOptions::VALIDATION_SHARE`] with early stopping and
@@ -46,6 +205,8 @@ impl Default for FitOptions {
             head: None,
             init: Init::Auto,
             scaling: Scaling::Standardise,
+            target_scaling: Scaling::Standardise,
+            class_weights: ClassWeights::None,
             validation_share: None,
             restarts: 1,
             precision: Precision::F64,
@@ -58,6 +219,18 @@ impl FitOptions {
     /// The validation share used with early stopping when none is given
     /// (common practice, no source).
     pub const VALIDATION_SHARE: f64 = 0.2;
+
+    /// The fewest validation rows early stopping works with when the
+    /// validation share is left to the default: with fewer, the default
+    /// switches early stopping off and trains on every row, and says so
+    /// (common practice, no source).
+    pub const MIN_VALIDATION_ROWS: usize = 10;
+
+    /// Sets the class weights.
+    pub fn class_weights(mut self, weights: ClassWeights) -> Self {
+        self.class_weights = weights;
+        self
+    }
 
     /// Sets the hidden layer widths.
     pub fn hidden(mut self, widths: &[usize]) -> Self {

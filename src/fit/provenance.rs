@@ -23,4 +23,15 @@ pub struct Provenance {
     pub stopped_early: bool,
     /// The final training loss of the kept restart.
     pub final_training_loss: f64,
+    /// How the options were chosen, when a sweep chose them (the search,
+    /// the metric, the configuration, and the plan file's checksum when the
+    /// sweep ran from one).
+    pub selected_by: Option<String>,
+    /// The baseline's loss on the training rows
+    /// ([`Baseline`](super::Baseline)).
+    pub baseline_training_loss: Option<f64>,
+    /// The baseline's loss on the validation rows, when there were some.
+    pub baseline_validation_loss: Option<f64>,
+    /// What the fit flagged ([`Fitted::warnings`](super::Fitted::warnings)).
+    pub warnings: Vec<String>,
 }

@@ -3,16 +3,16 @@
 //! The model's source columns are found by their header names, in any order,
 //! and encoded as the model encoded them when it was fitted: numeric columns
 //! as numbers, one-hot columns with the model's own levels (a category the
-//! model never saw is an error, not a silent row of zeros). The CSV rules are
-//! those of [`CsvOptions`](crate::data::CsvOptions): header row, byte-order
-//! mark ignored, quoting, missing-cell tokens, finite numbers only.
+//! model never saw is an error, not a silent row of zeros), missing
+//! indicators from the cells. The rows are read by the same row reader as
+//! training tables ([`data::rows`](crate::data::rows)): the delimiter is
+//! detected unless given, and the decimal mark and missing markers are the
+//! model's training table's unless given. The model's ID columns are
+//! carried along when the file has them.
 
-use crate::data::csv::{
-    check_cell_size, csv_reader, header_names, is_missing, next_row, parse_number,
-    read_header_record,
-};
-use crate::data::{ColumnEncoding, Dataset, Missing, Target};
-use crate::error::{Error, ErrorKind, Result};
+use crate::data::rows::{CellRules, RowReader};
+use crate::data::{ColumnEncoding, Dataset, DecimalMark, Delimiter, Missing, RowIds, Target};
+use crate::error::{opt, Error, Message, Result};
 use crate::fit::Model;
 use ndarray::{Array2, ArrayView2};
 use std::collections::HashMap;
@@ -38,7 +38,7 @@ pub enum TargetColumn {
 /// # use stratanet::prelude::*;
 /// use stratanet::model_file::{FeatureOptions, TargetColumn};
 /// # let text = "a,b,y\n0,0,n\n0,1,y\n1,0,y\n1,1,y\n";
-/// # let data = CsvOptions::new("y").read_str(text, "or.csv")?;
+/// # let data = CsvOptions::new("y").task(stratanet::data::Task::Classification).read_str(text, "or.csv")?;
 /// # let options = FitOptions::default().hidden(&[]).validation_share(0.0)
 /// #     .early_stopping(None).epochs(5).batch_size(stratanet::train::BatchSize::Rows(4));
 /// # let model = fit(&data, &options, &mut seeded_rng(1))?.into_model();
@@ -63,10 +63,15 @@ pub struct FeatureOptions {
     pub ignore_extra: bool,
     /// Whether to read the target column(s).
     pub target: TargetColumn,
-    /// Missing-cell policy for the columns read.
-    pub missing: Missing,
-    /// The field delimiter (default `,`).
-    pub delimiter: u8,
+    /// Missing-cell policy; `None` follows the model: impute when it was
+    /// fitted with imputation, otherwise an error.
+    pub missing: Option<Missing>,
+    /// The field delimiter (detected by default).
+    pub delimiter: Delimiter,
+    /// The decimal mark; `None` takes the model's training table's.
+    pub decimal: Option<DecimalMark>,
+    /// The missing-cell markers; `None` takes the model's training table's.
+    pub missing_markers: Option<Vec<String>>,
 }
 
 impl Default for FeatureOptions {
@@ -74,27 +79,39 @@ impl Default for FeatureOptions {
         FeatureOptions {
             ignore_extra: false,
             target: TargetColumn::Skip,
-            missing: Missing::Error,
-            delimiter: b',',
+            missing: None,
+            delimiter: Delimiter::Auto,
+            decimal: None,
+            missing_markers: None,
         }
     }
 }
 
 /// Rows read for a model: raw (unscaled) features in the model's input
-/// order, ready for [`Model::predict`] and friends, which scale them.
+/// order, ready for [`Model::predict`] and friends, which fill missing
+/// cells (a model fitted with imputation) and scale them.
 #[derive(Clone, Debug, PartialEq)]
 pub struct FeatureTable {
-    /// One row per kept CSV row, one column per model feature (unscaled).
+    /// One row per kept CSV row, one column per model feature (unscaled;
+    /// NaN where a cell is missing and the model imputes).
     pub features: Array2<f64>,
     /// The target, when it was read: class indices into the model's class
     /// names, or values (one column per model output).
     pub target: Option<Target>,
     /// The 1-based file line of each row.
     pub lines: Vec<u64>,
-    /// Rows dropped because of missing cells ([`Missing::Drop`]).
+    /// Rows dropped because of missing cells ([`Missing::Drop`], or a
+    /// missing target when scoring).
     pub dropped_rows: usize,
+    /// Missing feature cells left for the model to fill.
+    pub missing_cells: usize,
+    /// The model's ID columns, when the file has them.
+    pub ids: Option<RowIds>,
     /// Header columns the model does not use, when they were allowed.
     pub ignored_columns: Vec<String>,
+    /// What the reader decided (the delimiter, ID columns not found), one
+    /// sentence each.
+    pub decisions: Vec<Message>,
     /// Where the rows came from, for messages.
     pub source: String,
 }
@@ -134,6 +151,9 @@ impl FeatureTable {
             target,
             source: self.source,
             dropped_rows: self.dropped_rows,
+            missing_cells: self.missing_cells,
+            ids: self.ids,
+            report: None,
         })
     }
 }
@@ -153,14 +173,37 @@ impl FeatureOptions {
 
     /// Sets the missing-cell policy.
     pub fn missing(mut self, missing: Missing) -> Self {
-        self.missing = missing;
+        self.missing = Some(missing);
         self
     }
 
     /// Sets the field delimiter.
-    pub fn delimiter(mut self, delimiter: u8) -> Self {
+    pub fn delimiter(mut self, delimiter: Delimiter) -> Self {
         self.delimiter = delimiter;
         self
+    }
+
+    /// Sets the decimal mark.
+    pub fn decimal(mut self, decimal: DecimalMark) -> Self {
+        self.decimal = Some(decimal);
+        self
+    }
+
+    /// Sets the missing-cell markers.
+    pub fn missing_markers(mut self, markers: &[&str]) -> Self {
+        self.missing_markers = Some(markers.iter().map(|s| s.to_string()).collect());
+        self
+    }
+
+    /// Checks the options that do not need a file.
+    ///
+    /// # Errors
+    /// A marker that is empty or a number.
+    pub fn validate(&self) -> Result<()> {
+        if let Some(m) = &self.missing_markers {
+            CellRules::check_markers(m)?;
+        }
+        Ok(())
     }
 
     /// Reads a CSV file's rows for `model`.
@@ -199,65 +242,106 @@ impl FeatureOptions {
         reader: R,
         name: &Path,
     ) -> Result<FeatureTable> {
+        self.validate()?;
+        let missing = match self.missing {
+            Some(Missing::Impute) if model.imputer.is_none() => {
+                return Err(Error::option(
+                    "missing",
+                    Missing::Impute,
+                    "the model was fitted without imputation, so it has no fill values; fit it with missing cells imputed, or drop the rows with missing cells",
+                ))
+            }
+            Some(m) => m,
+            None if model.imputer.is_some() => Missing::Impute,
+            None => Missing::Error,
+        };
+        let rules = CellRules::new(
+            self.decimal.unwrap_or(model.cell_rules.decimal),
+            Some(
+                self.missing_markers
+                    .as_deref()
+                    .unwrap_or(&model.cell_rules.markers),
+            ),
+        );
+        let mut rdr = RowReader::open(reader, name, self.delimiter, rules)?;
         let path = name;
-        let mut rdr = csv_reader(reader, self.delimiter);
-        let mut record = csv::StringRecord::new();
-        read_header_record(&mut rdr, &mut record, path)?;
-        let names = header_names(&record, path)?;
+        let names = rdr.names().to_vec();
         let plan = Plan::new(model, &names, self, path)?;
-        let width = names.len();
+        let mut decisions = Vec::new();
+        if let Some(d) = rdr.detected() {
+            decisions.push(Message::new(d));
+        }
+        if !plan.absent_ids.is_empty() {
+            decisions.push(Message::new(format!(
+                "the model's ID column{} {} not in the file; rows are named by line only",
+                if plan.absent_ids.len() == 1 { "" } else { "s" },
+                plan.absent_ids.join(", ")
+            )));
+        }
         let n_features = model.feature_names.len();
         let mut features: Vec<f64> = Vec::new();
         let mut labels: Vec<usize> = Vec::new();
         let mut values: Vec<f64> = Vec::new();
         let mut lines: Vec<u64> = Vec::new();
+        let mut ids = (!plan.ids.is_empty()).then(|| RowIds {
+            names: plan.ids.iter().map(|&(_, n)| n.to_string()).collect(),
+            values: Vec::new(),
+        });
         let mut dropped = 0usize;
+        let mut missing_cells = 0usize;
         let mut row = vec![0.0; n_features];
-        'rows: while let Some(line) = next_row(&mut rdr, &mut record, path, width)? {
+        'rows: while let Some(line) = rdr.next_row()? {
             // Sizes and missing cells first, so a dropped row leaves nothing behind.
-            for &(index, column) in &plan.used {
-                let cell = &record[index];
-                check_cell_size(cell, path, line, column, index)?;
-                if is_missing(cell) {
-                    match self.missing {
-                        Missing::Error => {
-                            return Err(Error::new(ErrorKind::MissingValue {
-                                path: path.to_path_buf(),
-                                line,
-                                column: column.to_string(),
+            for &(index, is_target) in &plan.used {
+                let cell = rdr.cell(index, line)?;
+                if rdr.cells.is_missing(cell) {
+                    match (missing, is_target) {
+                        (Missing::Error, _) => {
+                            return Err(rdr.missing_error(
                                 index,
-                                value: cell.to_string(),
-                            }))
+                                line,
+                                !is_target && model.imputer.is_some(),
+                            ))
                         }
-                        Missing::Drop => {
+                        (Missing::Drop, _) | (Missing::Impute, true) => {
                             dropped += 1;
                             continue 'rows;
                         }
+                        (Missing::Impute, false) => {}
                     }
                 }
             }
+            for &(index, _) in &plan.ids {
+                rdr.cell(index, line)?;
+            }
             row.fill(0.0);
             for col in &plan.columns {
-                let cell = &record[col.index];
-                let bad = |reason: String| {
-                    Error::new(ErrorKind::BadValue {
-                        path: path.to_path_buf(),
-                        line,
-                        column: col.name.to_string(),
-                        index: col.index,
-                        value: cell.to_string(),
-                        reason,
-                    })
-                };
-                match &col.levels {
-                    None => row[col.offset] = number(cell).map_err(bad)?,
-                    Some(levels) => match levels.get(cell.trim()) {
+                let cell = rdr.cell(col.index, line)?;
+                let absent = rdr.cells.is_missing(cell);
+                match &col.kind {
+                    Kind::Indicator => row[col.offset] = if absent { 1.0 } else { 0.0 },
+                    _ if absent => {
+                        missing_cells += 1;
+                        let width = match &col.kind {
+                            Kind::Levels(levels) => levels.len(),
+                            _ => 1,
+                        };
+                        row[col.offset..col.offset + width].fill(f64::NAN);
+                    }
+                    Kind::Number => {
+                        row[col.offset] = rdr.number(col.index, line, "the model's column is numeric")?
+                    }
+                    Kind::Levels(levels) => match levels.get(cell.trim()) {
                         Some(&k) => row[col.offset + k] = 1.0,
                         None => {
-                            return Err(bad(format!(
-                                "the model knows only the levels {} of this column; a new category cannot be encoded",
-                                list(col.known)
-                            )))
+                            return Err(rdr.bad_value(
+                                col.index,
+                                line,
+                                format!(
+                                    "the model knows only the levels {} of this column; a new category cannot be encoded",
+                                    list(col.known)
+                                ),
+                            ))
                         }
                     },
                 }
@@ -265,44 +349,31 @@ impl FeatureOptions {
             features.extend_from_slice(&row);
             match &plan.target {
                 None => {}
-                Some(TargetPlan::Classes {
-                    index,
-                    column,
-                    classes,
-                }) => {
-                    let cell = &record[*index];
+                Some(TargetPlan::Classes { index, classes }) => {
+                    let cell = rdr.cell(*index, line)?;
                     match classes.get(cell.trim()) {
                         Some(&k) => labels.push(k),
                         None => {
-                            return Err(Error::new(ErrorKind::BadValue {
-                                path: path.to_path_buf(),
+                            return Err(rdr.bad_value(
+                                *index,
                                 line,
-                                column: column.to_string(),
-                                index: *index,
-                                value: cell.to_string(),
-                                reason: format!(
+                                format!(
                                 "the model knows only the classes {}; a new class cannot be scored",
                                 list(&model.target_names)
                             ),
-                            }))
+                            ))
                         }
                     }
                 }
                 Some(TargetPlan::Values { columns }) => {
-                    for &(index, column) in columns {
-                        let cell = &record[index];
-                        let v = number(cell).map_err(|reason| {
-                            Error::new(ErrorKind::BadValue {
-                                path: path.to_path_buf(),
-                                line,
-                                column: column.to_string(),
-                                index,
-                                value: cell.to_string(),
-                                reason,
-                            })
-                        })?;
-                        values.push(v);
+                    for &index in columns {
+                        values.push(rdr.number(index, line, "the model's target is numeric")?);
                     }
+                }
+            }
+            if let Some(ids) = ids.as_mut() {
+                for &(index, _) in &plan.ids {
+                    ids.values.push(rdr.cell(index, line)?.trim().to_string());
                 }
             }
             lines.push(line);
@@ -317,10 +388,27 @@ impl FeatureOptions {
                 "the file has a header but no data rows; add one row per sample below the header"
                     .to_string()
             };
-            return Err(Error::new(ErrorKind::NoRows {
+            return Err(Error::new(crate::ErrorKind::NoRows {
                 path: path.to_path_buf(),
                 reason,
             }));
+        }
+        if dropped > 0 {
+            decisions.push(Message::new(format!(
+                "dropped {dropped} row{} with a missing cell{}",
+                if dropped == 1 { "" } else { "s" },
+                if missing == Missing::Impute {
+                    " in the target (targets are never imputed)"
+                } else {
+                    ""
+                }
+            )));
+        }
+        if missing_cells > 0 {
+            decisions.push(Message::new(format!(
+                "{missing_cells} missing cell{} filled with the model's fill values (learnt from its training rows)",
+                if missing_cells == 1 { "" } else { "s" }
+            )));
         }
         let target = match &plan.target {
             None => None,
@@ -340,21 +428,13 @@ impl FeatureOptions {
             target,
             lines,
             dropped_rows: dropped,
+            missing_cells,
+            ids,
             ignored_columns: plan.ignored,
+            decisions,
             source: path.display().to_string(),
         })
     }
-}
-
-/// A numeric cell, or the reason it is not one.
-fn number(cell: &str) -> std::result::Result<f64, String> {
-    parse_number(cell).ok_or_else(|| {
-        if cell.trim().parse::<f64>().is_ok() {
-            "is not a finite number; measurements must be finite (check the exporter's overflow marker)".to_string()
-        } else {
-            "cannot read the cell as a number, and the model's column is numeric".to_string()
-        }
-    })
 }
 
 /// Names joined by ", ", cut after 30.
@@ -367,15 +447,21 @@ fn list<S: AsRef<str>>(names: &[S]) -> String {
     out.join(", ")
 }
 
-/// One model source column found in the header.
+/// How one model input column is read.
+enum Kind<'m> {
+    Number,
+    /// One-hot: level -> position.
+    Levels(HashMap<&'m str, usize>),
+    Indicator,
+}
+
+/// One model encoding found in the header.
 struct ColumnPlan<'m> {
-    name: &'m str,
     /// Position in the header.
     index: usize,
     /// First feature column it fills.
     offset: usize,
-    /// One-hot: level -> position; `None` for numeric columns.
-    levels: Option<HashMap<&'m str, usize>>,
+    kind: Kind<'m>,
     /// One-hot levels in order, for messages.
     known: &'m [String],
 }
@@ -383,11 +469,10 @@ struct ColumnPlan<'m> {
 enum TargetPlan<'m> {
     Classes {
         index: usize,
-        column: &'m str,
         classes: HashMap<&'m str, usize>,
     },
     Values {
-        columns: Vec<(usize, &'m str)>,
+        columns: Vec<usize>,
     },
 }
 
@@ -395,8 +480,12 @@ enum TargetPlan<'m> {
 struct Plan<'m> {
     columns: Vec<ColumnPlan<'m>>,
     target: Option<TargetPlan<'m>>,
-    /// Every cell read in a row: (header index, name).
-    used: Vec<(usize, &'m str)>,
+    /// Every cell read in a row that may be missing: (header index, is it
+    /// the target).
+    used: Vec<(usize, bool)>,
+    /// The model's ID columns found: (header index, name).
+    ids: Vec<(usize, &'m str)>,
+    absent_ids: Vec<&'m str>,
     ignored: Vec<String>,
 }
 
@@ -418,10 +507,11 @@ impl<'m> Plan<'m> {
         for enc in &model.columns {
             match index.get(enc.name()) {
                 Some(&i) => {
-                    let (levels, known): (_, &[String]) = match enc {
-                        ColumnEncoding::Numeric { .. } => (None, &[]),
+                    let (kind, known): (Kind<'m>, &'m [String]) = match enc {
+                        ColumnEncoding::Numeric { .. } => (Kind::Number, &[]),
+                        ColumnEncoding::MissingIndicator { .. } => (Kind::Indicator, &[]),
                         ColumnEncoding::OneHot { levels, .. } => (
-                            Some(
+                            Kind::Levels(
                                 levels
                                     .iter()
                                     .enumerate()
@@ -432,14 +522,17 @@ impl<'m> Plan<'m> {
                         ),
                     };
                     columns.push(ColumnPlan {
-                        name: enc.name(),
                         index: i,
                         offset,
-                        levels,
+                        kind,
                         known,
                     });
                 }
-                None => missing.push(enc.name().to_string()),
+                None => {
+                    if !missing.iter().any(|m| m == enc.name()) {
+                        missing.push(enc.name().to_string());
+                    }
+                }
             }
             offset += enc.width();
         }
@@ -469,9 +562,19 @@ impl<'m> Plan<'m> {
                 !present.is_empty()
             }
         };
+        let mut ids = Vec::new();
+        let mut absent_ids = Vec::new();
+        for n in &model.ids {
+            match index.get(n.as_str()) {
+                Some(&i) => ids.push((i, n.as_str())),
+                None => absent_ids.push(n.as_str()),
+            }
+        }
         let extra: Vec<String> = names
             .iter()
-            .filter(|n| !is_feature(n) && !target_names.contains(&n.as_str()))
+            .filter(|n| {
+                !is_feature(n) && !target_names.contains(&n.as_str()) && !model.ids.contains(n)
+            })
             .cloned()
             .collect();
         let at = format!("{}: line 1", path.display());
@@ -491,21 +594,17 @@ impl<'m> Plan<'m> {
             return Err(Error::input(
                 at,
                 format!(
-                    "the file has columns the model does not use: {}; remove them, or allow them with FeatureOptions::ignore_extra(true)",
-                    list(&extra)
+                    "the file has columns the model does not use: {}; remove them, or allow them with {}",
+                    list(&extra),
+                    opt("ignore_extra")
                 ),
             ));
         }
         let target = if read_target {
-            let found: Vec<(usize, &'m str)> = present
-                .iter()
-                .zip(&target_names)
-                .map(|(p, n)| (p.expect("present"), *n))
-                .collect();
+            let found: Vec<usize> = present.iter().map(|p| p.expect("present")).collect();
             Some(if model.is_classifier {
                 TargetPlan::Classes {
-                    index: found[0].0,
-                    column: found[0].1,
+                    index: found[0],
                     classes: model
                         .target_names
                         .iter()
@@ -519,16 +618,23 @@ impl<'m> Plan<'m> {
         } else {
             None
         };
-        let mut used: Vec<(usize, &'m str)> = columns.iter().map(|c| (c.index, c.name)).collect();
+        let mut used: Vec<(usize, bool)> = Vec::new();
+        for c in &columns {
+            if !matches!(c.kind, Kind::Indicator) && !used.iter().any(|&(i, _)| i == c.index) {
+                used.push((c.index, false));
+            }
+        }
         match &target {
-            Some(TargetPlan::Classes { index, column, .. }) => used.push((*index, column)),
-            Some(TargetPlan::Values { columns }) => used.extend(columns.iter().copied()),
+            Some(TargetPlan::Classes { index, .. }) => used.push((*index, true)),
+            Some(TargetPlan::Values { columns }) => used.extend(columns.iter().map(|&i| (i, true))),
             None => {}
         }
         Ok(Plan {
             columns,
             target,
             used,
+            ids,
+            absent_ids,
             ignored: extra,
         })
     }

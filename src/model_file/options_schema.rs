@@ -9,7 +9,7 @@
 //! ignored.
 
 use crate::data::Scaling;
-use crate::fit::FitOptions;
+use crate::fit::{ClassWeights, FitOptions};
 use crate::network::{Activation, Arithmetic, Head, Init, Precision};
 use crate::train::{BatchSize, EarlyStopping, Loss, Optimiser, Schedule, TrainingOptions};
 use serde::{Deserialize, Serialize};
@@ -24,6 +24,10 @@ pub(crate) struct OptionsV2 {
     pub head: Option<String>,
     pub init: String,
     pub scaling: String,
+    #[serde(default = "standardise")]
+    pub target_scaling: String,
+    #[serde(default = "no_weights")]
+    pub class_weights: String,
     pub validation_share: Option<f64>,
     pub restarts: usize,
     pub precision: String,
@@ -57,6 +61,14 @@ pub(crate) struct EarlyStoppingV2 {
     pub min_improvement: f64,
 }
 
+fn standardise() -> String {
+    Scaling::Standardise.to_string()
+}
+
+fn no_weights() -> String {
+    ClassWeights::None.to_string()
+}
+
 fn parse<T: FromStr<Err = crate::Error>>(field: &str, text: &str) -> Result<T, String> {
     text.parse()
         .map_err(|e: crate::Error| format!("\"{field}\": {e}"))
@@ -72,6 +84,8 @@ impl OptionsV2 {
             head: o.head.map(|h| h.to_string()),
             init: o.init.to_string(),
             scaling: o.scaling.to_string(),
+            target_scaling: o.target_scaling.to_string(),
+            class_weights: o.class_weights.to_string(),
             validation_share: o.validation_share,
             restarts: o.restarts,
             precision: o.precision.to_string(),
@@ -105,6 +119,8 @@ impl OptionsV2 {
             head: self.head.map(|h| parse::<Head>("head", &h)).transpose()?,
             init: parse::<Init>("init", &self.init)?,
             scaling: parse::<Scaling>("scaling", &self.scaling)?,
+            target_scaling: parse::<Scaling>("target_scaling", &self.target_scaling)?,
+            class_weights: parse::<ClassWeights>("class_weights", &self.class_weights)?,
             validation_share: self.validation_share,
             restarts: self.restarts,
             precision: parse::<Precision>("precision", &self.precision)?,
@@ -328,6 +344,9 @@ impl OptionsV1 {
                 ScalingV1::Standardise => Scaling::Standardise,
                 ScalingV1::MinMax => Scaling::MinMax,
             },
+            // Version 1 never scaled the target or weighted classes.
+            target_scaling: Scaling::None,
+            class_weights: ClassWeights::None,
             // Version 1 always stated the share, so it is kept as given.
             validation_share: Some(self.validation_fraction),
             restarts: self.restarts,

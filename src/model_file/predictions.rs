@@ -1,5 +1,7 @@
 //! Prediction tables: a model's predictions for the rows of a
-//! [`FeatureTable`] as CSV.
+//! [`FeatureTable`] as CSV: the file line, the model's ID columns (when
+//! the file has them), then the predicted class and each class's
+//! probability, or the predicted values in the target's own units.
 
 use super::FeatureTable;
 use crate::atomic::write_text;
@@ -7,9 +9,13 @@ use crate::error::{Error, Result};
 use crate::fit::Model;
 use std::path::Path;
 
-/// The prediction table's column names for a model.
-pub(crate) fn prediction_columns(model: &Model) -> Vec<String> {
+/// The prediction table's column names for a model and the rows read for
+/// it: the line, the ID columns found, then the predictions.
+pub(crate) fn prediction_columns(model: &Model, table: &FeatureTable) -> Vec<String> {
     let mut cols = vec!["line".to_string()];
+    if let Some(ids) = &table.ids {
+        cols.extend(ids.names().iter().cloned());
+    }
     if model.is_classifier {
         cols.push("predicted".into());
         cols.extend(model.target_names.iter().map(|c| format!("p_{c}")));
@@ -26,7 +32,15 @@ pub(crate) fn prediction_columns(model: &Model) -> Vec<String> {
 pub(crate) fn write_predictions(model: &Model, table: &FeatureTable, out: &Path) -> Result<()> {
     let mut w = csv::Writer::from_writer(Vec::new());
     let io = |e: csv::Error| Error::csv(out, e);
-    w.write_record(prediction_columns(model)).map_err(io)?;
+    w.write_record(prediction_columns(model, table))
+        .map_err(io)?;
+    let ids = |i: usize| -> Vec<String> {
+        table
+            .ids
+            .as_ref()
+            .map(|ids| ids.row(i).to_vec())
+            .unwrap_or_default()
+    };
     if model.is_classifier {
         // One forward pass gives both the classes and the probabilities.
         let out = model.predict(table.x())?;
@@ -34,10 +48,9 @@ pub(crate) fn write_predictions(model: &Model, table: &FeatureTable, out: &Path)
         let classes = crate::network::classes_from_outputs(out.view(), head)?;
         let p = crate::network::probabilities_from_outputs(out, head)?;
         for (i, row) in p.rows().into_iter().enumerate() {
-            let mut rec = vec![
-                table.lines[i].to_string(),
-                model.target_names[classes[i]].clone(),
-            ];
+            let mut rec = vec![table.lines[i].to_string()];
+            rec.extend(ids(i));
+            rec.push(model.target_names[classes[i]].clone());
             rec.extend(row.iter().map(|v| format!("{v}")));
             w.write_record(rec).map_err(io)?;
         }
@@ -45,6 +58,7 @@ pub(crate) fn write_predictions(model: &Model, table: &FeatureTable, out: &Path)
         let out_values = model.predict(table.x())?;
         for (i, row) in out_values.rows().into_iter().enumerate() {
             let mut rec = vec![table.lines[i].to_string()];
+            rec.extend(ids(i));
             rec.extend(row.iter().map(|v| format!("{v}")));
             w.write_record(rec).map_err(io)?;
         }

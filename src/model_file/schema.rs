@@ -5,7 +5,8 @@
 //! [`File`] takes the options schema as a parameter.
 
 use super::options_schema::{OptionsV1, OptionsV2};
-use crate::data::{ColumnEncoding, Scaler, Scaling};
+use crate::data::rows::CellRules;
+use crate::data::{ColumnEncoding, DecimalMark, Imputer, Scaler, Scaling};
 use crate::fit::{FitOptions, Model, Provenance};
 use crate::network::{Activation, Head, Layer, Network, Precision, MAX_PARAMETERS};
 use ndarray::{Array1, Array2};
@@ -50,10 +51,39 @@ pub(super) struct File<O> {
     pub columns: Vec<ColumnV1>,
     pub feature_names: Vec<String>,
     pub scaler: ScalerV1,
+    /// Fill values for missing cells (version 2; a model fitted with
+    /// missing cells imputed).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub imputer: Option<ImputerV2>,
+    /// The target's scaler (version 2; regression with the identity head).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub target_scaler: Option<ScalerV1>,
+    /// How the training table was read (version 2; left out when it is
+    /// the default: no ID columns, a decimal point, the default markers).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub table: Option<TableReadingV2>,
     pub training_options: O,
     pub seed: u64,
     pub provenance: ProvenanceV1,
     pub network: NetworkV1,
+}
+
+#[derive(Debug, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(super) struct ImputerV2 {
+    /// One fill value per feature.
+    pub fill: Vec<f64>,
+}
+
+#[derive(Debug, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(super) struct TableReadingV2 {
+    /// ID columns carried into predictions.
+    pub ids: Vec<String>,
+    /// `point` or `comma`.
+    pub decimal: String,
+    /// The missing-cell markers (besides the empty cell).
+    pub missing_markers: Vec<String>,
 }
 
 #[derive(Debug, Serialize, Deserialize)]
@@ -70,8 +100,17 @@ pub(super) struct TargetV1 {
 #[derive(Debug, Serialize, Deserialize)]
 #[serde(tag = "encoding", rename_all = "snake_case", deny_unknown_fields)]
 pub(super) enum ColumnV1 {
-    Numeric { name: String },
-    OneHot { name: String, levels: Vec<String> },
+    Numeric {
+        name: String,
+    },
+    OneHot {
+        name: String,
+        levels: Vec<String>,
+    },
+    /// Version 2: a 0/1 column, 1 where the named column's cell is missing.
+    MissingIndicator {
+        name: String,
+    },
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
@@ -104,6 +143,16 @@ pub(super) struct ProvenanceV1 {
     pub best_validation_loss: Option<f64>,
     pub stopped_early: bool,
     pub final_training_loss: f64,
+    /// How a sweep chose the options (version 2 only; absent otherwise).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub selected_by: Option<String>,
+    /// Version 2: the baseline's losses and the fit's warnings.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub baseline_training_loss: Option<f64>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub baseline_validation_loss: Option<f64>,
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub warnings: Vec<String>,
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
@@ -278,17 +327,33 @@ impl File<OptionsV2> {
                         name: name.clone(),
                         levels: levels.clone(),
                     },
+                    ColumnEncoding::MissingIndicator { name } => {
+                        ColumnV1::MissingIndicator { name: name.clone() }
+                    }
                 })
                 .collect(),
             feature_names: model.feature_names.clone(),
             scaler: ScalerV1 {
-                kind: match model.scaler.kind() {
-                    Scaling::None => ScalingV1::None,
-                    Scaling::Standardise => ScalingV1::Standardise,
-                    Scaling::MinMax => ScalingV1::MinMax,
-                },
+                kind: scaling_v1(model.scaler.kind()),
                 offset: model.scaler.offsets().to_vec(),
                 scale: model.scaler.scales().to_vec(),
+            },
+            imputer: model.imputer.as_ref().map(|i| ImputerV2 {
+                fill: i.fill_values().to_vec(),
+            }),
+            target_scaler: model.target_scaler.as_ref().map(|t| ScalerV1 {
+                kind: scaling_v1(t.kind()),
+                offset: t.offsets().to_vec(),
+                scale: t.scales().to_vec(),
+            }),
+            table: {
+                let r = &model.cell_rules;
+                let default = CellRules::new(DecimalMark::Point, None);
+                (!model.ids.is_empty() || *r != default).then(|| TableReadingV2 {
+                    ids: model.ids.clone(),
+                    decimal: r.decimal.to_string(),
+                    missing_markers: r.markers.clone(),
+                })
             },
             training_options: OptionsV2::from_options(&model.options),
             seed: model.seed,
@@ -304,9 +369,29 @@ impl File<OptionsV2> {
                 best_validation_loss: p.best_validation_loss,
                 stopped_early: p.stopped_early,
                 final_training_loss: p.final_training_loss,
+                selected_by: p.selected_by.clone(),
+                baseline_training_loss: p.baseline_training_loss,
+                baseline_validation_loss: p.baseline_validation_loss,
+                warnings: p.warnings.clone(),
             },
             network,
         }
+    }
+}
+
+fn scaling_v1(s: Scaling) -> ScalingV1 {
+    match s {
+        Scaling::None => ScalingV1::None,
+        Scaling::Standardise => ScalingV1::Standardise,
+        Scaling::MinMax => ScalingV1::MinMax,
+    }
+}
+
+fn scaling_of(s: ScalingV1) -> Scaling {
+    match s {
+        ScalingV1::None => Scaling::None,
+        ScalingV1::Standardise => Scaling::Standardise,
+        ScalingV1::MinMax => Scaling::MinMax,
     }
 }
 
@@ -330,7 +415,94 @@ impl<O: OptionsSchema> File<O> {
         self.check_columns()?;
         self.check_scaler()?;
         self.check_target()?;
+        self.check_version_2_parts()?;
         self.check_provenance()
+    }
+
+    /// The imputer, the target scaler and the table reading (version 2).
+    fn check_version_2_parts(&self) -> Result<(), String> {
+        if O::VERSION < 2
+            && (self.imputer.is_some()
+                || self.target_scaler.is_some()
+                || self.table.is_some()
+                || self
+                    .columns
+                    .iter()
+                    .any(|c| matches!(c, ColumnV1::MissingIndicator { .. })))
+        {
+            return Err("the file is version 1 but holds parts of version 2 (\"imputer\", \"target_scaler\", \"table\" or a missing_indicator column)".into());
+        }
+        let n = self.feature_names.len();
+        if let Some(i) = &self.imputer {
+            if i.fill.len() != n {
+                return Err(format!(
+                    "\"imputer\" has {} fill values, but the model has {n} features",
+                    i.fill.len()
+                ));
+            }
+            if let Some(k) = first_non_finite(&i.fill) {
+                return Err(format!(
+                    "\"imputer\": fill value {k} is not a finite number"
+                ));
+            }
+            let mut offset = 0;
+            for c in &self.columns {
+                let enc = to_encoding(c);
+                if let ColumnV1::OneHot { name, levels } = c {
+                    let part = &i.fill[offset..offset + levels.len()];
+                    if part.iter().filter(|&&v| v == 1.0).count() != 1
+                        || part.iter().any(|&v| v != 0.0 && v != 1.0)
+                    {
+                        return Err(format!(
+                            "\"imputer\": the fill values of column \"{name}\" are not one level's 0/1 row"
+                        ));
+                    }
+                }
+                offset += enc.width();
+            }
+        } else if self
+            .columns
+            .iter()
+            .any(|c| matches!(c, ColumnV1::MissingIndicator { .. }))
+        {
+            return Err("\"columns\" hold a missing_indicator column, but the model has no \"imputer\" to fill the cells it marks".into());
+        }
+        if let Some(t) = &self.target_scaler {
+            let outputs = *self.network.layer_sizes.last().expect("checked: two sizes");
+            if self.target.is_classifier {
+                return Err("\"target_scaler\" is given, but the model is a classifier".into());
+            }
+            if t.offset.len() != outputs || t.scale.len() != outputs {
+                return Err(format!(
+                    "\"target_scaler\" has {} offsets and {} scales, but the network has {outputs} outputs",
+                    t.offset.len(),
+                    t.scale.len()
+                ));
+            }
+            if let Some(k) = first_non_finite(&t.offset) {
+                return Err(format!(
+                    "\"target_scaler\": offset {k} is not a finite number"
+                ));
+            }
+            if let Some(k) = t.scale.iter().position(|v| !v.is_finite() || *v == 0.0) {
+                return Err(format!(
+                    "\"target_scaler\": scale {} is {}; every scale must be a finite number other than 0",
+                    k + 1,
+                    t.scale[k]
+                ));
+            }
+        }
+        if let Some(t) = &self.table {
+            t.decimal
+                .parse::<DecimalMark>()
+                .map_err(|e| format!("\"table\": \"decimal\": {e}"))?;
+            CellRules::check_markers(&t.missing_markers)
+                .map_err(|e| format!("\"table\": \"missing_markers\": {e}"))?;
+            if let Some(c) = first_repeat(&t.ids) {
+                return Err(format!("\"table\": ID column \"{c}\" appears twice"));
+            }
+        }
+        Ok(())
     }
 
     fn check_network(&self) -> Result<(), String> {
@@ -437,10 +609,28 @@ impl<O: OptionsSchema> File<O> {
                     ));
                 }
             }
-            names.push(column_name(c).to_string());
+            if !matches!(c, ColumnV1::MissingIndicator { .. }) {
+                names.push(column_name(c).to_string());
+            }
         }
         if let Some(n) = first_repeat(&names) {
             return Err(format!("\"columns\": column \"{n}\" appears twice"));
+        }
+        let indicators: Vec<String> = self
+            .columns
+            .iter()
+            .filter(|c| matches!(c, ColumnV1::MissingIndicator { .. }))
+            .map(|c| column_name(c).to_string())
+            .collect();
+        if let Some(n) = first_repeat(&indicators) {
+            return Err(format!(
+                "\"columns\": the missing indicator of \"{n}\" appears twice"
+            ));
+        }
+        if let Some(n) = indicators.iter().find(|n| !names.contains(n)) {
+            return Err(format!(
+                "\"columns\": a missing indicator names \"{n}\", which is not one of the columns"
+            ));
         }
         let encoded: Vec<String> = self
             .columns
@@ -628,16 +818,39 @@ impl<O: OptionsSchema> File<O> {
             .map_err(|e| format!("\"training_options\": {e}"))?;
         let t = self.target;
         let p = self.provenance;
-        let kind = match self.scaler.kind {
-            ScalingV1::None => Scaling::None,
-            ScalingV1::Standardise => Scaling::Standardise,
-            ScalingV1::MinMax => Scaling::MinMax,
+        let scaler = Scaler::from_parts(
+            scaling_of(self.scaler.kind),
+            self.scaler.offset,
+            self.scaler.scale,
+        )
+        .map_err(|e| format!("\"scaler\": {e}"))?;
+        let imputer = self
+            .imputer
+            .map(|i| Imputer::from_parts(i.fill))
+            .transpose()
+            .map_err(|e| format!("\"imputer\": {e}"))?;
+        let target_scaler = self
+            .target_scaler
+            .map(|t| Scaler::from_parts(scaling_of(t.kind), t.offset, t.scale))
+            .transpose()
+            .map_err(|e| format!("\"target_scaler\": {e}"))?;
+        let (ids, cell_rules) = match self.table {
+            Some(t) => (
+                t.ids,
+                CellRules::new(
+                    t.decimal.parse().expect("checked"),
+                    Some(&t.missing_markers),
+                ),
+            ),
+            None => (Vec::new(), CellRules::new(DecimalMark::Point, None)),
         };
-        let scaler = Scaler::from_parts(kind, self.scaler.offset, self.scaler.scale)
-            .map_err(|e| format!("\"scaler\": {e}"))?;
         Ok(Model {
             network,
             scaler,
+            imputer,
+            target_scaler,
+            ids,
+            cell_rules,
             columns: self.columns.iter().map(to_encoding).collect(),
             feature_names: self.feature_names,
             target_name: t.name,
@@ -660,6 +873,10 @@ impl<O: OptionsSchema> File<O> {
                 best_validation_loss: p.best_validation_loss,
                 stopped_early: p.stopped_early,
                 final_training_loss: p.final_training_loss,
+                selected_by: p.selected_by,
+                baseline_training_loss: p.baseline_training_loss,
+                baseline_validation_loss: p.baseline_validation_loss,
+                warnings: p.warnings,
             },
         })
     }
@@ -667,7 +884,9 @@ impl<O: OptionsSchema> File<O> {
 
 fn column_name(c: &ColumnV1) -> &str {
     match c {
-        ColumnV1::Numeric { name } | ColumnV1::OneHot { name, .. } => name,
+        ColumnV1::Numeric { name }
+        | ColumnV1::OneHot { name, .. }
+        | ColumnV1::MissingIndicator { name } => name,
     }
 }
 
@@ -678,6 +897,9 @@ fn to_encoding(c: &ColumnV1) -> ColumnEncoding {
             name: name.clone(),
             levels: levels.clone(),
         },
+        ColumnV1::MissingIndicator { name } => {
+            ColumnEncoding::MissingIndicator { name: name.clone() }
+        }
     }
 }
 

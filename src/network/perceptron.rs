@@ -214,13 +214,27 @@ impl Network {
     /// # Errors
     /// When `x` has the wrong number of columns.
     pub fn predict(&self, x: ArrayView2<'_, f64>) -> Result<Array2<f64>> {
+        self.outputs_through(x, self.head)
+    }
+
+    /// The output layer's sums for each row of `x`, before the head (the
+    /// logits of a classifier; the same as [`Network::predict`] for the
+    /// identity head).
+    ///
+    /// # Errors
+    /// As [`Network::predict`].
+    pub fn output_sums(&self, x: ArrayView2<'_, f64>) -> Result<Array2<f64>> {
+        self.outputs_through(x, Head::Identity)
+    }
+
+    fn outputs_through(&self, x: ArrayView2<'_, f64>, head: Head) -> Result<Array2<f64>> {
         self.check_inputs(x)?;
         let out = match self.precision {
             Precision::F64 => {
-                Params::<f64>::from_layers(&self.layers).predict(x, self.activation, self.head)
+                Params::<f64>::from_layers(&self.layers).predict(x, self.activation, head)
             }
             Precision::F32 => {
-                Params::<f32>::from_layers(&self.layers).predict(x, self.activation, self.head)
+                Params::<f32>::from_layers(&self.layers).predict(x, self.activation, head)
             }
         };
         // A finite input can still overflow a layer (a value far outside

@@ -63,12 +63,13 @@ fn analyse(data: Dataset, options: &FitOptions, seed: u64) -> Result<Analysis> {
         Some(Scores::of(fitted.model(), &data.select(&split.validation))?.0)
     };
     let learning_curves = fitted.learning_curves_chart()?;
+    let filled = fitted.model().filled(&data)?;
     let decision_map = match (
         fitted.model().is_classifier(),
-        crate::chart::decision_features(&data),
+        crate::chart::decision_features(&filled),
     ) {
         (true, Some((x, y))) => {
-            let train = data.select(&split.train);
+            let train = filled.select(&split.train);
             Some(fitted.model().decision_map_chart(&train, &x, &y)?)
         }
         _ => None,

@@ -3,9 +3,12 @@
 //! for chart folders, report pages and the demo.
 
 use crate::chart::{decision_features, Chart, ChartOptions, HiddenView};
-use crate::data::Dataset;
+use crate::data::{Dataset, ScoredRows};
 use crate::error::Result;
 use crate::fit::Fitted;
+use crate::rng::seeded_rng;
+use crate::validate::importance::ImportanceOptions;
+use crate::validate::metrics::Binning;
 use crate::validate::{CrossValidation, Metric, Scores};
 
 /// A chart, its file name (without `.svg`) and its caption.
@@ -23,11 +26,6 @@ fn exhibit(file: &'static str, caption: impl Into<String>, chart: Result<Chart>)
     }
 }
 
-/// The rows of a fit a chart of what the model learned is drawn on.
-const TRAINING_ROWS: &str = "training rows";
-/// The rows that chose the stopping epoch and the restart.
-pub(crate) const VALIDATION_ROWS: &str = "validation rows";
-
 /// Every chart of one fit. A chart that does not apply (ROC for a
 /// regression model) comes back as an error of kind `InvalidInput`, which
 /// callers skip.
@@ -35,8 +33,8 @@ pub(crate) fn fit_exhibits(data: &Dataset, fitted: &Fitted) -> Vec<Exhibit> {
     let model = fitted.model();
     let split = fitted.split();
     let train = data.select(&split.train);
-    let on_train = ChartOptions::default().rows(TRAINING_ROWS);
-    let on_validation = ChartOptions::default().rows(VALIDATION_ROWS);
+    let on_train = ChartOptions::default().scored(ScoredRows::Training);
+    let on_validation = ChartOptions::default().scored(ScoredRows::Validation);
     let mut out = vec![
         exhibit(
             "learning-curves",
@@ -98,10 +96,7 @@ pub(crate) fn fit_exhibits(data: &Dataset, fitted: &Fitted) -> Vec<Exhibit> {
         }
     } else {
         let (rows, options) = if split.validation.is_empty() {
-            (
-                train,
-                ChartOptions::default().rows("training rows (in-sample)"),
-            )
+            (train, ChartOptions::default().scored(ScoredRows::InSample))
         } else {
             (data.select(&split.validation), on_validation)
         };
@@ -128,10 +123,13 @@ pub(crate) fn headline_metric(data: &Dataset) -> Metric {
     }
 }
 
-/// Every chart of a cross-validation.
+/// Every chart of a cross-validation: the fold scores, the learning
+/// curves, and what only the out-of-fold rows can say: permutation
+/// importance (shuffles drawn from the fixed seed 1, so a rerun gives the
+/// same chart) and, for classes, the reliability of the probabilities.
 pub(crate) fn cv_exhibits(data: &Dataset, cv: &CrossValidation) -> Vec<Exhibit> {
     let metric = headline_metric(data);
-    vec![
+    let mut out = vec![
         exhibit(
             "cv-scores",
             format!(
@@ -145,7 +143,26 @@ pub(crate) fn cv_exhibits(data: &Dataset, cv: &CrossValidation) -> Vec<Exhibit> 
             "Loss per epoch of every fold's fit; bold lines are medians over the folds up to the epoch where the first fold stopped.",
             cv.learning_curves_chart(),
         ),
-    ]
+    ];
+    let options = ImportanceOptions::default();
+    out.push(exhibit(
+        "permutation-importance",
+        format!(
+            "How much the {} on each fold's held-out rows drops when one input column is shuffled ({} shuffles per fold, a text column's levels together), with its 95% interval across folds; grey where the interval holds zero.",
+            crate::chart::axis_label(metric.name()),
+            options.shuffles
+        ),
+        cv.permutation_importance(data, &options, &mut seeded_rng(1))
+            .and_then(|i| i.chart()),
+    ));
+    if data.labels().is_some() {
+        out.push(exhibit(
+            "reliability",
+            "Reliability of the out-of-fold probabilities: in each of ten bins of equal row counts, the observed share against the mean predicted probability, with 95% Wilson intervals; on the dashed diagonal they agree.",
+            cv.reliability_chart(data, Binning::EqualCount(10)),
+        ));
+    }
+    out
 }
 
 /// The charts of a fit as (file, chart) pairs, for chart folders.

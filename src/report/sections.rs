@@ -4,17 +4,16 @@
 //! hold-out score. The command line's `--report`, the demo's summary and
 //! the notebook's analysis are put together from these.
 
-use super::exhibits::{cv_exhibits, fit_exhibits, Exhibit, VALIDATION_ROWS};
+use super::exhibits::{cv_exhibits, fit_exhibits, Exhibit};
 use super::page::Page;
-use crate::chart::plot::ColumnSummary;
 use crate::chart::{configuration_name, group_digits, named_reading, wilson, ChartOptions};
-use crate::data::{ColumnEncoding, Dataset, Target};
+use crate::data::{Dataset, Target};
 use crate::error::{ErrorKind, Result};
 use crate::fit::Fitted;
 use crate::notebook::{notes, table};
 use crate::validate::{
-    ClassificationMetrics, Comparison, CrossValidation, HoldOutScore, Metric, RegressionMetrics,
-    Scores, Summary, Sweep,
+    ClassificationMetrics, Comparison, CrossValidation, HoldOutScore, RegressionMetrics, Scores,
+    Sweep,
 };
 use ndarray::Array2;
 
@@ -41,37 +40,6 @@ pub(crate) fn add_exhibits(
     Ok(())
 }
 
-/// Each source column of a table as the column overview shows it.
-pub(crate) fn column_summaries(data: &Dataset) -> Vec<ColumnSummary> {
-    let x = data.x();
-    let mut offset = 0;
-    let mut out = Vec::new();
-    for column in data.columns() {
-        let (kind, distinct) = match column {
-            ColumnEncoding::Numeric { .. } => {
-                let mut v: Vec<f64> = x.column(offset).to_vec();
-                v.sort_by(f64::total_cmp);
-                v.dedup();
-                ("numeric".to_string(), v.len())
-            }
-            ColumnEncoding::OneHot { levels, .. } => {
-                let seen = (0..levels.len())
-                    .filter(|&k| x.column(offset + k).iter().any(|&v| v > 0.0))
-                    .count();
-                (format!("text, {} levels", levels.len()), seen)
-            }
-        };
-        out.push(ColumnSummary {
-            name: column.name().to_string(),
-            kind,
-            missing: 0,
-            distinct,
-        });
-        offset += column.width();
-    }
-    out
-}
-
 /// The table: its summary and its columns.
 ///
 /// # Errors
@@ -79,25 +47,26 @@ pub(crate) fn column_summaries(data: &Dataset) -> Vec<ColumnSummary> {
 pub(crate) fn table_section(page: &mut Page, data: &Dataset) -> Result<()> {
     page.section("The table");
     page.html(&data.to_html());
-    let columns = column_summaries(data);
-    let source = crate::chart::source_name(data.source()).to_string();
-    let chart = crate::chart::plot::column_overview(
-        &columns,
-        data.n_rows(),
-        &ChartOptions::titled(format!("Columns of {source}")),
+    let summary = data.summary(None);
+    let (columns, rows_read) = summary.overview();
+    let chart = summary.columns_chart();
+    let missing: usize = columns.iter().map(|c| c.missing).sum();
+    let mut caption = format!(
+        "Each column of the header but the target: its role or decided type, its missing cells and its distinct values in the {} rows read",
+        group_digits(rows_read)
     );
-    let caption = if data.dropped_rows() > 0 {
-        format!(
-            "Each input column's type and distinct values in the {} rows used; {} rows with missing cells were dropped when the table was read, so no missing cells remain.",
-            group_digits(data.n_rows()),
-            group_digits(data.dropped_rows())
-        )
-    } else {
-        format!(
-            "Each input column's type as read and its distinct values in the {} rows (no cell was missing).",
+    caption.push_str(&match (missing, data.dropped_rows()) {
+        (0, _) => " (no cell was missing).".to_string(),
+        (_, 0) => format!(
+            "; {} missing cells were kept and filled when fitting.",
+            group_digits(missing)
+        ),
+        (_, dropped) => format!(
+            "; {} rows with missing cells were dropped, leaving {}.",
+            group_digits(dropped),
             group_digits(data.n_rows())
-        )
-    };
+        ),
+    });
     add_exhibits(
         page,
         vec![Exhibit {
@@ -271,8 +240,9 @@ pub(crate) fn fit_sections(
         };
         page.html(&table(
             &format!(
-                "Scores on the {} {VALIDATION_ROWS}",
-                group_digits(split.validation.len())
+                "Scores on the {} {}",
+                group_digits(split.validation.len()),
+                crate::data::ScoredRows::Validation.label()
             ),
             &["score", "model", "95% interval", "baseline"],
             &rows,
@@ -294,17 +264,6 @@ pub(crate) fn fit_sections(
 }
 
 /// Per-fold baseline values of `metric` over a cross-validation's folds.
-fn baseline_folds(data: &Dataset, cv: &CrossValidation, metric: Metric) -> Result<Vec<f64>> {
-    cv.folds
-        .iter()
-        .map(|fold| {
-            let held: std::collections::BTreeSet<usize> = fold.test_rows.iter().copied().collect();
-            let train: Vec<usize> = (0..data.n_rows()).filter(|r| !held.contains(r)).collect();
-            baseline_scores(data, &train, &fold.test_rows)?.value(metric)
-        })
-        .collect()
-}
-
 /// A cross-validation: every metric's mean and interval next to the
 /// baseline's on the same folds, and its charts.
 ///
@@ -330,8 +289,7 @@ pub(crate) fn cv_section(
     ));
     let mut rows = Vec::new();
     for s in &cv.summary {
-        let base = baseline_folds(data, cv, s.metric)?;
-        let b = Summary::from_values(&base)?;
+        let b = &s.baseline;
         rows.push(vec![
             s.metric.name().replace('_', " "),
             fmt(s.summary.mean),
@@ -341,11 +299,15 @@ pub(crate) fn cv_section(
         ]);
     }
     page.html(&table(
-        &format!("Scores on the held-out rows of {} folds", cv.folds.len()),
+        &format!(
+            "Scores on the {} of {} folds",
+            cv.scored_rows().label(),
+            cv.folds.len()
+        ),
         &[
             "score",
             "model mean",
-            "95% interval (t)",
+            "95% interval",
             "baseline mean",
             "baseline interval",
         ],
@@ -365,12 +327,12 @@ pub(crate) fn cv_section(
 ///
 /// # Errors
 /// A scoring or charting error.
-pub(crate) fn sweep_section(page: &mut Page, data: &Dataset, sweep: &Sweep) -> Result<()> {
+pub(crate) fn sweep_section(page: &mut Page, sweep: &Sweep) -> Result<()> {
     page.section("Sweep");
     let metric = sweep.table.metric;
     page.html(&sweep.table.to_html());
     if let Some(first) = sweep.table.rows.first() {
-        let b = Summary::from_values(&baseline_folds(data, &first.cross_validation, metric)?)?;
+        let b = &first.cross_validation.metric(metric)?.baseline;
         page.html(&notes(&[
             format!(
                 "Baseline on the same folds (training class shares, or the training mean): {} {} {}.",
@@ -448,7 +410,7 @@ pub(crate) fn holdout_section(
 ) -> Result<()> {
     page.section("One look at the held-out test rows");
     page.html(&score.to_html());
-    let options = ChartOptions::default().rows("held-out test rows");
+    let options = ChartOptions::default().scored(score.scored_rows());
     let mut exhibits = Vec::new();
     if let Scores::Classification(m) = &score.scores {
         exhibits.push(Exhibit {
@@ -509,7 +471,7 @@ pub(crate) fn sweep_report(data: &Dataset, sweep: &Sweep, footer: Vec<String>) -
         crate::chart::source_name(data.source())
     ));
     table_section(&mut page, data)?;
-    sweep_section(&mut page, data, sweep)?;
+    sweep_section(&mut page, sweep)?;
     Ok(page.finish(&lede(), &footer))
 }
 
@@ -571,7 +533,7 @@ mod tests {
                 drawn += 1;
             }
         }
-        assert_eq!(drawn, 10, "learning curves, weights, decision map, components, hidden layer, 3 validation charts, 2 cv charts");
+        assert_eq!(drawn, 12, "learning curves, weights, decision map, components, hidden layer, 3 validation charts, 4 cv charts (scores, learning curves, importance, reliability)");
         let sensors = CsvOptions::new("power_kw")
             .drop(&["run_id", "condition"])
             .read_str(

@@ -45,6 +45,8 @@ pub(crate) struct Backprop<F: Real> {
     pub targets: Vec<F>,
     pub deltas: Vec<Vec<F>>,
     pub grad: Vec<F>,
+    /// Each gathered row's loss weight, when rows are weighted.
+    pub row_weights: Option<Vec<F>>,
     /// Transposed weights of one layer (for the fixed-order kernel).
     wt: Vec<F>,
 }
@@ -62,13 +64,22 @@ impl<F: Real> Backprop<F> {
                 .map(|&(_, o)| vec![F::zero(); capacity * o])
                 .collect(),
             grad: vec![F::zero(); params.data.len()],
+            row_weights: None,
             wt: vec![F::zero(); widest],
         }
     }
 
-    /// Gathers rows `rows` of `x` and `y` (row-major, already in `F`) into
-    /// the buffers.
-    pub fn gather(&mut self, x: &[F], y: &[F], rows: &[usize]) {
+    /// Gathers rows `rows` of `x` and `y` (row-major, already in `F`), and
+    /// their loss weights when rows are weighted, into the buffers.
+    pub fn gather(&mut self, x: &[F], y: &[F], w: Option<&[F]>, rows: &[usize]) {
+        if let Some(w) = w {
+            let buf = self
+                .row_weights
+                .get_or_insert_with(|| vec![F::zero(); self.fwd.capacity]);
+            for (i, &r) in rows.iter().enumerate() {
+                buf[i] = w[r];
+            }
+        }
         let (d, k) = (
             self.fwd.input.len() / self.fwd.capacity,
             self.targets.len() / self.fwd.capacity,
@@ -81,7 +92,8 @@ impl<F: Real> Backprop<F> {
 
     /// Forward and backward pass over the first `m` gathered rows: fills
     /// `grad` with the gradient of the batch's mean loss (no penalties) and
-    /// returns the summed loss of the rows.
+    /// returns the summed loss of the rows. With row weights `w_i` the loss
+    /// is `(1/m) sum_i w_i E_i` and the sum returned is `sum_i w_i E_i`.
     pub fn pass(
         &mut self,
         params: &Params<F>,
@@ -100,13 +112,42 @@ impl<F: Real> Backprop<F> {
             let k = params.shapes[last].1;
             let z = &mut self.fwd.acts[last][..m * k];
             let d = &mut self.deltas[last][..m * k];
-            for ((zr, yr), dr) in z
-                .chunks_exact_mut(k)
-                .zip(self.targets.chunks_exact(k))
-                .zip(d.chunks_exact_mut(k))
-            {
-                total =
-                    total + crate::train::loss::row_loss_delta(head, loss, zr, yr, Some(dr), scale);
+            match &self.row_weights {
+                None => {
+                    for ((zr, yr), dr) in z
+                        .chunks_exact_mut(k)
+                        .zip(self.targets.chunks_exact(k))
+                        .zip(d.chunks_exact_mut(k))
+                    {
+                        total = total
+                            + crate::train::loss::row_loss_delta(
+                                head,
+                                loss,
+                                zr,
+                                yr,
+                                Some(dr),
+                                scale,
+                            );
+                    }
+                }
+                Some(w) => {
+                    for (((zr, yr), dr), &wi) in z
+                        .chunks_exact_mut(k)
+                        .zip(self.targets.chunks_exact(k))
+                        .zip(d.chunks_exact_mut(k))
+                        .zip(w.iter())
+                    {
+                        total = total
+                            + wi * crate::train::loss::row_loss_delta(
+                                head,
+                                loss,
+                                zr,
+                                yr,
+                                Some(dr),
+                                scale * wi,
+                            );
+                    }
+                }
             }
         }
         for l in (0..n_layers).rev() {
@@ -187,15 +228,16 @@ impl<F: Real> Backprop<F> {
     }
 }
 
-/// Summed loss over all rows of `x` (targets `y`), evaluated in chunks, and
-/// the number of rows whose predicted class matches the target's (when
-/// `classify`).
+/// Summed loss over all rows of `x` (targets `y`; each row's loss times its
+/// weight in `w` when given), evaluated in chunks, and the number of rows
+/// whose predicted class matches the target's (when `classify`; unweighted).
 #[allow(clippy::too_many_arguments)]
 pub(crate) fn evaluate<F: Real>(
     params: &Params<F>,
     ws: &mut Forward<F>,
     x: &[F],
     y: &[F],
+    w: Option<&[F]>,
     activation: Activation,
     head: Head,
     loss: Loss,
@@ -214,12 +256,17 @@ pub(crate) fn evaluate<F: Real>(
         ws.run(params, m, activation, n_layers);
         let z = ws.acts.last_mut().expect("layers");
         let mut chunk_total = F::zero();
-        for (zr, yr) in z[..m * k]
+        for (i, (zr, yr)) in z[..m * k]
             .chunks_exact_mut(k)
             .zip(y[start * k..end * k].chunks_exact(k))
+            .enumerate()
         {
+            let e = crate::train::loss::row_loss_delta(head, loss, zr, yr, None, F::one());
             chunk_total = chunk_total
-                + crate::train::loss::row_loss_delta(head, loss, zr, yr, None, F::one());
+                + match w {
+                    Some(w) => w[start + i] * e,
+                    None => e,
+                };
             if classify {
                 let hit = if zr.len() == 1 {
                     (zr[0] >= F::from_f64(0.5)) == (yr[0] >= F::from_f64(0.5))

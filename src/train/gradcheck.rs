@@ -100,7 +100,7 @@ pub fn check_gradients(
     let rows: Vec<usize> = (0..m).collect();
     let xf: Vec<f64> = x.iter().copied().collect();
     let yf: Vec<f64> = y.iter().copied().collect();
-    bp.gather(&xf, &yf, &rows);
+    bp.gather(&xf, &yf, None, &rows);
     bp.pass(&params, m, act, head, loss);
     let analytic = bp.grad.clone();
     let bp_widths: Vec<usize> = params.shapes.iter().map(|&(_, o)| o).collect();
@@ -120,7 +120,7 @@ pub fn check_gradients(
     let base_pattern = pattern(&bp);
     let mut kinks = 0;
     let objective = |p: &Params<f64>, bp: &mut Backprop<f64>| -> (f64, bool) {
-        bp.gather(&xf, &yf, &rows);
+        bp.gather(&xf, &yf, None, &rows);
         let j = bp.pass(p, m, act, head, loss) / m as f64;
         (j, pattern(bp) != base_pattern)
     };

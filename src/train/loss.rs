@@ -40,10 +40,12 @@ pub enum Loss {
 }
 
 impl Loss {
-    /// A short name: `squared_error` or `cross_entropy`.
+    /// A short name for displays: `half_squared_error` (the loss is half
+    /// the squared error, see above) or `cross_entropy`. The text form
+    /// ([`FromStr`](std::str::FromStr)) stays `squared_error`.
     pub fn name(&self) -> &'static str {
         match self {
-            Loss::SquaredError => "squared_error",
+            Loss::SquaredError => "half_squared_error",
             Loss::CrossEntropy => "cross_entropy",
         }
     }
@@ -78,6 +80,54 @@ crate::error::text_forms!(Loss, "loss", {
     Loss::SquaredError => "squared_error",
     Loss::CrossEntropy => "cross_entropy",
 });
+
+/// The mean loss of predicting the same outputs `a` (after the head) for
+/// every row of `y` (the network's target encoding), each row's loss times
+/// its weight in `w` when given: the loss of a baseline that ignores the
+/// inputs. `None` when the loss is not defined for `a` (cross-entropy of an
+/// output outside (0, 1)).
+pub(crate) fn constant_loss(
+    head: Head,
+    loss: Loss,
+    a: &[f64],
+    y: ndarray::ArrayView2<'_, f64>,
+    w: Option<&[f64]>,
+) -> Option<f64> {
+    if y.nrows() == 0 {
+        return None;
+    }
+    let mut total = 0.0;
+    for (i, row) in y.rows().into_iter().enumerate() {
+        let e: f64 = match (loss, head) {
+            (Loss::SquaredError, _) => {
+                0.5 * row
+                    .iter()
+                    .zip(a)
+                    .map(|(yk, ak)| (yk - ak) * (yk - ak))
+                    .sum::<f64>()
+            }
+            (Loss::CrossEntropy, Head::Logistic) => row
+                .iter()
+                .zip(a)
+                .map(|(yk, ak)| -(yk * libm::log(*ak) + (1.0 - yk) * libm::log(1.0 - ak)))
+                .sum(),
+            (Loss::CrossEntropy, _) => row
+                .iter()
+                .zip(a)
+                .map(|(yk, ak)| {
+                    if *yk == 0.0 {
+                        0.0
+                    } else {
+                        -yk * libm::log(*ak)
+                    }
+                })
+                .sum(),
+        };
+        total += w.map_or(1.0, |w| w[i]) * e;
+    }
+    let mean = total / y.nrows() as f64;
+    mean.is_finite().then_some(mean)
+}
 
 /// For one row: turns output sums `z` into outputs (in place), writes
 /// `delta = scale * dE/dz` and returns the row's loss `E`.

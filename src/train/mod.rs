@@ -14,6 +14,7 @@ mod loss;
 mod options;
 
 pub use gradcheck::{check_gradients, GradientCheck};
+pub(crate) use loss::constant_loss;
 pub use loss::Loss;
 pub use options::{BatchSize, EarlyStopping, Optimiser, Schedule, TrainingOptions};
 
@@ -92,6 +93,65 @@ impl TrainingReport {
             .filter_map(|e| e.validation_loss)
             .collect()
     }
+
+    /// Had the loss settled when training ended?
+    ///
+    /// The rule (common practice, no source): training that stopped early
+    /// converged by its own criterion. Otherwise take the monitored loss,
+    /// the validation loss with early stopping and the training loss
+    /// without, over the `E` epochs run, and the window
+    /// `w = min(max(1, floor(E / 10)), 50)` epochs; the loss is still
+    /// falling when
+    ///
+    /// ```text
+    /// L_{E-w} - L_E > 0.001 |L_{E-w}|     (a drop of more than 0.1% over the last w epochs)
+    /// ```
+    /// A run of a single epoch cannot show that it settled, and a report
+    /// without its history (a trial file's) cannot be judged.
+    pub fn convergence(&self, early_stopping: bool) -> Convergence {
+        if self.stopped_early {
+            return Convergence::Converged;
+        }
+        let series: Vec<f64> = if early_stopping {
+            self.validation_losses()
+        } else {
+            self.training_losses()
+        };
+        let n = series.len();
+        match n {
+            0 => Convergence::Unknown,
+            1 => Convergence::SingleEpoch,
+            _ => {
+                let window = (n / 10).clamp(1, 50);
+                let before = series[n - 1 - window];
+                let drop = (before - series[n - 1]) / before.abs().max(f64::MIN_POSITIVE);
+                if drop > 1e-3 {
+                    Convergence::StillFalling { drop, window }
+                } else {
+                    Convergence::Converged
+                }
+            }
+        }
+    }
+}
+
+/// Whether a run's loss had settled ([`TrainingReport::convergence`]).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum Convergence {
+    /// Stopped early, or the loss moved by at most 0.1% over the last window.
+    Converged,
+    /// The loss fell by `drop` (a share of its value) over the last
+    /// `window` epochs.
+    StillFalling {
+        /// The relative drop.
+        drop: f64,
+        /// The window, in epochs.
+        window: usize,
+    },
+    /// Only one epoch ran.
+    SingleEpoch,
+    /// The history was not kept.
+    Unknown,
 }
 
 /// Encodes a target for a network head: one-hot rows for softmax, a 0/1
@@ -185,7 +245,26 @@ pub fn train<R: RngCore + ?Sized>(
     rng: &mut R,
 ) -> Result<TrainingReport> {
     options.validate()?;
-    train_checked(network, data, validation, options, Scope::default(), rng)
+    train_checked(
+        network,
+        data,
+        validation,
+        options,
+        RowWeights::default(),
+        Scope::default(),
+        rng,
+    )
+}
+
+/// Loss weights of the training and validation rows (class weights), when
+/// rows are weighted: each row's loss is multiplied by its weight, in the
+/// gradient and in the reported losses.
+#[derive(Clone, Copy, Debug, Default)]
+pub(crate) struct RowWeights<'a> {
+    /// One weight per training row.
+    pub train: Option<&'a [f64]>,
+    /// One weight per validation row.
+    pub validation: Option<&'a [f64]>,
 }
 
 /// Where a network trains, for its progress events.
@@ -203,6 +282,7 @@ pub(crate) fn train_checked<R: RngCore + ?Sized>(
     data: &Dataset,
     validation: Option<&Dataset>,
     options: &TrainingOptions,
+    weights: RowWeights<'_>,
     scope: Scope,
     rng: &mut R,
 ) -> Result<TrainingReport> {
@@ -223,6 +303,7 @@ pub(crate) fn train_checked<R: RngCore + ?Sized>(
         val_ref,
         classify,
         options,
+        weights,
         scope,
         rng,
     )
@@ -251,6 +332,7 @@ pub fn train_arrays<R: RngCore + ?Sized>(
         validation,
         classify,
         options,
+        RowWeights::default(),
         Scope::default(),
         rng,
     )
@@ -264,6 +346,7 @@ fn train_arrays_inner<R: RngCore + ?Sized>(
     validation: Option<(ArrayView2<'_, f64>, ArrayView2<'_, f64>)>,
     classify: bool,
     options: &TrainingOptions,
+    weights: RowWeights<'_>,
     scope: Scope,
     rng: &mut R,
 ) -> Result<TrainingReport> {
@@ -283,6 +366,20 @@ fn train_arrays_inner<R: RngCore + ?Sized>(
     if let Some((vx, vy)) = validation {
         check_xy(network, vx, vy, "validation")?;
     }
+    for (w, rows, what) in [
+        (weights.train, x.nrows(), "training row weights"),
+        (
+            weights.validation,
+            validation.map_or(0, |(vx, _)| vx.nrows()),
+            "validation row weights",
+        ),
+    ] {
+        if let Some(w) = w {
+            if w.len() != rows {
+                return Err(Error::shape(what, (rows, 1), (w.len(), 1)));
+            }
+        }
+    }
     let run = Run {
         classify,
         loss,
@@ -290,8 +387,8 @@ fn train_arrays_inner<R: RngCore + ?Sized>(
         scope,
     };
     match network.precision() {
-        Precision::F64 => run_in::<f64, R>(network, x, y, validation, options, run, rng),
-        Precision::F32 => run_in::<f32, R>(network, x, y, validation, options, run, rng),
+        Precision::F64 => run_in::<f64, R>(network, x, y, validation, weights, options, run, rng),
+        Precision::F32 => run_in::<f32, R>(network, x, y, validation, weights, options, run, rng),
     }
 }
 
@@ -363,11 +460,13 @@ struct State<F: Real> {
     updates: i32,
 }
 
+#[allow(clippy::too_many_arguments)]
 fn run_in<F: Real, R: RngCore + ?Sized>(
     network: &mut Network,
     x: ArrayView2<'_, f64>,
     y: ArrayView2<'_, f64>,
     validation: Option<(ArrayView2<'_, f64>, ArrayView2<'_, f64>)>,
+    weights: RowWeights<'_>,
     options: &TrainingOptions,
     run: Run,
     rng: &mut R,
@@ -384,6 +483,9 @@ fn run_in<F: Real, R: RngCore + ?Sized>(
     let xf = to_real::<F>(x);
     let yf = to_real::<F>(y);
     let val = validation.map(|(vx, vy)| (to_real::<F>(vx), to_real::<F>(vy)));
+    let to_f = |w: &[f64]| -> Vec<F> { w.iter().map(|&v| F::from_f64(v)).collect() };
+    let train_w = weights.train.map(to_f);
+    let val_w = weights.validation.map(to_f);
     let n = x.nrows();
     let network_outputs = y.ncols();
     let arithmetic = options.arithmetic;
@@ -412,7 +514,7 @@ fn run_in<F: Real, R: RngCore + ?Sized>(
         }
         let mut epoch_loss = 0.0f64;
         for rows in order.chunks(batch) {
-            bp.gather(&xf, &yf, rows);
+            bp.gather(&xf, &yf, train_w.as_deref(), rows);
             let batch_loss = bp
                 .pass(&params, rows.len(), activation, head, loss)
                 .as_f64();
@@ -434,8 +536,17 @@ fn run_in<F: Real, R: RngCore + ?Sized>(
         }
         let (validation_loss, validation_accuracy) = match (&val, eval_ws.as_mut()) {
             (Some((vx, vy)), Some(ws)) => {
-                let (total, correct) =
-                    evaluate(&params, ws, vx, vy, activation, head, loss, classify);
+                let (total, correct) = evaluate(
+                    &params,
+                    ws,
+                    vx,
+                    vy,
+                    val_w.as_deref(),
+                    activation,
+                    head,
+                    loss,
+                    classify,
+                );
                 let val_rows = vy.len() / network_outputs;
                 let mean = total / val_rows as f64;
                 if !mean.is_finite() {
@@ -655,6 +766,7 @@ fn mean_loss_in<F: Real>(
         &mut ws,
         &to_real::<F>(x),
         &to_real::<F>(y),
+        None,
         network.activation(),
         network.head(),
         loss,

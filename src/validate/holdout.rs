@@ -9,7 +9,7 @@
 //! single, final look from a test set that was used for selection.
 
 use super::cv::Scores;
-use crate::data::{random_split, stratified_split, Dataset};
+use crate::data::{random_split, stratified_split, Dataset, ScoredRows};
 use crate::error::Result;
 use crate::fit::Model;
 use rand::RngCore;
@@ -33,6 +33,15 @@ pub struct HoldOutScore {
     /// 1 for the first scoring; more means the set has been looked at before
     /// and may have steered choices.
     pub times_scored: usize,
+}
+
+impl HoldOutScore {
+    /// The rows the score comes from: the hold-out set, with its use count.
+    pub fn scored_rows(&self) -> ScoredRows {
+        ScoredRows::HoldOut {
+            uses: self.times_scored,
+        }
+    }
 }
 
 impl HoldOutScore {

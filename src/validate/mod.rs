@@ -16,17 +16,31 @@ pub mod metrics;
 pub mod stats;
 
 pub use metrics::{ClassificationMetrics, ConfusionMatrix, Metric, RegressionMetrics, Score};
-pub use stats::{corrected_resampled_t_test, mcnemar_test, McNemar, ResampledTTest, Summary};
+pub use stats::{
+    corrected_resampled_t_test, mcnemar_test, IntervalMethod, McNemar, Range, ResampledTTest,
+    Summary,
+};
 mod compare;
+mod costs;
 pub(crate) mod cv;
 mod holdout;
+pub mod importance;
+pub(crate) mod nested;
+mod out_of_fold;
+mod search;
 pub(crate) mod sweep;
 pub mod sweep_files;
 
 pub use compare::{compare_configurations, compare_models, Comparison};
+pub use costs::CostSummary;
 pub use cv::{
-    cross_validate, cross_validate_with_plan, CrossValidation, CvOptions, FoldPlan, FoldResult,
-    MetricSummary, Scores, MAX_FOLD_FITS,
+    cross_validate, cross_validate_with_plan, CrossValidation, CvOptions, FoldBaseline, FoldPlan,
+    FoldResult, MetricSummary, Scores, MAX_FOLD_FITS,
 };
 pub use holdout::{HoldOut, HoldOutScore};
-pub use sweep::{sweep, Grid, Sweep, SweepPlan, SweepRow, SweepTable, Trial, MAX_TRIALS};
+pub use nested::{nested_cross_validate, NestedChoice, NestedCrossValidation};
+pub use out_of_fold::OutOfFold;
+pub use search::{Candidates, Grid, Halving, RandomSearch, Search, MAX_CONFIGURATIONS};
+pub use sweep::{
+    sweep, Round, RoundSummary, Sweep, SweepPlan, SweepRow, SweepTable, Trial, MAX_TRIALS,
+};

@@ -473,26 +473,53 @@ fn verdict(p: f64) -> &'static str {
 // ---------------------------------------------------------------------------
 // Summary of per-fold values.
 
-/// The mean of per-fold values with a Student t confidence interval.
+/// The mean of per-fold values with a confidence interval.
+///
+/// Two methods ([`IntervalMethod`]):
 ///
 /// ```text
-/// mean = (1 / n) sum_i x_i
-/// std_dev = sqrt( sum_i (x_i - mean)^2 / (n - 1) )            (sample standard deviation)
-/// [ci_low, ci_high] = mean -+ t_{(1 + confidence) / 2, n - 1} std_dev / sqrt(n)
+/// mean = (1 / J) sum_j x_j,     s^2 = sum_j (x_j - mean)^2 / (J - 1)      (J values)
+///
+/// plain t (independent values):
+///   mean -+ t_{(1 + c) / 2, J - 1} s sqrt(1 / J)
+///
+/// cross-validation (k-fold, r repeats, J = k r; n_test / n_train the rows
+/// held out and fitted on in one fold):
+///   se^2 = (1 / J + n_test / n_train) s^2                       (corrected resampled variance)
+///   on the metric's scale g:  g(mean) -+ t_{(1 + c) / 2, J - 1} g'(mean) se,  mapped back by g^-1
 /// ```
+/// The plain t interval (W. S. Gosset ("Student"), "The probable error of a
+/// mean", Biometrika 6, 1908) treats the values as independent. Fold
+/// scores are not: the folds' training sets share most of their rows, and
+/// repeats reuse the same rows, so that interval is too narrow and shrinks
+/// with every repeat although no new data arrives (there is no unbiased
+/// estimator of the variance of k-fold cross-validation: Y. Bengio & Y.
+/// Grandvalet, JMLR 5, 2004). The cross-validation interval uses the
+/// corrected resampled variance of C. Nadeau & Y. Bengio ("Inference for the
+/// generalization error", Machine Learning 52, 2003), which adds
+/// `n_test / n_train` for the overlap of training sets, applied to repeated
+/// k-fold with `J - 1` degrees of freedom as in R. R. Bouckaert & E. Frank
+/// ("Evaluating the replicability of significance tests for comparing
+/// learning algorithms", PAKDD 2004); for k-fold `n_test / n_train =
+/// 1 / (k - 1)`, so repeats narrow the interval only down to a floor.
 ///
-/// The t quantile (not the normal 1.96) because there are few folds
-/// (W. S. Gosset ("Student"), "The probable error of a mean", Biometrika 6,
-/// 1908).
+/// **Bounded metrics** (accuracy, AUC, F1 in [0, 1]; kappa and the
+/// Matthews correlation in [-1, 1]; R^2 at most 1; losses and errors at
+/// least 0) get their interval on a scale where the bound is at infinity,
+/// by the delta method, so the ends always lie inside the metric's range:
 ///
-/// **Caveat.** The interval treats the folds as independent samples, which
-/// they are not: the folds' training sets share most of their rows, so the
-/// fold scores are correlated and the interval is too narrow (optimistic).
-/// No unbiased estimate of the variance of k-fold cross-validation exists
-/// (Y. Bengio & Y. Grandvalet, "No unbiased estimator of the variance of
-/// k-fold cross-validation", Journal of Machine Learning Research 5, 2004,
-/// 1089-1105). Read it as a rough spread, not a guarantee; to compare two
-/// models use [`corrected_resampled_t_test`].
+/// ```text
+/// [0, 1]     g(m) = ln(m / (1 - m))       g'(m) = 1 / (m (1 - m))
+/// [-1, 1]    g(m) = atanh(m)              g'(m) = 1 / (1 - m^2)
+/// (-inf, 1]  g(m) = -ln(1 - m)            g'(m) = 1 / (1 - m)
+/// [0, inf)   g(m) = ln(m)                 g'(m) = 1 / m
+/// ```
+/// (common practice, no source; the logit interval for a proportion is in
+/// A. Agresti, "Categorical Data Analysis", 3rd ed., 2013, section 1.4.)
+/// When the mean sits on a bound (every fold scored 1.0, say) no interval
+/// can be computed on that scale: the interval is the mean, with a note.
+/// The coverage of the cross-validation interval was checked by simulation
+/// (tests/integration/coverage.rs): see BENCHMARKS.md, "Interval coverage".
 ///
 /// With one value the standard deviation and the interval are undefined: they
 /// are set to 0 and the mean, with a note in `undefined`.
@@ -510,12 +537,90 @@ pub struct Summary {
     pub ci_low: f64,
     /// The interval's upper end; the mean when n = 1 (undefined).
     pub ci_high: f64,
+    /// How the interval was computed.
+    pub method: IntervalMethod,
     /// Why the spread and interval are undefined, if they are.
     pub undefined: Option<String>,
 }
 
+/// How a [`Summary`]'s interval was computed.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum IntervalMethod {
+    /// Student t over independent values.
+    StudentT,
+    /// Cross-validation: the corrected resampled variance (see [`Summary`]),
+    /// on the scale of the metric's range.
+    CorrectedResampled {
+        /// `n_test / n_train` of one fold.
+        test_train_ratio: f64,
+        /// The metric's range.
+        range: Range,
+    },
+}
+
+impl fmt::Display for IntervalMethod {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            IntervalMethod::StudentT => f.write_str("Student t over independent values"),
+            IntervalMethod::CorrectedResampled { .. } => f.write_str(
+                "corrected resampled t (Nadeau & Bengio 2003), within the metric's range",
+            ),
+        }
+    }
+}
+
+/// The values a metric can take (for intervals that stay inside them).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Range {
+    /// From 0 to 1 (accuracy, AUC, F1, precision, ...).
+    Unit,
+    /// From -1 to 1 (Matthews correlation, Cohen's kappa).
+    Signed,
+    /// At most 1 (R^2).
+    AtMostOne,
+    /// At least 0 (losses and errors).
+    NonNegative,
+    /// Any real number.
+    Unbounded,
+}
+
+/// A map of one number to another.
+type Map = fn(f64) -> f64;
+
+impl Range {
+    /// The scale `g`, its derivative `g'` and the inverse, as in [`Summary`].
+    fn scale(self) -> (Map, Map, Map) {
+        match self {
+            Range::Unit => (
+                |m| (m / (1.0 - m)).ln(),
+                |m| 1.0 / (m * (1.0 - m)),
+                |g| 1.0 / (1.0 + (-g).exp()),
+            ),
+            Range::Signed => (|m| m.atanh(), |m| 1.0 / (1.0 - m * m), |g| g.tanh()),
+            Range::AtMostOne => (
+                |m| -(1.0 - m).ln(),
+                |m| 1.0 / (1.0 - m),
+                |g| 1.0 - (-g).exp(),
+            ),
+            Range::NonNegative => (|m| m.ln(), |m| 1.0 / m, |g| g.exp()),
+            Range::Unbounded => (|m| m, |_| 1.0, |g| g),
+        }
+    }
+
+    /// Is `m` strictly inside the range (where the scale is defined)?
+    fn inside(self, m: f64) -> bool {
+        match self {
+            Range::Unit => m > 0.0 && m < 1.0,
+            Range::Signed => m > -1.0 && m < 1.0,
+            Range::AtMostOne => m < 1.0,
+            Range::NonNegative => m > 0.0,
+            Range::Unbounded => true,
+        }
+    }
+}
+
 impl Summary {
-    /// The mean and a 95% t interval of per-fold values.
+    /// The mean and a 95% t interval of independent values.
     ///
     /// # Errors
     /// If `values` is empty or holds a non-finite value.
@@ -523,12 +628,46 @@ impl Summary {
         Summary::with_confidence(values, 0.95)
     }
 
-    /// The mean and a t interval at the given confidence level (e.g. 0.9).
+    /// The mean and a t interval of independent values at the given
+    /// confidence level (e.g. 0.9).
     ///
     /// # Errors
     /// If `values` is empty or holds a non-finite value, or `confidence` is
     /// not strictly between 0 and 1.
     pub fn with_confidence(values: &[f64], confidence: f64) -> Result<Summary> {
+        Summary::compute(values, confidence, IntervalMethod::StudentT)
+    }
+
+    /// The mean and the 95% cross-validation interval of per-fold scores
+    /// (see the type's docs), for folds that held out `n_test` rows and
+    /// fitted on `n_train` (means over the folds), of a metric with `range`.
+    ///
+    /// # Errors
+    /// As [`Summary::with_confidence`], and `n_test` or `n_train` not
+    /// positive.
+    pub fn for_cross_validation(
+        values: &[f64],
+        n_train: f64,
+        n_test: f64,
+        range: Range,
+    ) -> Result<Summary> {
+        if !(n_train > 0.0 && n_test > 0.0) {
+            return Err(Error::input(
+                "summary of fold scores",
+                format!("the folds held out {n_test} and fitted on {n_train} rows; both must be above 0"),
+            ));
+        }
+        Summary::compute(
+            values,
+            0.95,
+            IntervalMethod::CorrectedResampled {
+                test_train_ratio: n_test / n_train,
+                range,
+            },
+        )
+    }
+
+    fn compute(values: &[f64], confidence: f64, method: IntervalMethod) -> Result<Summary> {
         const WHAT: &str = "summary of per-fold values";
         if !(confidence > 0.0 && confidence < 1.0) {
             return Err(Error::option(
@@ -548,30 +687,55 @@ impl Summary {
             ));
         }
         let mean = values.iter().sum::<f64>() / n as f64;
+        let flat = |why: String| Summary {
+            mean,
+            std_dev: 0.0,
+            n,
+            confidence,
+            ci_low: mean,
+            ci_high: mean,
+            method,
+            undefined: Some(why),
+        };
         if n == 1 {
-            return Ok(Summary {
-                mean,
-                std_dev: 0.0,
-                n,
-                confidence,
-                ci_low: mean,
-                ci_high: mean,
-                undefined: Some(
-                    "one value only: the standard deviation and interval are undefined; set to 0 and the mean by convention"
-                        .to_string(),
-                ),
-            });
+            return Ok(flat(
+                "one value only: the standard deviation and interval are undefined; set to 0 and the mean by convention"
+                    .to_string(),
+            ));
         }
         let std_dev = sample_std_dev(values, mean);
         let t = student_t_quantile(0.5 * (1.0 + confidence), (n - 1) as f64)?;
-        let half_width = t * std_dev / (n as f64).sqrt();
+        let (ci_low, ci_high) = match method {
+            IntervalMethod::StudentT => {
+                let half_width = t * std_dev / (n as f64).sqrt();
+                (mean - half_width, mean + half_width)
+            }
+            IntervalMethod::CorrectedResampled {
+                test_train_ratio,
+                range,
+            } => {
+                let se = ((1.0 / n as f64 + test_train_ratio) * std_dev * std_dev).sqrt();
+                if !range.inside(mean) {
+                    let mut s = flat(format!(
+                        "the mean {mean} lies on the bound of the metric's range, where no interval can be computed; the interval is the mean"
+                    ));
+                    s.std_dev = std_dev;
+                    return Ok(s);
+                }
+                let (g, dg, inverse) = range.scale();
+                let centre = g(mean);
+                let half_width = t * dg(mean) * se;
+                (inverse(centre - half_width), inverse(centre + half_width))
+            }
+        };
         Ok(Summary {
             mean,
             std_dev,
             n,
             confidence,
-            ci_low: mean - half_width,
-            ci_high: mean + half_width,
+            ci_low,
+            ci_high,
+            method,
             undefined: None,
         })
     }
@@ -811,6 +975,16 @@ pub fn corrected_resampled_t_test(
     n_train: usize,
     n_test: usize,
 ) -> Result<ResampledTTest> {
+    corrected_resampled_t_test_named(differences, n_train, n_test, ("model A", "model B"))
+}
+
+/// [`corrected_resampled_t_test`] whose reading names the two sides.
+pub(crate) fn corrected_resampled_t_test_named(
+    differences: &[f64],
+    n_train: usize,
+    n_test: usize,
+    (a, b): (&str, &str),
+) -> Result<ResampledTTest> {
     const WHAT: &str = "corrected resampled t-test";
     let j = differences.len();
     if j < 2 {
@@ -853,7 +1027,7 @@ pub fn corrected_resampled_t_test(
                     .to_string(),
             ),
             reading: format!(
-                "the difference A - B is {} on every fold; a t-test cannot judge a difference that never varies",
+                "the difference {a} - {b} is {} on every fold; a t-test cannot judge a difference that never varies",
                 format_significant(mean)
             ),
         });
@@ -865,7 +1039,7 @@ pub fn corrected_resampled_t_test(
     let naive_p_value = student_t_two_sided_p(naive_t, degrees_of_freedom)?;
     let direction = if mean >= 0.0 { "higher" } else { "lower" };
     let reading = format!(
-        "model A scored {} {direction} than model B on average over {j} folds; the difference {} (corrected resampled t = {:.2}, {j_1} df, p = {}; the naive paired t-test gives p = {}, which overstates the evidence because folds share training rows)",
+        "{a} scored {} {direction} than {b} on average over {j} folds; the difference {} (corrected resampled t = {:.2}, {j_1} df, p = {}; the naive paired t-test gives p = {}, which overstates the evidence because folds share training rows)",
         format_significant(mean.abs()),
         verdict(p_value),
         t,

@@ -1,115 +1,33 @@
-//! Sweeps: a grid of configurations under the same cross-validation folds.
+//! Sweeps: many configurations under the same cross-validation folds.
 //!
-//! A sweep is a [`SweepPlan`]: the configurations, one fold plan and one
-//! seed per fold, all drawn up front. Its unit of work is a *trial*, one
-//! configuration on one fold; trials are independent, so they run in
-//! parallel here, or one by one anywhere else (see [`SweepPlan::run_trial`]
-//! and [`SweepPlan::merge`]), and give the same table bit for bit. Every
-//! configuration sees the same folds and the same fold seeds, so their fold
-//! scores are paired.
+//! A sweep is a [`SweepPlan`]: the configurations (a grid, or random draws;
+//! see [`Search`]), one fold plan and one seed per fold, all drawn up front.
+//! Its unit of work is a *trial*, one configuration on one fold; trials are
+//! independent, so they run in parallel here, or in any grouping anywhere
+//! else (see [`SweepPlan::run_trial`] and [`SweepPlan::merge`]), and give
+//! the same table bit for bit. Every configuration sees the same folds and
+//! the same fold seeds, so their fold scores are paired.
+//!
+//! With successive halving ([`Halving`]) a sweep runs in rounds: each round
+//! is a plan of its own, and [`SweepPlan::next_round`] derives the next
+//! round's plan from a round's table, so rounds can run here or as one array
+//! job each.
+//!
+//! **Draw order** (part of the value-stability contract), from the
+//! generator given to [`SweepPlan::new`]: the fold plan and the fold seeds,
+//! then the refit seed, then (random search only) the configurations.
 
 use super::cv::{run_fold, summarise_folds, CrossValidation, CvOptions, FoldPlan, FoldResult};
 use super::metrics::Metric;
+use super::search::{Candidates, Halving, Search};
 use super::stats::Summary;
 use crate::data::Dataset;
 use crate::error::{Error, Result};
 use crate::fit::{FitOptions, Fitted};
-use crate::network::Activation;
 use crate::observe::Event;
 use rand::RngCore;
 use rayon::prelude::*;
 use std::sync::atomic::{AtomicUsize, Ordering};
-
-/// Values to try for each knob; an empty list keeps the base value.
-#[derive(Clone, Debug, Default, PartialEq)]
-pub struct Grid {
-    /// Hidden layer widths to try.
-    pub hidden_layers: Vec<Vec<usize>>,
-    /// Hidden activations to try.
-    pub activations: Vec<Activation>,
-    /// Learning rates to try.
-    pub learning_rates: Vec<f64>,
-    /// Batch sizes to try.
-    pub batch_sizes: Vec<crate::train::BatchSize>,
-    /// Weight decays to try.
-    pub weight_decays: Vec<f64>,
-}
-
-impl Grid {
-    /// Every combination, each with a readable name, in a fixed order
-    /// (hidden layers slowest, weight decay fastest).
-    ///
-    /// # Errors
-    /// When the grid holds more than 10,000 configurations.
-    pub fn configurations(&self, base: &FitOptions) -> Result<Vec<(String, FitOptions)>> {
-        fn or_base<T: Clone>(values: &[T], base: T) -> (Vec<T>, bool) {
-            if values.is_empty() {
-                (vec![base], false)
-            } else {
-                (values.to_vec(), true)
-            }
-        }
-        let (hidden, vary_h) = or_base(&self.hidden_layers, base.hidden_layers.clone());
-        let (acts, vary_a) = or_base(&self.activations, base.activation);
-        let (rates, vary_r) = or_base(&self.learning_rates, base.training.learning_rate);
-        let (batches, vary_b) = match self.batch_sizes.is_empty() {
-            true => (vec![base.training.batch_size], false),
-            false => (self.batch_sizes.iter().map(|&b| Some(b)).collect(), true),
-        };
-        let (decays, vary_d) = or_base(&self.weight_decays, base.training.weight_decay);
-        let total = hidden.len() * acts.len() * rates.len() * batches.len() * decays.len();
-        if total > 10_000 {
-            return Err(Error::option(
-                "grid",
-                total,
-                "has more than 10,000 configurations; split it into smaller sweeps",
-            ));
-        }
-        let mut out = Vec::with_capacity(total);
-        for h in &hidden {
-            for &a in &acts {
-                for &r in &rates {
-                    for &b in &batches {
-                        for &d in &decays {
-                            let mut o = base.clone();
-                            o.hidden_layers = h.clone();
-                            o.activation = a;
-                            o.training.learning_rate = r;
-                            o.training.batch_size = b;
-                            o.training.weight_decay = d;
-                            let mut parts = Vec::new();
-                            if vary_h || !vary_a && !vary_r && !vary_b && !vary_d {
-                                let widths: Vec<String> = h.iter().map(usize::to_string).collect();
-                                parts.push(format!(
-                                    "hidden {}",
-                                    if widths.is_empty() {
-                                        "none".into()
-                                    } else {
-                                        widths.join("-")
-                                    }
-                                ));
-                            }
-                            if vary_a {
-                                parts.push(a.name().to_string());
-                            }
-                            if vary_r {
-                                parts.push(format!("rate {r}"));
-                            }
-                            if let (true, Some(b)) = (vary_b, b) {
-                                parts.push(format!("batch {b}"));
-                            }
-                            if vary_d {
-                                parts.push(format!("decay {d}"));
-                            }
-                            out.push((parts.join(", "), o));
-                        }
-                    }
-                }
-            }
-        }
-        Ok(out)
-    }
-}
 
 /// One configuration's line in the results table.
 #[derive(Clone, Debug, PartialEq)]
@@ -133,11 +51,41 @@ pub struct SweepTable {
     pub rows: Vec<SweepRow>,
 }
 
+/// What one round of successive halving found.
+#[derive(Clone, Debug, PartialEq)]
+pub struct RoundSummary {
+    /// The round (from 0).
+    pub round: usize,
+    /// Epochs each configuration trained in it.
+    pub epochs: usize,
+    /// Every configuration's name and mean score, best first.
+    pub results: Vec<(String, f64)>,
+    /// How many of them went on to the next round (the first ones).
+    pub kept: usize,
+}
+
+/// Where a plan stands in successive halving.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Round {
+    /// This round (from 0).
+    pub index: usize,
+    /// Rounds in all.
+    pub total: usize,
+    /// The halving factor.
+    pub halving: Halving,
+    /// The full budget: epochs of the last round.
+    pub full_epochs: usize,
+    /// The rounds before this one.
+    pub history: Vec<RoundSummary>,
+}
+
 /// A sweep's outcome: the table and the best configuration refitted on all rows.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Sweep {
-    /// The results table.
+    /// The results table (of the last round, with successive halving).
     pub table: SweepTable,
+    /// Every earlier round of successive halving (empty without it).
+    pub rounds: Vec<RoundSummary>,
     /// The best configuration, refitted on every row given to the sweep.
     pub best: Fitted,
 }
@@ -172,46 +120,47 @@ pub struct SweepPlan {
     /// The table's fingerprint ([`Dataset::fingerprint`]), so trials run
     /// elsewhere can check they see the same data.
     pub table_fingerprint: String,
+    /// With successive halving: this plan's round.
+    pub round: Option<Round>,
 }
 
 impl SweepPlan {
-    /// Draws a plan: fold plan and seeds first, then the refit seed.
+    /// Draws a plan (see the module docs for the draw order); with
+    /// successive halving, the plan of its first round.
     ///
     /// # Errors
-    /// An empty grid, a metric that does not fit the target, invalid folds.
+    /// An empty grid, bad ranges, a metric that does not fit the target,
+    /// invalid options or folds.
     pub fn new<R: RngCore + ?Sized>(
         data: &Dataset,
         base: &FitOptions,
-        grid: &Grid,
+        search: &Search,
         cv: &CvOptions,
         metric: Metric,
         rng: &mut R,
     ) -> Result<SweepPlan> {
-        let configurations = grid.configurations(base)?;
+        base.validate()?;
+        search.validate()?;
         cv.validate()?;
-        for (name, o) in &configurations {
-            o.validate()
-                .map_err(|e| e.context(format!("sweep configuration \"{name}\"")))?;
+        if let Candidates::Grid(grid) = &search.candidates {
+            for (name, o) in grid.configurations(base)? {
+                o.validate()
+                    .map_err(|e| e.context(format!("sweep configuration \"{name}\"")))?;
+            }
         }
-        SweepPlan::new_checked(data, configurations, cv, metric, rng)
+        SweepPlan::new_checked(data, base, search, cv, metric, rng)
     }
 
-    /// [`SweepPlan::new`] with every configuration and the counts already
-    /// validated.
+    /// [`SweepPlan::new`] with the options, the search and the counts
+    /// already validated.
     pub(crate) fn new_checked<R: RngCore + ?Sized>(
         data: &Dataset,
-        configurations: Vec<(String, FitOptions)>,
+        base: &FitOptions,
+        search: &Search,
         cv: &CvOptions,
         metric: Metric,
         rng: &mut R,
     ) -> Result<SweepPlan> {
-        if configurations.is_empty() {
-            return Err(Error::option(
-                "grid",
-                "empty",
-                "needs at least one configuration",
-            ));
-        }
         if metric.is_regression() == data.labels().is_some() {
             return Err(Error::option(
                 "metric",
@@ -224,13 +173,85 @@ impl SweepPlan {
             ));
         }
         let folds = FoldPlan::draw_checked(data, cv, rng)?;
+        let refit_seed = crate::rng::child_seed(rng);
+        let mut configurations = match &search.candidates {
+            Candidates::Grid(grid) => grid.configurations(base)?,
+            Candidates::Random(random) => random.configurations(base, rng),
+        };
+        if configurations.is_empty() {
+            return Err(Error::option(
+                "grid",
+                "empty",
+                "needs at least one configuration",
+            ));
+        }
+        let round = search.halving.map(|halving| {
+            let total = halving.rounds(configurations.len());
+            let full_epochs = base.training.epochs;
+            let epochs = halving.epochs(0, total, full_epochs);
+            for (_, o) in configurations.iter_mut() {
+                o.training.epochs = epochs;
+            }
+            Round {
+                index: 0,
+                total,
+                halving,
+                full_epochs,
+                history: Vec::new(),
+            }
+        });
         Ok(SweepPlan {
             configurations,
             cv: cv.clone(),
             folds,
             metric,
-            refit_seed: crate::rng::child_seed(rng),
+            refit_seed,
             table_fingerprint: data.fingerprint(),
+            round,
+        })
+    }
+
+    /// The plan of the next round of successive halving, from this round's
+    /// table: the best configurations (see [`Halving`]) with the next
+    /// round's epochs, the same folds and seeds, and this round added to the
+    /// history. `None` after the last round, or without halving.
+    pub fn next_round(&self, table: &SweepTable) -> Option<SweepPlan> {
+        let round = self.round.as_ref()?;
+        if round.index + 1 >= round.total {
+            return None;
+        }
+        let kept = round.halving.kept(table.rows.len());
+        let epochs = round
+            .halving
+            .epochs(round.index + 1, round.total, round.full_epochs);
+        let configurations = table.rows[..kept]
+            .iter()
+            .map(|r| {
+                let (name, o) = &self.configurations[r.index];
+                let mut o = o.clone();
+                o.training.epochs = epochs;
+                (name.clone(), o)
+            })
+            .collect();
+        let mut history = round.history.clone();
+        history.push(RoundSummary {
+            round: round.index,
+            epochs: self.configurations[0].1.training.epochs,
+            results: table
+                .rows
+                .iter()
+                .map(|r| (r.name.clone(), r.summary.mean))
+                .collect(),
+            kept,
+        });
+        Some(SweepPlan {
+            configurations,
+            round: Some(Round {
+                index: round.index + 1,
+                history,
+                ..round.clone()
+            }),
+            ..self.clone()
         })
     }
 
@@ -378,23 +399,47 @@ impl SweepPlan {
 pub fn sweep<R: RngCore + ?Sized>(
     data: &Dataset,
     base: &FitOptions,
-    grid: &Grid,
+    search: &Search,
     cv: &CvOptions,
     metric: Metric,
     rng: &mut R,
 ) -> Result<Sweep> {
-    let plan = SweepPlan::new(data, base, grid, cv, metric, rng)?;
-    sweep_plan_checked(data, &plan, &base.training.observer)
+    let plan = SweepPlan::new(data, base, search, cv, metric, rng)?;
+    sweep_plan_checked(data, plan, &base.training.observer)
 }
 
-/// Runs every trial of a plan drawn from `data` here, in parallel, and
-/// refits the best configuration on all of `data`.
+/// Runs every trial of a plan drawn from `data` here, in parallel, every
+/// round of successive halving after it, and refits the best configuration
+/// on all of `data`.
 pub(crate) fn sweep_plan_checked(
     data: &Dataset,
-    plan: &SweepPlan,
+    mut plan: SweepPlan,
     observer: &crate::observe::Observer,
 ) -> Result<Sweep> {
     plan.folds.check(data.n_rows())?;
+    loop {
+        let table = run_plan_trials(data, &plan, observer)?;
+        match plan.next_round(&table) {
+            Some(next) => plan = next,
+            None => {
+                let best = plan.refit_best(data, &table)?;
+                let rounds = plan.round.map(|r| r.history).unwrap_or_default();
+                return Ok(Sweep {
+                    table,
+                    rounds,
+                    best,
+                });
+            }
+        }
+    }
+}
+
+/// Runs every trial of one plan here, in parallel, and merges them.
+fn run_plan_trials(
+    data: &Dataset,
+    plan: &SweepPlan,
+    observer: &crate::observe::Observer,
+) -> Result<SweepTable> {
     let trials = plan.trials().len();
     let finished = AtomicUsize::new(0);
     let results: Vec<Result<FoldResult>> = (0..trials)
@@ -411,20 +456,36 @@ pub(crate) fn sweep_plan_checked(
         })
         .collect();
     let results = results.into_iter().collect::<Result<Vec<_>>>()?;
-    let table = plan.merge(data.n_rows(), data.class_names().unwrap_or(&[]), results)?;
-    let best = plan.refit_best(data, &table)?;
-    Ok(Sweep { table, best })
+    plan.merge(data.n_rows(), data.class_names().unwrap_or(&[]), results)
 }
 
 impl SweepPlan {
     /// The table's best configuration refitted on every row of `data`,
-    /// from the plan's refit seed.
+    /// from the plan's refit seed; its provenance says how it was chosen.
     ///
     /// # Errors
     /// As [`fit`](crate::fit::fit).
     pub fn refit_best(&self, data: &Dataset, table: &SweepTable) -> Result<Fitted> {
-        let best_options = &self.configurations[table.rows[0].index].1;
+        let best = &table.rows[0];
+        let best_options = &self.configurations[best.index].1;
         let seed = crate::rng::child_seed(&mut crate::rng::seeded_rng(self.refit_seed));
-        crate::fit::fit_checked(std::borrow::Cow::Borrowed(data), best_options, seed, None)
+        let mut fitted =
+            crate::fit::fit_checked(std::borrow::Cow::Borrowed(data), best_options, seed, None)?;
+        fitted.set_selected_by(format!(
+            "sweep of {} configurations{}, best by {} ({:.4} over {} folds): \"{}\"",
+            self.configurations.len(),
+            match &self.round {
+                Some(r) if r.total > 1 => format!(
+                    " (last of {} rounds of successive halving, factor {})",
+                    r.total, r.halving.eta
+                ),
+                _ => String::new(),
+            },
+            table.metric,
+            best.summary.mean,
+            self.folds.folds.len(),
+            best.name
+        ));
+        Ok(fitted)
     }
 }

@@ -20,11 +20,12 @@
 //! any trial runs. A trial file carries the checksum of its plan, so results
 //! from another plan are refused when merging.
 
-use super::cv::{FoldPlan, FoldResult, Scores};
-use super::sweep::SweepPlan;
+use super::cv::{FoldBaseline, FoldPlan, FoldResult, Scores};
+use super::search::Halving;
+use super::sweep::{Round, RoundSummary, SweepPlan};
 use super::CvOptions;
 use crate::atomic::write_text;
-use crate::data::{CsvOptions, Fold, Missing, Target, TargetKind};
+use crate::data::{CsvOptions, DecimalMark, Delimiter, Fold, Missing, Target, Task};
 use crate::error::{Error, Result};
 use crate::model_file::options_schema::OptionsV2;
 use crate::train::{EpochRecord, Loss, TrainingReport};
@@ -61,6 +62,34 @@ struct PlanBody {
     refit_seed: String,
     configurations: Vec<ConfigurationV2>,
     folds: Vec<FoldV2>,
+    /// With successive halving: this plan's round and the rounds before.
+    halving: Option<HalvingV2>,
+}
+
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct HalvingV2 {
+    eta: usize,
+    round: usize,
+    rounds: usize,
+    full_epochs: usize,
+    history: Vec<RoundV2>,
+}
+
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RoundV2 {
+    round: usize,
+    epochs: usize,
+    kept: usize,
+    results: Vec<ResultV2>,
+}
+
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct ResultV2 {
+    name: String,
+    mean: f64,
 }
 
 #[derive(Serialize, Deserialize)]
@@ -86,10 +115,14 @@ struct TableV2 {
     features: Option<Vec<String>>,
     drop: Vec<String>,
     categorical: Vec<String>,
+    ids: Vec<String>,
     missing: String,
-    target_kind: String,
+    missing_indicators: bool,
+    missing_markers: Option<Vec<String>>,
+    task: String,
     class_order: Option<Vec<String>>,
-    delimiter: u8,
+    delimiter: String,
+    decimal: String,
 }
 
 impl TableV2 {
@@ -99,10 +132,14 @@ impl TableV2 {
             features: o.features.clone(),
             drop: o.drop.clone(),
             categorical: o.categorical.clone(),
+            ids: o.ids.clone(),
             missing: o.missing.to_string(),
-            target_kind: o.target_kind.to_string(),
+            missing_indicators: o.missing_indicators,
+            missing_markers: o.missing_markers.clone(),
+            task: o.task.to_string(),
             class_order: o.class_order.clone(),
-            delimiter: o.delimiter,
+            delimiter: o.delimiter.to_string(),
+            decimal: o.decimal.to_string(),
         }
     }
 
@@ -111,10 +148,15 @@ impl TableV2 {
         o.features = self.features;
         o.drop = self.drop;
         o.categorical = self.categorical;
+        o.ids = self.ids;
         o.missing = self.missing.parse::<Missing>()?;
-        o.target_kind = self.target_kind.parse::<TargetKind>()?;
+        o.missing_indicators = self.missing_indicators;
+        o.missing_markers = self.missing_markers;
+        o.task = self.task.parse::<Task>()?;
         o.class_order = self.class_order;
-        o.delimiter = self.delimiter;
+        o.delimiter = self.delimiter.parse::<Delimiter>()?;
+        o.decimal = self.decimal.parse::<DecimalMark>()?;
+        o.validate()?;
         Ok(o)
     }
 }
@@ -165,6 +207,29 @@ impl PlanBody {
                     test: f.test.clone(),
                 })
                 .collect(),
+            halving: plan.round.as_ref().map(|r| HalvingV2 {
+                eta: r.halving.eta,
+                round: r.index,
+                rounds: r.total,
+                full_epochs: r.full_epochs,
+                history: r
+                    .history
+                    .iter()
+                    .map(|h| RoundV2 {
+                        round: h.round,
+                        epochs: h.epochs,
+                        kept: h.kept,
+                        results: h
+                            .results
+                            .iter()
+                            .map(|(name, mean)| ResultV2 {
+                                name: name.clone(),
+                                mean: *mean,
+                            })
+                            .collect(),
+                    })
+                    .collect(),
+            }),
         }
     }
 
@@ -206,6 +271,37 @@ impl PlanBody {
             metric: self.metric.parse().map_err(|e: Error| e.to_string())?,
             refit_seed: read_seed(&self.refit_seed, "refit seed")?,
             table_fingerprint: self.table_fingerprint,
+            round: match self.halving {
+                None => None,
+                Some(h) => {
+                    let halving = Halving { eta: h.eta };
+                    halving.validate().map_err(|e| e.to_string())?;
+                    if h.rounds == 0 || h.round >= h.rounds || h.history.len() != h.round {
+                        return Err(format!(
+                            "\"halving\": round {} of {} with {} earlier rounds recorded does not add up",
+                            h.round,
+                            h.rounds,
+                            h.history.len()
+                        ));
+                    }
+                    Some(Round {
+                        index: h.round,
+                        total: h.rounds,
+                        halving,
+                        full_epochs: h.full_epochs,
+                        history: h
+                            .history
+                            .into_iter()
+                            .map(|r| RoundSummary {
+                                round: r.round,
+                                epochs: r.epochs,
+                                kept: r.kept,
+                                results: r.results.into_iter().map(|x| (x.name, x.mean)).collect(),
+                            })
+                            .collect(),
+                    })
+                }
+            },
         };
         Ok((plan, table))
     }
@@ -330,6 +426,9 @@ struct TrialFile {
     truth: TruthV2,
     /// Class probabilities or predicted values, one row per held-out row.
     predictions: Vec<Vec<f64>>,
+    /// The baseline's constant prediction (the fold's training class
+    /// shares or means).
+    baseline: Vec<f64>,
     training: TrainingV2,
 }
 
@@ -351,6 +450,17 @@ struct TrainingV2 {
     final_training_loss: f64,
     #[serde(default, skip_serializing_if = "Option::is_none")]
     history: Option<Vec<EpochV2>>,
+    /// What the fold's fit learnt from its rows: fill values, and the
+    /// target scaler's kind, offsets and scales.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    fill_values: Option<Vec<f64>>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    target_scaler: Option<(String, Vec<f64>, Vec<f64>)>,
+    /// What the fold's fit noted and flagged.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    notes: Vec<String>,
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    warnings: Vec<String>,
 }
 
 #[derive(Serialize, Deserialize)]
@@ -361,6 +471,18 @@ struct EpochV2 {
     validation_loss: Option<f64>,
     validation_accuracy: Option<f64>,
     learning_rate: f64,
+}
+
+/// A trial that could not finish (training diverged, say), as trial files
+/// record it, so that a status report and a merge can name it and why.
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct FailedTrialFile {
+    format: String,
+    format_version: u32,
+    plan_checksum: String,
+    trial: usize,
+    failed: String,
 }
 
 /// A trial's outcome read from a trial file.
@@ -422,6 +544,7 @@ pub fn write_trial(
             Target::Values { values, .. } => TruthV2::Values(rows_of(values)),
         },
         predictions: rows_of(&result.predictions),
+        baseline: result.baseline.prediction.clone(),
         training: TrainingV2 {
             loss: r.loss.to_string(),
             epochs_run: r.epochs_run,
@@ -441,6 +564,26 @@ pub fn write_trial(
                     })
                     .collect()
             }),
+            fill_values: result.imputer.as_ref().map(|i| i.fill_values().to_vec()),
+            target_scaler: result.target_scaler.as_ref().map(|t| {
+                (
+                    t.kind().to_string(),
+                    t.offsets().to_vec(),
+                    t.scales().to_vec(),
+                )
+            }),
+            // Kept with their options marked, so a merge shows them as the
+            // reader names options (flags on the command line).
+            notes: result
+                .notes
+                .iter()
+                .map(|m| m.marked().to_string())
+                .collect(),
+            warnings: result
+                .warnings
+                .iter()
+                .map(|m| m.marked().to_string())
+                .collect(),
         },
     };
     let mut text = serde_json::to_string(&file).expect("trial results serialise");
@@ -448,14 +591,247 @@ pub fn write_trial(
     write_text(path, &text)
 }
 
+/// The name of trial `index`'s file in an output folder: `trial-000007.json`.
+pub fn trial_file_name(index: usize) -> String {
+    format!("trial-{index:06}.json")
+}
+
+/// Writes a record that trial `trial` failed, with the reason, atomically.
+///
+/// # Errors
+/// The file cannot be written.
+pub fn write_failed_trial(
+    plan_checksum: &str,
+    trial: usize,
+    reason: &str,
+    path: &Path,
+) -> Result<()> {
+    let file = FailedTrialFile {
+        format: TRIAL_FORMAT.into(),
+        format_version: FILE_VERSION,
+        plan_checksum: plan_checksum.to_string(),
+        trial,
+        failed: reason.to_string(),
+    };
+    let mut text = serde_json::to_string(&file).expect("trial records serialise");
+    text.push('\n');
+    write_text(path, &text)
+}
+
+/// What a trial file says.
+#[derive(Clone, Debug)]
+pub enum TrialOutcome {
+    /// The trial ran; its result.
+    Done(Box<TrialResult>),
+    /// The trial failed; its index and the reason.
+    Failed(usize, String),
+}
+
 /// Reads a trial file made for the plan with checksum `plan_checksum` and
 /// `trials` trials.
 ///
 /// # Errors
 /// A missing or foreign file, or one made for another plan.
-pub fn read_trial(path: &Path, plan_checksum: &str, trials: usize) -> Result<TrialResult> {
+pub fn read_trial(path: &Path, plan_checksum: &str, trials: usize) -> Result<TrialOutcome> {
     let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, "reading", e))?;
-    parse_trial(&text, path, plan_checksum, trials)
+    if let Ok(failed) = serde_json::from_str::<FailedTrialFile>(&text) {
+        if failed.format == TRIAL_FORMAT
+            && failed.format_version == FILE_VERSION
+            && failed.plan_checksum == plan_checksum
+            && failed.trial < trials
+        {
+            return Ok(TrialOutcome::Failed(failed.trial, failed.failed));
+        }
+    }
+    parse_trial(&text, path, plan_checksum, trials).map(|r| TrialOutcome::Done(Box::new(r)))
+}
+
+/// Every `.json` file in `dir`, sorted by name.
+///
+/// # Errors
+/// The folder cannot be read.
+pub fn json_files(dir: &Path) -> Result<Vec<std::path::PathBuf>> {
+    let entries = std::fs::read_dir(dir).map_err(|e| Error::io(dir, "reading the folder", e))?;
+    let mut files: Vec<std::path::PathBuf> = entries
+        .filter_map(|e| e.ok().map(|e| e.path()))
+        .filter(|p| p.is_file() && p.extension().is_some_and(|x| x == "json"))
+        .collect();
+    files.sort();
+    Ok(files)
+}
+
+/// Where each trial of a plan stands, from a set of trial files.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct TrialStatus {
+    /// Trials with a result for this plan.
+    pub done: Vec<usize>,
+    /// Trials recorded as failed, with the reason.
+    pub failed: Vec<(usize, String)>,
+    /// Trials with no file at all.
+    pub missing: Vec<usize>,
+    /// Files made for another plan (or another version): left out.
+    pub stale: Vec<std::path::PathBuf>,
+    /// Files that are not readable trial results, with the reason.
+    pub unreadable: Vec<(std::path::PathBuf, String)>,
+}
+
+impl TrialStatus {
+    /// The trials to run again: missing and failed, sorted.
+    pub fn to_rerun(&self) -> Vec<usize> {
+        let mut v: Vec<usize> = self
+            .missing
+            .iter()
+            .copied()
+            .chain(self.failed.iter().map(|(t, _)| *t))
+            .collect();
+        v.sort_unstable();
+        v.dedup();
+        v
+    }
+}
+
+/// Classifies every trial of `plan` from the trial files `files` (a file
+/// for another plan is stale; a trial with two files counts once).
+pub fn trial_status(plan: &PlanFile, files: &[std::path::PathBuf]) -> TrialStatus {
+    let trials = plan.plan.trials().len();
+    let mut seen = vec![false; trials];
+    let mut status = TrialStatus::default();
+    for path in files {
+        match read_trial(path, &plan.checksum, trials) {
+            Ok(TrialOutcome::Done(r)) => {
+                if !seen[r.trial] {
+                    seen[r.trial] = true;
+                    status.done.push(r.trial);
+                }
+            }
+            Ok(TrialOutcome::Failed(t, why)) => {
+                if !seen[t] {
+                    seen[t] = true;
+                    status.failed.push((t, why));
+                }
+            }
+            Err(e) => {
+                let text = std::fs::read_to_string(path).unwrap_or_default();
+                let other_plan = serde_json::from_str::<serde_json::Value>(&text)
+                    .ok()
+                    .filter(|v| v.get("format").and_then(|f| f.as_str()) == Some(TRIAL_FORMAT))
+                    .is_some_and(|v| {
+                        v.get("plan_checksum").and_then(|c| c.as_str()) != Some(&plan.checksum)
+                            || v.get("format_version").and_then(|x| x.as_u64())
+                                != Some(u64::from(FILE_VERSION))
+                    });
+                if other_plan {
+                    status.stale.push(path.clone());
+                } else {
+                    status.unreadable.push((path.clone(), e.to_string()));
+                }
+            }
+        }
+    }
+    status.done.sort_unstable();
+    status.failed.sort_by_key(|(t, _)| *t);
+    status.missing = (0..trials).filter(|&t| !seen[t]).collect();
+    status
+}
+
+/// Merges the trial files of `plan` into its table, checking that every
+/// trial is there once, none failed, and each held out the plan's rows.
+/// Returns the table, the table's row count and its class names.
+///
+/// # Errors
+/// A missing, failed or repeated trial (all named), a file for another
+/// plan, or one whose held-out rows differ from the plan's.
+pub fn merge_trial_files(
+    plan: &PlanFile,
+    files: &[std::path::PathBuf],
+) -> Result<(super::SweepTable, usize, Vec<String>)> {
+    let p = &plan.plan;
+    let trials = p.trials().len();
+    let k = p.folds.folds.len();
+    let mut results: Vec<Option<Box<TrialResult>>> = vec![None; trials];
+    let mut failed = Vec::new();
+    for path in files {
+        match read_trial(path, &plan.checksum, trials)? {
+            TrialOutcome::Failed(t, why) => failed.push(format!("trial {t}: {why}")),
+            TrialOutcome::Done(mut r) => {
+                let fold = r.trial % k;
+                if r.result.test_rows != p.folds.folds[fold].test {
+                    return Err(Error::input(
+                        path.display().to_string(),
+                        format!(
+                            "trial {} holds other held-out rows than the plan's fold {}; run the trial again",
+                            r.trial,
+                            fold + 1
+                        ),
+                    ));
+                }
+                r.result.index = fold;
+                let index = r.trial;
+                if results[index].is_some() {
+                    return Err(Error::input(
+                        path.display().to_string(),
+                        format!("trial {index} appears twice; merge one file per trial"),
+                    ));
+                }
+                results[index] = Some(r);
+            }
+        }
+    }
+    if !failed.is_empty() {
+        return Err(Error::input(
+            "merging sweep trials",
+            format!(
+                "{} failed ({}); fix the cause and run them again",
+                if failed.len() == 1 {
+                    "a trial"
+                } else {
+                    "trials"
+                },
+                failed.join("; ")
+            ),
+        ));
+    }
+    let missing: Vec<usize> = (0..trials).filter(|&t| results[t].is_none()).collect();
+    if !missing.is_empty() {
+        return Err(Error::input(
+            "merging sweep trials",
+            format!(
+                "no results for trials {}; run them (sweep-trial --trials {}) and merge again",
+                index_list(&missing),
+                index_list(&missing)
+            ),
+        ));
+    }
+    let results: Vec<TrialResult> = results.into_iter().map(|r| *r.expect("checked")).collect();
+    let rows = results[0].rows;
+    let classes = results[0].classes.clone();
+    let table = p.merge(
+        rows,
+        &classes,
+        results.into_iter().map(|r| r.result).collect(),
+    )?;
+    Ok((table, rows, classes))
+}
+
+/// Indices as a compact list: `0-3,7,9-10`.
+pub fn index_list(indices: &[usize]) -> String {
+    let mut parts = Vec::new();
+    let mut i = 0;
+    while i < indices.len() {
+        let start = indices[i];
+        let mut end = start;
+        while i + 1 < indices.len() && indices[i + 1] == end + 1 {
+            i += 1;
+            end = indices[i];
+        }
+        parts.push(if start == end {
+            start.to_string()
+        } else {
+            format!("{start}-{end}")
+        });
+        i += 1;
+    }
+    parts.join(",")
 }
 
 /// Parses the text of a trial file (see [`read_trial`]).
@@ -519,9 +895,19 @@ pub fn parse_trial(
     }
     let scores = Scores::from_predictions(&target, predictions.view())
         .map_err(|e| e.context(path.display().to_string()))?;
-    let t = file.training;
+    if file.baseline.len() != predictions.ncols() || file.baseline.iter().any(|v| !v.is_finite()) {
+        return Err(bad(format!(
+            "its baseline holds {} values for {} prediction columns (or a value that is not a finite number)",
+            file.baseline.len(),
+            predictions.ncols()
+        )));
+    }
+    let baseline = FoldBaseline::scored(file.baseline, &target)
+        .map_err(|e| e.context(path.display().to_string()))?;
+    let mut t = file.training;
     let history = t
         .history
+        .take()
         .unwrap_or_default()
         .into_iter()
         .map(|e| EpochRecord {
@@ -546,6 +932,7 @@ pub fn parse_trial(
     Ok(TrialResult {
         trial: file.trial,
         result: FoldResult {
+            baseline,
             index: 0,
             seed,
             train_rows: file.train_rows,
@@ -553,6 +940,33 @@ pub fn parse_trial(
             scores,
             predictions,
             report,
+            model: None,
+            imputer: t
+                .fill_values
+                .map(crate::data::Imputer::from_parts)
+                .transpose()
+                .map_err(|e| bad(e.to_string()))?,
+            target_scaler: match t.target_scaler {
+                None => None,
+                Some((kind, offset, scale)) => Some(
+                    crate::data::Scaler::from_parts(
+                        kind.parse().map_err(|e: Error| bad(e.to_string()))?,
+                        offset,
+                        scale,
+                    )
+                    .map_err(|e| bad(e.to_string()))?,
+                ),
+            },
+            notes: t
+                .notes
+                .into_iter()
+                .map(crate::error::Message::new)
+                .collect(),
+            warnings: t
+                .warnings
+                .into_iter()
+                .map(crate::error::Message::new)
+                .collect(),
         },
         rows: file.rows,
         classes: file.classes,

@@ -249,14 +249,12 @@ fn sweep_plan_trials_and_merge_equal_a_local_sweep() {
         files.push(out);
     }
     files.reverse();
+    let table = parts();
     let mut args = vec!["sweep-merge", &plan[..]];
     args.extend(files.iter().map(String::as_str));
-    args.push("--json");
+    args.extend(["--data", &table, "--json"]);
     let merged = json(&stratanet(&args));
-    assert_eq!(
-        merged["rows"], local["rows"],
-        "merged trials differ from the local sweep"
-    );
+    assert_eq!(merged, local, "merged trials differ from the local sweep");
 }
 
 #[test]
@@ -264,10 +262,10 @@ fn malformed_csvs_exit_2_naming_line_and_column() {
     let bad = data_dir().join("bad");
     let cases = [
         ("ragged.csv", "line 3"),
-        ("not_a_number.csv", "line 3, column \"bore_um\""),
+        ("not_a_number.csv", "column \"bore_um\" (0): 1 cell is a number but 1 is not: \"12a\" (1 cell, line 3)"),
         ("missing.csv", "line 3, column \"roughness_um\""),
         ("duplicate.csv", "line 1"),
-        ("infinite.csv", "line 2, column \"roughness_um\""),
+        ("infinite.csv", "column \"roughness_um\" (1): 1 cell is a number but 1 is not: \"inf\" (1 cell, line 2)"),
         ("empty.csv", "empty"),
         ("header_only.csv", "no data rows"),
         ("single_class.csv", "only one class"),
@@ -331,6 +329,7 @@ fn usage_errors_exit_2_and_help_exits_0() {
         "sweep",
         "sweep-trial",
         "sweep-merge",
+        "sweep-status",
         "demo",
     ] {
         let out = stratanet(&[sub, "--help"]);
@@ -391,5 +390,133 @@ fn check_arguments_validates_without_reading_files() {
     assert!(
         err.starts_with("error: the following required arguments were not provided"),
         "{err}"
+    );
+}
+
+fn table(file: &str) -> String {
+    data_dir().join("tables").join(file).display().to_string()
+}
+
+/// The crafted tables through the command line: the decisions and
+/// warnings reach the text and every `--json` output's `warnings`; IDs
+/// reach the prediction CSV; `check` on the training table says it is
+/// in-sample; an option without effect is refused by its flag.
+#[test]
+fn decisions_and_warnings_reach_text_json_and_predictions() {
+    let dir = scratch("cli-tables");
+    let model = dir.join("model.json").display().to_string();
+    let ids = table("id-column.csv");
+    // inspect
+    let v = json(&stratanet(&[
+        "inspect", &ids, "--target", "grade", "--json",
+    ]));
+    has_keys(
+        &v,
+        &[
+            "command",
+            "rows",
+            "task",
+            "target",
+            "columns",
+            "decisions",
+            "warnings",
+        ],
+    );
+    assert_eq!(
+        v["columns"][0]["role"],
+        "left out (looks like an identifier)"
+    );
+    assert!(v["warnings"][0].as_str().unwrap().contains("--id sample"));
+    let out = stratanet(&["inspect", &ids, "--target", "grade"]);
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(
+        text.contains("why: every non-missing cell is a number"),
+        "{text}"
+    );
+    // fit: the ID carried, warnings in JSON
+    let v = json(&stratanet(&[
+        "fit", &ids, "--target", "grade", "--id", "sample", "--hidden", "2", "--epochs", "5",
+        "--out", &model, "--json",
+    ]));
+    has_keys(
+        &v,
+        &[
+            "warnings",
+            "decisions",
+            "notes",
+            "baseline",
+            "loss",
+            "task",
+            "ids",
+        ],
+    );
+    assert_eq!(v["ids"][0], "sample");
+    assert!(v["notes"][0]
+        .as_str()
+        .unwrap()
+        .starts_with("early stopping is off"));
+    // predict carries the IDs
+    let preds = dir.join("p.csv").display().to_string();
+    let v = json(&stratanet(&[
+        "predict", &model, &ids, "--out", &preds, "--json",
+    ]));
+    has_keys(&v, &["warnings", "decisions", "columns"]);
+    let p = std::fs::read_to_string(&preds).unwrap();
+    assert!(
+        p.starts_with("line,sample,predicted,p_bad,p_ok\n2,S-1000,"),
+        "{p}"
+    );
+    // check on the training table is in-sample
+    let v = json(&stratanet(&["check", &model, &ids, "--json"]));
+    assert_eq!(v["in_sample"], true);
+    assert!(v["warnings"][0]
+        .as_str()
+        .unwrap()
+        .starts_with("these are the rows the model was fitted on"));
+    // cv and sweep carry warnings
+    let v = json(&stratanet(&[
+        "cv", &ids, "--target", "grade", "--folds", "3", "--hidden", "2", "--epochs", "5", "--json",
+    ]));
+    has_keys(&v, &["warnings", "decisions", "fit_notes"]);
+    assert!(v["warnings"][0]
+        .as_str()
+        .unwrap()
+        .contains("looks like an identifier"));
+    // --categorical outside --features is refused by its flag
+    let out = stratanet(&[
+        "fit",
+        &ids,
+        "--target",
+        "grade",
+        "--features",
+        "width_mm",
+        "--categorical",
+        "height_mm",
+        "--out",
+        &model,
+    ]);
+    assert_eq!(out.status.code(), Some(2));
+    assert_eq!(
+        String::from_utf8_lossy(&out.stderr).trim_end(),
+        "stratanet: option --categorical = height_mm: has no effect: the column is not among the --features (width_mm); add it there or leave it out"
+    );
+    // a regression target in raw units, asked for
+    let v = json(&stratanet(&[
+        "fit",
+        &table("whole-number-target.csv"),
+        "--target",
+        "count",
+        "--task",
+        "regression",
+        "--hidden",
+        "none",
+        "--out",
+        &model,
+        "--json",
+    ]));
+    assert_eq!(v["task"], "regression");
+    assert_eq!(
+        v["loss_definition"],
+        "half the squared error of the scaled target, mean per row"
     );
 }

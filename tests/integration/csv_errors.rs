@@ -20,9 +20,9 @@ fn each_bad_file_has_its_exact_message() {
         ("ragged.csv", verdict(),
          "bad/ragged.csv: line 3: found 2 cells but the header has 3; every row needs one cell per column (check for a stray or missing comma)"),
         ("not_a_number.csv", verdict(),
-         "bad/not_a_number.csv: line 3, column \"bore_um\" (0): cannot read the cell as a number, and the column is numeric (its first value was a number); correct the cell, drop the column, or list it as categorical (`categorical`) (found \"12a\")"),
+         "bad/not_a_number.csv: column \"bore_um\" (0): 1 cell is a number but 1 is not: \"12a\" (1 cell, line 3); if these mark missing cells, list them in missing_markers (and choose what happens to missing cells with missing); if the column holds categories, list it in categorical; otherwise correct the cells"),
         ("missing.csv", verdict(),
-         "bad/missing.csv: line 3, column \"roughness_um\" (1): missing value \"NA\"; fill the cell, or set missing = drop to drop rows with missing cells"),
+         "bad/missing.csv: line 3, column \"roughness_um\" (1): missing value \"NA\"; fill the cell, or set missing = drop to drop rows with missing cells, or missing = impute to fill them from the training rows"),
         ("single_class.csv", verdict(),
          "bad/single_class.csv: target column \"verdict\" holds only one class (\"accept\"); a classifier needs at least two classes"),
         ("empty.csv", verdict(),
@@ -32,7 +32,7 @@ fn each_bad_file_has_its_exact_message() {
         ("duplicate.csv", verdict(),
          "bad/duplicate.csv: line 1: column name \"bore_um\" appears twice (columns 0 and 1); give every column a distinct name"),
         ("infinite.csv", verdict(),
-         "bad/infinite.csv: line 2, column \"roughness_um\" (1): is not a finite number; measurements must be finite (check the exporter's overflow marker) (found \"inf\")"),
+         "bad/infinite.csv: column \"roughness_um\" (1): 1 cell is a number but 1 is not: \"inf\" (1 cell, line 2); they are not finite numbers (check the exporter's overflow marker); if these mark missing cells, list them in missing_markers (and choose what happens to missing cells with missing); if the column holds categories, list it in categorical; otherwise correct the cells"),
         ("single_class.csv", CsvOptions::new("verdit"),
          "bad/single_class.csv: no column \"verdit\"; columns are: bore_um, roughness_um, verdict"),
         ("single_class.csv", CsvOptions::new("verdict").drop(&["width"]),
@@ -48,8 +48,11 @@ fn each_bad_file_has_its_exact_message() {
 #[test]
 fn missing_cells_can_be_dropped_and_are_counted() {
     let path = data_dir().join("bad").join("missing.csv");
+    // Two rows are left, one of each class: asking for classification
+    // goes ahead where the automatic choice would refuse single-row classes.
     let data = CsvOptions::new("verdict")
         .missing(Missing::Drop)
+        .task(stratanet::data::Task::Classification)
         .read(&path)
         .unwrap();
     assert_eq!(data.n_rows(), 2);

@@ -61,8 +61,8 @@ fn seeds_and_regressions_pass_the_fuzz_checks() {
     assert!(replayed >= 30, "only {replayed} inputs replayed");
 }
 
-/// Option bytes for the CSV target: target column 0..3, each flag pattern.
-fn csv_seed(dir: &Path, stem: &str, text: &[u8], heads: &[[u8; 4]]) {
+/// Option bytes for the CSV target (six; see `harness::csv_table`).
+fn csv_seed(dir: &Path, stem: &str, text: &[u8], heads: &[[u8; 6]]) {
     for (i, head) in heads.iter().enumerate() {
         let mut bytes = head.to_vec();
         bytes.extend_from_slice(text);
@@ -96,7 +96,24 @@ fn write_seeds() {
                 &csv,
                 &stem,
                 &fs::read(&path).unwrap(),
-                &[[0, 0, 0, 0], [1, 1, 0, 0]],
+                &[[0, 0, 0, 0, 0, 0], [1, 1, 0, 0, 0, 0]],
+            );
+        }
+    }
+    // The crafted tables, read as they come and with the options that
+    // read them (impute, a decimal comma, an ID column).
+    for path in files(&root().join("tests/data/tables")) {
+        if path.extension().is_some_and(|e| e == "csv") {
+            let stem = path.file_stem().unwrap().to_string_lossy().into_owned();
+            csv_seed(
+                &csv,
+                &stem,
+                &fs::read(&path).unwrap(),
+                &[
+                    [2, 0, 0, 0, 0, 0],
+                    [3, 0x03, 1, 0, 0x18, 0],
+                    [2, 0x12, 0, 0, 0x20, 0],
+                ],
             );
         }
     }
@@ -107,10 +124,11 @@ fn write_seeds() {
             table,
             &text,
             &[
-                [7, 0, 0, 0],
-                [7, 0x21, 2, 0],
-                [3, 0x44, 0, 0],
-                [5, 0x83, 1, 0],
+                [7, 0, 0, 0, 0, 0],
+                [7, 0x02, 2, 0, 0x01, 0],
+                [3, 0x06, 0, 0, 0x0a, 0],
+                [5, 0x13, 1, 0, 0x04, 0],
+                [0, 0x20, 0, 0, 0x20, 1],
             ],
         );
     }
@@ -184,8 +202,14 @@ fn write_seeds() {
         "sweep demo-data/parts.csv --target verdict --drop part_id --grid-hidden 4,12,12-6 --grid-learning-rate 0.003,0.01",
         "sweep data.csv --target y --grid-hidden 8,16,32 --write-plan plan.jsonl",
         "sweep-trial plan.jsonl data.csv --trial 3 --out trial-3.json",
+        "sweep-trial plan.jsonl data.csv --task 2 --tasks 20 --out-dir trials",
+        "sweep-merge plan.jsonl trials --data data.csv --out best-model.json",
+        "sweep-status plan.jsonl trials --tasks 20",
+        "sweep data.csv --target y --random 20 --range-learning-rate 0.0001:0.1 --range-hidden 4:64 --halving 3",
         "fit data.csv --target y --learning-rate 0 --epochs 10",
         "demo --seed 7 --json",
+        "inspect data.csv --target y --missing impute --missing-indicators --decimal comma --delimiter semicolon --id row --task regression --json",
+        "fit data.csv --target y --class-weights balanced --missing-markers n.a.,- --categorical z --features z,w",
     ];
     for (i, line) in lines.iter().enumerate() {
         let joined = line.split(' ').collect::<Vec<_>>().join("\0");

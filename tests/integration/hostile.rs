@@ -122,7 +122,16 @@ fn one_positive_in_ten_thousand_fits_and_says_what_is_undefined() {
         let class = if i == 4321 { "defect" } else { "good" };
         text.push_str(&format!("{a},{b},{class}\n"));
     }
+    // A class of one row is refused unless classification is asked for.
+    let refused = CsvOptions::new("class")
+        .read_str(&text, "rare.csv")
+        .unwrap_err();
+    assert_eq!(
+        refused.to_string(),
+        "rare.csv: column \"class\" (2): 1 of its 2 classes has a single row: \"defect\" (line 4323); a class of one row cannot be both learnt and checked. If the target holds classes, set task = classification to go ahead anyway; if it is a number, set task = regression"
+    );
     let data = CsvOptions::new("class")
+        .task(stratanet::data::Task::Classification)
         .read_str(&text, "rare.csv")
         .unwrap();
     assert_eq!(data.class_counts(), [1, 9999]);
@@ -271,7 +280,7 @@ fn edited_sweep_plans_are_refused_before_any_trial_runs() {
     let plan = SweepPlan::new(
         &data,
         &quick(),
-        &grid,
+        &grid.clone().into(),
         &cv,
         Metric::Accuracy,
         &mut seeded_rng(1),

@@ -439,7 +439,7 @@ fn missing_unknown_and_mistyped_fields_are_named() {
             (
                 "unknown-field.json",
                 replaced(&text, "\"seed\":", "\"comment\": \"hello\",\n  \"seed\":"),
-                "unknown-field.json: not a usable model file: line 87, column 11: unknown field `comment`, expected one of `format`, `format_version`, `target`, `columns`, `feature_names`, `scaler`, `training_options`, `seed`, `provenance`, `network`",
+                "unknown-field.json: not a usable model file: line 87, column 11: unknown field `comment`, expected one of `format`, `format_version`, `target`, `columns`, `feature_names`, `scaler`, `imputer`, `target_scaler`, `table`, `training_options`, `seed`, `provenance`, `network`",
             ),
             (
                 "unknown-activation.json",
@@ -698,7 +698,7 @@ fn missing_and_extra_columns_are_listed() {
     let extra = "lot,bore_um,shift,note,roughness_um\nA7,12,late,ok,1\n";
     assert_eq!(
         read(extra, plain()).unwrap_err(),
-        "new.csv: line 1: the file has columns the model does not use: lot, note; remove them, or allow them with FeatureOptions::ignore_extra(true)"
+        "new.csv: line 1: the file has columns the model does not use: lot, note; remove them, or allow them with ignore_extra"
     );
     let rows = plain()
         .ignore_extra(true)
@@ -740,7 +740,7 @@ fn unknown_categories_classes_and_bad_cells_are_refused_with_line_and_column() {
     );
     assert_eq!(
         read(&format!("{header}12,late,inf,accept\n"), plain()).unwrap_err(),
-        "new.csv: line 2, column \"roughness_um\" (2): is not a finite number; measurements must be finite (check the exporter's overflow marker) (found \"inf\")"
+        "new.csv: line 2, column \"roughness_um\" (2): is not a finite number, and the model's column is numeric; measurements must be finite (check the exporter's overflow marker) (found \"inf\")"
     );
     let gaps = format!(
         "{header}12,late,1,accept\n12.5,,0.9,accept\n13,early,NA,reject\n13.5,early,1.2,\n"

@@ -140,7 +140,7 @@ fn too_many_folds_is_a_clear_error() {
     let e = cross_validate(&data, &quick(), &cv, &mut seeded_rng(1)).unwrap_err();
     assert_eq!(
         e.to_string(),
-        "option folds = 200: must be at most 91, the row count of the smallest class, so that every fold holds every class"
+        "option folds = 200: must be at most 91, the row count of the smallest class, \"scrap\": stratified folds put every class in every fold; use at most 91 folds, or collect more rows of \"scrap\""
     );
 }
 
@@ -191,7 +191,7 @@ fn sweep_is_sorted_and_distributed_trials_merge_to_the_same_table() {
     let local = sweep(
         &data,
         &base,
-        &grid,
+        &grid.clone().into(),
         &cv,
         Metric::Accuracy,
         &mut seeded_rng(12),
@@ -206,7 +206,7 @@ fn sweep_is_sorted_and_distributed_trials_merge_to_the_same_table() {
     let plan = SweepPlan::new(
         &data,
         &base,
-        &grid,
+        &grid.clone().into(),
         &cv,
         Metric::Accuracy,
         &mut seeded_rng(12),
@@ -231,7 +231,7 @@ fn sweep_is_sorted_and_distributed_trials_merge_to_the_same_table() {
     let e = sweep(
         &data,
         &base,
-        &grid,
+        &grid.clone().into(),
         &cv,
         Metric::RSquared,
         &mut seeded_rng(12),

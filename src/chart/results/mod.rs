@@ -7,6 +7,8 @@
 //! (the model, the rows and their count) and draws it.
 
 mod model;
+mod table;
+mod validation;
 
 use std::path::Path;
 
@@ -302,7 +304,8 @@ fn scores_chart(
     let figure = compare::prepare(&scores, metric.name(), metric.higher_is_better(), &options)?;
     let cv = configurations[0].1;
     let mut lines = vec![format!(
-        "{}-fold cross-validation{} on {} rows; each dot is one fold's held-out rows",
+        "{}: each dot one fold's held-out rows; {}-fold cross-validation{} of {} rows",
+        cv.scored_rows().label(),
         cv.cv.folds,
         if cv.cv.repeats > 1 {
             format!(" repeated {} times", cv.cv.repeats)
@@ -312,7 +315,17 @@ fn scores_chart(
         group_digits(cv.n_rows)
     )];
     lines.extend(reading);
-    let title = format!("Cross-validated {}", metric.name().replace('_', " "));
+    let what = super::axis_label(metric.name());
+    let mut chars = what.chars();
+    let title = format!(
+        "{}{} on the {}",
+        chars
+            .next()
+            .map(|c| c.to_uppercase().to_string())
+            .unwrap_or_default(),
+        chars.as_str(),
+        cv.scored_rows().label()
+    );
     render(&framed(figure, &options, title, lines), &options)
 }
 

@@ -152,6 +152,12 @@ fn held_values(
                         }
                     ));
                 }
+                ColumnEncoding::MissingIndicator { name } => {
+                    // Held as a row whose cell is present (the indicator
+                    // is 0); the numeric column beside it holds the value.
+                    base[offset] = 0.0;
+                    said.push(format!("{} present (not missing)", axis_label(name)));
+                }
             }
         }
         offset += width;
