@@ -315,7 +315,7 @@ pub(crate) fn cv_section(
     ));
     let mut n = vec![
         "The baseline predicts each fold's training class shares (or training mean) for every held-out row.".to_string(),
-        "The interval treats folds as independent; they share training rows, so it is too narrow (Bengio & Grandvalet 2004).".to_string(),
+        "The 95% interval is the corrected resampled interval (Nadeau & Bengio 2003), which allows for the folds sharing training rows, kept within the metric's range.".to_string(),
     ];
     n.extend(cv.notes());
     page.html(&notes(&n));

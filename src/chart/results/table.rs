@@ -47,10 +47,13 @@ impl TableSummary {
             .filter(|c| c.role != "target")
             .map(|c| ColumnSummary {
                 name: c.name.clone(),
-                kind: if c.role == "feature" {
-                    c.kind.clone()
-                } else {
-                    c.role.clone()
+                kind: match c.role.as_str() {
+                    "feature" => c.kind.clone(),
+                    "id" => "identifier".to_string(),
+                    // "left out (looks like an identifier)": short enough
+                    // for a row label; the table beside it says why.
+                    role if role.starts_with("left out") => "identifier, left out".to_string(),
+                    role => role.to_string(),
                 },
                 missing: c.missing.unwrap_or(0),
                 distinct: c.distinct.unwrap_or(0),

@@ -173,7 +173,11 @@ impl Reliability {
         if options.y_label.is_none() {
             options.y_label = Some(self.forecast.describe().1.to_string());
         }
-        let figure = reliability::prepare(&bins, event, &options)?;
+        let mut figure = reliability::prepare(&bins, event, &options)?;
+        // One line says it all, with the library's own calibration errors.
+        if options.subtitle.is_none() {
+            figure.frame.subtitle.clear();
+        }
         let binning = match self.binning {
             Binning::EqualCount(b) => format!("{b} bins of equal row counts"),
             Binning::EqualWidth(b) => format!("{b} bins of equal width"),
@@ -183,8 +187,8 @@ impl Reliability {
             None => format!("{} rows", group_digits(self.rows)),
         };
         let line = format!(
-            "{rows}, {binning}; maximum calibration error {:.3}",
-            self.maximum_error
+            "{rows} in {binning}; expected calibration error {:.3} (largest in a bin {:.3})",
+            self.expected_error, self.maximum_error
         );
         let title = super::title_on_rows("Reliability", &options);
         render(&framed(figure, &options, title, vec![line]), &options)
