@@ -52,7 +52,7 @@ pub(crate) fn table_section(page: &mut Page, data: &Dataset) -> Result<()> {
     let chart = summary.columns_chart();
     let missing: usize = columns.iter().map(|c| c.missing).sum();
     let mut caption = format!(
-        "Each column of the header but the target: its role or decided type, its missing cells and its distinct values in the {} rows read",
+        "Each column read, but the target (columns dropped by option are not read): its role or decided type, its missing cells and its distinct values in the {} rows read",
         group_digits(rows_read)
     );
     caption.push_str(&match (missing, data.dropped_rows()) {

@@ -7,9 +7,10 @@ use crate::data::TableSummary;
 use crate::error::Result;
 
 impl TableSummary {
-    /// Every header column but the target, one row each: its role (or its
-    /// decided type, for an input), the share of the rows read whose cell
-    /// is missing, and its distinct values.
+    /// Every header column that was read, but the target, one row each:
+    /// its role (or its decided type, for an input), the share of the rows
+    /// read whose cell is missing, and its distinct values. Columns dropped
+    /// before reading are left out: nothing was counted in them.
     ///
     /// # Errors
     /// A table with no column besides the target.
@@ -44,7 +45,8 @@ impl TableSummary {
         let columns = self
             .columns
             .iter()
-            .filter(|c| c.role != "target")
+            // A column dropped before reading has no counts to draw.
+            .filter(|c| c.role != "target" && c.distinct.is_some())
             .map(|c| ColumnSummary {
                 name: c.name.clone(),
                 kind: match c.role.as_str() {
