@@ -10,9 +10,10 @@ use super::charts;
 use super::paths::Outputs;
 use crate::data::CsvOptions;
 use crate::error::{Error, Result};
-use crate::fit::FitOptions;
+use crate::fit::{CostMatrix, FitOptions};
 use crate::model_file::{FeatureOptions, TargetColumn};
 use crate::train::EarlyStopping;
+use crate::validate::metrics::Binning;
 use crate::validate::{Candidates, CvOptions, Grid, Halving, Metric, RandomSearch, Search};
 use std::path::PathBuf;
 
@@ -40,6 +41,7 @@ pub(crate) struct FitJob {
     pub out: PathBuf,
     pub charts: Option<PathBuf>,
     pub report: Option<PathBuf>,
+    pub costs: Option<CostMatrix>,
 }
 
 pub(crate) struct CheckJob {
@@ -69,6 +71,9 @@ pub(crate) struct CvJob {
     pub seed: u64,
     pub charts: Option<PathBuf>,
     pub report: Option<PathBuf>,
+    pub out_of_fold: Option<PathBuf>,
+    pub costs: Option<CostMatrix>,
+    pub bins: Binning,
 }
 
 pub(crate) struct SweepJob {
@@ -234,6 +239,15 @@ fn fit_options(n: &NetArgs) -> Result<FitOptions> {
     if let Some(s) = n.target_scaling {
         o.target_scaling = s;
     }
+    if let Some(c) = n.calibration {
+        o.calibration = c;
+    }
+    o.threshold_target = match (n.target_recall, n.target_precision) {
+        (Some(r), _) => Some(crate::fit::ThresholdTarget::Recall(r)),
+        (None, Some(q)) => Some(crate::fit::ThresholdTarget::Precision(q)),
+        (None, None) => None,
+    };
+    o.positive_class = n.positive_class.clone();
     if let Some(w) = &n.class_weights {
         o.class_weights = w.clone();
     }
@@ -338,7 +352,10 @@ fn fit(a: FitArgs) -> Result<FitJob> {
                 .collect(),
         );
     }
-    outputs.check(&[&a.data])?;
+    let mut inputs: Vec<&std::path::Path> = vec![&a.data];
+    inputs.extend(a.costs.as_deref());
+    outputs.check(&inputs)?;
+    let costs = a.costs.as_deref().map(CostMatrix::read).transpose()?;
     Ok(FitJob {
         data: a.data,
         table: table(a.table)?,
@@ -347,6 +364,7 @@ fn fit(a: FitArgs) -> Result<FitJob> {
         out: a.out,
         charts: a.charts,
         report: a.report,
+        costs,
     })
 }
 
@@ -384,7 +402,13 @@ fn cv(a: CvArgs) -> Result<CvJob> {
                 .collect(),
         );
     }
-    outputs.check(&[&a.data])?;
+    if let Some(path) = &a.out_of_fold {
+        outputs = outputs.file("out_of_fold", path);
+    }
+    let mut inputs: Vec<&std::path::Path> = vec![&a.data];
+    inputs.extend(a.costs.as_deref());
+    outputs.check(&inputs)?;
+    let costs = a.costs.as_deref().map(CostMatrix::read).transpose()?;
     Ok(CvJob {
         data: a.data,
         table: table(a.table)?,
@@ -393,6 +417,9 @@ fn cv(a: CvArgs) -> Result<CvJob> {
         seed: a.net.seed,
         charts: a.charts,
         report: a.report,
+        out_of_fold: a.out_of_fold,
+        costs,
+        bins: a.bins,
     })
 }
 
