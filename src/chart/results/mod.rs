@@ -262,7 +262,8 @@ impl SweepTable {
             compare::prepare(&scores, metric.name(), metric.higher_is_better(), &options)?;
         if let Some(first) = self.rows.first() {
             figure.frame.subtitle = vec![format!(
-                "{} configurations on the same {} folds of {} rows",
+                "{}: {} configurations on the same {} folds of {} rows",
+                first.cross_validation.scored_rows().label(),
                 self.rows.len(),
                 first.cross_validation.folds.len(),
                 group_digits(first.cross_validation.n_rows)
