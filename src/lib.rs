@@ -64,14 +64,18 @@
 //!
 //! ## Features
 //!
-//! One, `cli` (on by default): the command line, the `stratanet` binary,
-//! [`command_line_main`] and [`check_command_line`], and the argument
-//! parser they need. A notebook compiles less without it:
+//! - `cli` (on by default): the command line, the `stratanet` binary,
+//!   [`command_line_main`] and [`check_command_line`], and the argument
+//!   parser they need. A notebook compiles less without it:
 //!
-//! ```text
-//! :dep stratanet = { path = "..", default-features = false }
-//! ```
-//! Charts and model files are always built.
+//!   ```text
+//!   :dep stratanet = { path = "..", default-features = false, features = ["export"] }
+//!   ```
+//! - `export` (on by default): saving charts as PDF and PNG
+//!   ([`chart::Chart::save`] by extension), through resvg and svg2pdf. Off
+//!   (`default-features = false`), the crate builds without them and SVG
+//!   is the only chart format; the charts, model files, reports and command
+//!   line are always built.
 #![warn(missing_docs)]
 // Without the command line, some crate-private helpers it alone calls are
 // unused; that is expected, not a warning.

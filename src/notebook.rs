@@ -507,10 +507,16 @@ impl CrossValidation {
 impl Comparison {
     /// An HTML table of the two configurations and the test.
     pub fn to_html(&self) -> String {
+        self.to_html_named("A", "B")
+    }
+
+    /// [`Comparison::to_html`] with the configurations named, so a page
+    /// can use the names its charts use.
+    pub fn to_html_named(&self, a_name: &str, b_name: &str) -> String {
         let a = self.a.metric(self.metric).map(|m| m.summary.clone());
         let b = self.b.metric(self.metric).map(|m| m.summary.clone());
         let mut rows = Vec::new();
-        for (name, s) in [("A", a), ("B", b)] {
+        for (name, s) in [(a_name, a), (b_name, b)] {
             if let Ok(s) = s {
                 rows.push(vec![
                     name.to_string(),
@@ -527,7 +533,10 @@ impl Comparison {
         );
         let t = &self.test;
         let trows = vec![
-            vec!["mean difference A - B".into(), f(t.mean_difference)],
+            vec![
+                format!("mean difference {a_name} − {b_name}"),
+                f(t.mean_difference),
+            ],
             vec!["corrected t".into(), f(t.t)],
             vec![
                 "degrees of freedom".into(),
@@ -542,7 +551,7 @@ impl Comparison {
             &["", "value"],
             &trows,
         ));
-        let mut n = vec![t.reading.clone()];
+        let mut n = vec![crate::chart::named_reading(&t.reading, a_name, b_name)];
         n.extend(t.undefined.clone());
         h.push_str(&notes(&n));
         h

@@ -2,10 +2,10 @@
 //! several configurations, one row each, best first.
 
 use super::draw::{
-    self, draw_axes, fit_text, format_value, linear_ticks, text_width, Align, Axis, Baseline,
-    Canvas, Font, Grid, Page, Rect, Scale, ScaleKind,
+    finite_range, format_value, linear_ticks, pad_range, render, AxisSpec, Entry, Figure, Grid,
+    Key, Mark, Panel, Stroke, XyPanel,
 };
-use super::theme::{self, size, Marker};
+use super::theme::{self, Marker};
 use super::{group_digits, Chart, ChartOptions};
 use crate::{Error, Result};
 
@@ -22,15 +22,15 @@ pub struct ConfigurationScores {
     pub interval: (f64, f64),
 }
 
-/// Row height above which rows stop growing, in pixels.
-const MAX_ROW: f64 = 80.0;
-/// Row height below which rows are left out (the worst ones, noted).
-const MIN_ROW: f64 = 16.0;
+/// Natural row height, in pixels.
+const ROW: f64 = 30.0;
+/// Rows shown at most; the worst beyond it are left out (noted).
+const MAX_ROWS: usize = 40;
 
 /// Colours of the three marks, kept apart from class colours' meaning.
-const FOLD: theme::Rgb = theme::OKABE_ITO[5];
-const INTERVAL: theme::Rgb = theme::OKABE_ITO[0];
-const MEAN: theme::Rgb = theme::INK;
+pub(crate) const FOLD: theme::Rgb = theme::OKABE_ITO[5];
+pub(crate) const INTERVAL: theme::Rgb = theme::OKABE_ITO[0];
+pub(crate) const MEAN: theme::Rgb = theme::INK;
 
 /// Draws several configurations' cross-validation scores, one row each,
 /// sorted by mean with the best at the top.
@@ -42,8 +42,11 @@ const MEAN: theme::Rgb = theme::INK;
 /// "best" lies (true for accuracy, false for a loss or an error rate).
 ///
 /// Non-finite fold scores are skipped (noted); a configuration whose mean
-/// is not finite goes to the bottom without a diamond. When rows would be
-/// shorter than 16 pixels, the worst configurations are left out (noted).
+/// is not finite goes to the bottom without a diamond. At most 40 rows
+/// are shown (at a fixed height, as many as leave 16 pixels each); the
+/// worst configurations beyond that are left out (noted). The chart's
+/// natural height grows with the rows, so two configurations make a short
+/// chart and forty a tall one.
 ///
 /// # Errors
 ///
@@ -78,7 +81,102 @@ pub fn cross_validation_comparison(
     higher_is_better: bool,
     options: &ChartOptions,
 ) -> Result<Chart> {
-    let title = options.check("Cross-validation comparison")?;
+    let figure = prepare(configurations, metric, higher_is_better, options)?;
+    render(&figure, options)
+}
+
+/// The legend of a ranking: fold score, mean, interval.
+pub(crate) fn ranking_legend(fold: &str, interval: &str) -> Vec<Entry> {
+    vec![
+        Entry::new(
+            fold,
+            Key::Marker {
+                shape: Marker::Circle,
+                colour: FOLD,
+                outline: theme::OUTLINE,
+            },
+        ),
+        Entry::new(
+            "mean",
+            Key::Marker {
+                shape: Marker::Diamond,
+                colour: MEAN,
+                outline: theme::WHITE,
+            },
+        ),
+        Entry::new(interval, Key::Interval { colour: INTERVAL }),
+    ]
+}
+
+/// The marks of one ranked row at category `row`: scattered values
+/// (spread across the row by a fixed golden-ratio sequence, so equal
+/// values stay visible), the interval with caps, and the mean diamond.
+pub(crate) fn row_marks(row: f64, values: &[f64], mean: f64, interval: (f64, f64)) -> Vec<Mark> {
+    let (lo, hi) = (interval.0.min(interval.1), interval.0.max(interval.1));
+    let mut marks = vec![Mark::Interval {
+        at: row,
+        lo,
+        hi,
+        horizontal: true,
+        colour: INTERVAL,
+        width: 2.2,
+        cap: 5.0,
+    }];
+    let scattered: Vec<(f64, f64)> = values
+        .iter()
+        .enumerate()
+        .filter(|(_, v)| v.is_finite())
+        .map(|(f, &v)| (v, row + ((f as f64 * 0.618_033_988_75).fract() - 0.5) * 0.5))
+        .collect();
+    if !scattered.is_empty() {
+        marks.push(Mark::Points {
+            points: scattered,
+            shape: Marker::Circle,
+            fill: FOLD,
+            outline: Some(theme::OUTLINE),
+            radius: 3.2,
+        });
+    }
+    if mean.is_finite() {
+        marks.push(Mark::Points {
+            points: vec![(mean, row)],
+            shape: Marker::Diamond,
+            fill: MEAN,
+            outline: Some(theme::WHITE),
+            radius: 5.0,
+        });
+    }
+    marks
+}
+
+/// Light rules between category rows.
+pub(crate) fn row_rules(rows: usize) -> Vec<Mark> {
+    (1..rows)
+        .map(|k| Mark::HRule {
+            y: k as f64 - 0.5,
+            stroke: Stroke::solid(theme::GRID, 0.8),
+        })
+        .collect()
+}
+
+/// `mean [low, high]` for the numbers beside a row.
+pub(crate) fn mean_and_interval(mean: f64, interval: (f64, f64)) -> String {
+    let (lo, hi) = (interval.0.min(interval.1), interval.0.max(interval.1));
+    format!(
+        "{} [{}, {}]",
+        format_value(mean),
+        format_value(lo),
+        format_value(hi)
+    )
+}
+
+/// What the ranking will show.
+pub(crate) fn prepare(
+    configurations: &[ConfigurationScores],
+    metric: &str,
+    higher_is_better: bool,
+    options: &ChartOptions,
+) -> Result<Figure> {
     let what = "cross-validation comparison";
     if configurations.is_empty() {
         return Err(Error::input(
@@ -92,13 +190,12 @@ pub fn cross_validation_comparison(
             .copied()
             .chain([c.mean, c.interval.0, c.interval.1])
     });
-    let Some(range) = draw::finite_range(all_values) else {
+    if finite_range(all_values).is_none() {
         return Err(Error::input(
             what,
             "no finite score, mean or interval to draw",
         ));
-    };
-
+    }
     // Best first; non-finite means last; ties keep the given order.
     let mut order: Vec<usize> = (0..configurations.len()).collect();
     order.sort_by(|&a, &b| {
@@ -110,7 +207,6 @@ pub fn cross_validation_comparison(
         }
         .then(a.cmp(&b))
     });
-
     let mut notes = Vec::new();
     let skipped: usize = configurations
         .iter()
@@ -126,6 +222,19 @@ pub fn cross_validation_comparison(
     for c in configurations.iter().filter(|c| !c.mean.is_finite()) {
         notes.push(format!("{}: the mean is not a number; shown last", c.name));
     }
+    // Rows that fit: all at the natural height (up to MAX_ROWS); at a
+    // given height, as many as leave 16 px each.
+    let fit = match options.height {
+        Some(h) => (((h as f64 - 150.0) / 16.0).floor() as usize).max(1),
+        None => MAX_ROWS,
+    };
+    if order.len() > fit {
+        notes.push(format!(
+            "showing the best {fit} of {} configurations",
+            order.len()
+        ));
+        order.truncate(fit);
+    }
     let direction = if higher_is_better {
         "higher is better"
     } else {
@@ -135,45 +244,6 @@ pub fn cross_validation_comparison(
         .x_label
         .clone()
         .unwrap_or_else(|| format!("{} ({direction})", super::axis_label(metric)));
-
-    // How many rows fit (a pure function of the size), so the note is known before drawing.
-    let fits = |notes: usize| {
-        let placeholder = vec![String::new(); notes];
-        let page = Page::sized(
-            options.width as f64,
-            options.height as f64,
-            &title,
-            placeholder,
-        );
-        let rows_space = page.content.height() - 28.0 - draw::bottom_gutter(true);
-        ((rows_space / MIN_ROW).floor() as usize).max(1)
-    };
-    if order.len() > fits(notes.len()) {
-        // The note itself takes a line.
-        let fit = fits(notes.len() + 1);
-        notes.push(format!(
-            "showing the best {fit} of {} configurations",
-            order.len()
-        ));
-        order.truncate(fit);
-    }
-
-    let summaries: Vec<String> = order
-        .iter()
-        .map(|&i| {
-            let c = &configurations[i];
-            let (lo, hi) = (
-                c.interval.0.min(c.interval.1),
-                c.interval.0.max(c.interval.1),
-            );
-            format!(
-                "{} [{}, {}]",
-                format_value(c.mean),
-                format_value(lo),
-                format_value(hi)
-            )
-        })
-        .collect();
     // The axis covers the rows shown only.
     let shown_values = order.iter().flat_map(|&i| {
         let c = &configurations[i];
@@ -182,166 +252,32 @@ pub fn cross_validation_comparison(
             .copied()
             .chain([c.mean, c.interval.0, c.interval.1])
     });
-    let ticks_range = draw::pad_range(draw::finite_range(shown_values).unwrap_or(range), 0.04);
-    let ticks = linear_ticks(ticks_range.0, ticks_range.1, 6);
-
-    draw::render(options.width, options.height, &title, |canvas| {
-        let page = Page::new(canvas, &title, notes.clone());
-        page.draw(canvas)?;
-        let content = page.content;
-        let key_bottom = draw_key(canvas, content.left, content.top)?;
-        let name_width = order
-            .iter()
-            .map(|&i| text_width(&configurations[i].name, size::LABEL))
-            .fold(0.0, f64::max)
-            .min(content.width() * 0.36);
-        let summary_width = summaries
-            .iter()
-            .map(|s| text_width(s, size::TICK))
-            .fold(0.0, f64::max);
-        let bottom = content.bottom - draw::bottom_gutter(true);
-        let row = ((bottom - key_bottom - 8.0) / order.len() as f64).min(MAX_ROW);
-        let plot = Rect {
-            left: content.left + name_width + 14.0,
-            top: key_bottom + 8.0,
-            right: content.right - summary_width - 16.0,
-            bottom: key_bottom + 8.0 + row * order.len() as f64,
-        };
-        let x = Axis {
-            scale: Scale::new(ScaleKind::Linear, ticks_range, (plot.left, plot.right)),
-            ticks: ticks.clone(),
-            label: x_label.clone(),
-        };
-        let y = Axis {
-            scale: Scale::new(ScaleKind::Linear, (0.0, 1.0), (plot.bottom, plot.top)),
-            ticks: Vec::new(),
-            label: String::new(),
-        };
-        // Alternate row bands help the eye follow a row to its numbers.
-        for k in (1..order.len()).step_by(2) {
-            let band = Rect {
-                top: plot.top + k as f64 * row,
-                bottom: plot.top + (k + 1) as f64 * row,
-                left: plot.left,
-                right: content.right,
-            };
-            canvas.fill_rect(band, theme::GRID, 0.45)?;
-        }
-        draw_axes(canvas, plot, &x, &y, Grid::None)?;
-        for tick in &x.ticks {
-            let px = x.scale.map(tick.value);
-            canvas.line(&[(px, plot.top), (px, plot.bottom)], theme::GRID, 1.0, 1.0)?;
-        }
-        for (k, &i) in order.iter().enumerate() {
-            let c = &configurations[i];
-            let cy = plot.top + (k as f64 + 0.5) * row;
-            let name_font = if k == 0 {
-                Font::new(size::LABEL, theme::INK).bold()
-            } else {
-                Font::new(size::LABEL, theme::INK)
-            };
-            let name = fit_text(&c.name, size::LABEL, name_width);
-            canvas.text(
-                &name,
-                plot.left - 10.0,
-                cy,
-                name_font,
-                Align::Right,
-                Baseline::Middle,
-            )?;
-            draw_row(canvas, c, cy, row, &x.scale)?;
-            let summary_font = Font::new(size::TICK, theme::INK_SOFT);
-            canvas.text(
-                &summaries[k],
-                plot.right + 12.0,
-                cy,
-                summary_font,
-                Align::Left,
-                Baseline::Middle,
-            )?;
-        }
-        Ok(())
-    })
-}
-
-/// Fold circles, the interval bar and the mean diamond for one row.
-fn draw_row(canvas: &Canvas, c: &ConfigurationScores, cy: f64, row: f64, x: &Scale) -> Result<()> {
-    let (lo, hi) = (
-        c.interval.0.min(c.interval.1),
-        c.interval.0.max(c.interval.1),
+    let range = pad_range(finite_range(shown_values).unwrap_or((0.0, 1.0)), 0.04);
+    let names: Vec<String> = order
+        .iter()
+        .map(|&i| configurations[i].name.clone())
+        .collect();
+    let mut marks = row_rules(order.len());
+    let mut right = Vec::new();
+    for (k, &i) in order.iter().enumerate() {
+        let c = &configurations[i];
+        marks.extend(row_marks(k as f64, &c.fold_scores, c.mean, c.interval));
+        right.push((k as f64, mean_and_interval(c.mean, c.interval)));
+    }
+    let x = AxisSpec::linear(range, linear_ticks(range.0, range.1, 6), x_label);
+    let mut panel = XyPanel::new(x, AxisSpec::categories(&names));
+    panel.grid = Grid::Vertical;
+    panel.marks = marks;
+    panel.right = right;
+    panel.row_height = Some(ROW);
+    let legend = ranking_legend("fold score", "95% interval of the mean");
+    let frame = options.frame(
+        "Configurations compared by cross-validation",
+        Vec::new(),
+        legend,
+        notes,
     );
-    if lo.is_finite() && hi.is_finite() {
-        let (l, h) = (x.map(lo), x.map(hi));
-        canvas.line(&[(l, cy), (h, cy)], INTERVAL, 1.0, 3.0)?;
-        for end in [l, h] {
-            canvas.line(&[(end, cy - 6.0), (end, cy + 6.0)], INTERVAL, 1.0, 2.0)?;
-        }
-    }
-    let spread = (row * 0.5).min(22.0);
-    for (f, &score) in c.fold_scores.iter().enumerate() {
-        if score.is_finite() {
-            let jitter = ((f as f64 * 0.618_033_988_75).fract() - 0.5) * spread;
-            canvas.marker(
-                Marker::Circle,
-                x.map(score),
-                cy + jitter,
-                3.5,
-                FOLD,
-                Some(theme::OUTLINE),
-            )?;
-        }
-    }
-    if c.mean.is_finite() {
-        canvas.marker(
-            Marker::Diamond,
-            x.map(c.mean),
-            cy,
-            5.5,
-            MEAN,
-            Some(theme::WHITE),
-        )?;
-    }
-    Ok(())
-}
-
-/// The key as one line at the top: fold score, mean, 95% interval. Returns its bottom.
-fn draw_key(canvas: &Canvas, x: f64, y: f64) -> Result<f64> {
-    let font = Font::new(size::LEGEND, theme::INK_SOFT);
-    let cy = y + 8.0;
-    let mut px = x;
-    canvas.marker(
-        Marker::Circle,
-        px + 6.0,
-        cy,
-        3.5,
-        FOLD,
-        Some(theme::OUTLINE),
-    )?;
-    canvas.text(
-        "fold score",
-        px + 16.0,
-        cy,
-        font,
-        Align::Left,
-        Baseline::Middle,
-    )?;
-    px += 16.0 + text_width("fold score", size::LEGEND) + 18.0;
-    canvas.marker(Marker::Diamond, px + 6.0, cy, 5.5, MEAN, Some(theme::WHITE))?;
-    canvas.text("mean", px + 16.0, cy, font, Align::Left, Baseline::Middle)?;
-    px += 16.0 + text_width("mean", size::LEGEND) + 18.0;
-    canvas.line(&[(px, cy), (px + 20.0, cy)], INTERVAL, 1.0, 3.0)?;
-    for end in [px, px + 20.0] {
-        canvas.line(&[(end, cy - 5.0), (end, cy + 5.0)], INTERVAL, 1.0, 2.0)?;
-    }
-    canvas.text(
-        "95% interval of the mean",
-        px + 28.0,
-        cy,
-        font,
-        Align::Left,
-        Baseline::Middle,
-    )?;
-    Ok(y + 20.0)
+    Ok(Figure::single(frame, Panel::Xy(panel)))
 }
 
 #[cfg(test)]
@@ -377,7 +313,7 @@ mod tests {
             cross_validation_comparison(&four(), "accuracy", true, &ChartOptions::default())
                 .unwrap();
         let r = check(&chart, "compare-accuracy");
-        assert!(r.has_text("Cross-validation comparison"));
+        assert!(r.has_text("Configurations compared by cross-validation"));
         assert!(r.has_text("accuracy (higher is better)"));
         let names: Vec<&String> = r
             .texts

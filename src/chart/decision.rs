@@ -1,5 +1,5 @@
-//! Decision-boundary maps: a classifier's predictions over a grid of two
-//! input axes, with the data points on top.
+//! Decision maps: a classifier's predictions over a grid of two input
+//! axes, with the data points on top.
 
 use std::collections::BTreeMap;
 
@@ -7,11 +7,11 @@ use ndarray::{Array2, ArrayView2};
 
 use super::contour::contour_lines;
 use super::draw::{
-    self, draw_axes, draw_legend, legend_width, linear_ticks, split_legend, Align, Axis, Baseline,
-    Canvas, Entry, Font, Grid, Key, Page, Rect, Scale, ScaleKind,
+    finite_range, linear_ticks, pad_range, render, AxisSpec, Entry, Figure, Grid, Key, Mark, Panel,
+    Stroke, XyPanel,
 };
 use super::scatter;
-use super::theme::{self, class_colour, size, Rgb, SUNSET};
+use super::theme::{self, class_colour, Rgb, SUNSET};
 use super::{class_names, group_digits, Chart, ChartOptions};
 use crate::{Error, Result};
 
@@ -27,9 +27,6 @@ pub const CONTOUR_WIDTH: u32 = 2;
 /// points on top keep their contrast.
 const MAP_LIGHTEN: f64 = 0.4;
 
-/// No-prediction cells (NaN probabilities).
-const NO_PREDICTION: Rgb = Rgb::hex(0xD9D9D9);
-
 /// Class-labelled points in two dimensions, with what the axes are.
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct ClassPoints {
@@ -43,10 +40,11 @@ pub struct ClassPoints {
     pub y_name: String,
 }
 
-/// Options for [`decision_map`].
+/// Options for [`decision_map`] and
+/// [`Model::decision_map_chart_with`](crate::Model::decision_map_chart_with).
 #[derive(Clone, Debug, PartialEq)]
 pub struct DecisionMapOptions {
-    /// Size, title ("Decision map") and axis labels (default: the column names).
+    /// Size, headings and axis labels (default: the column names).
     pub chart: ChartOptions,
     /// Grid cells along each axis, 10 to 400. Default 150 (150 x 150 = 22,500
     /// predictions).
@@ -57,6 +55,12 @@ pub struct DecisionMapOptions {
     pub y_range: Option<(f64, f64)>,
     /// Extra notes printed under the chart (e.g. how other features were fixed).
     pub notes: Vec<String>,
+    /// For maps of a model: the values the inputs not mapped are held at,
+    /// by source column name: a level of a text column (`("spindle",
+    /// "north")`) or a number (`("roughness_ra_um", "0.8")`). Columns not
+    /// listed are held at their most frequent level (text) or their median
+    /// (numbers) in the rows given; the subtitle says which.
+    pub hold: Vec<(String, String)>,
 }
 
 impl Default for DecisionMapOptions {
@@ -67,6 +71,7 @@ impl Default for DecisionMapOptions {
             x_range: None,
             y_range: None,
             notes: Vec::new(),
+            hold: Vec::new(),
         }
     }
 }
@@ -74,22 +79,21 @@ impl Default for DecisionMapOptions {
 /// Draws what a classifier predicts over two input axes, with the data on top.
 ///
 /// `predict` receives every grid-cell centre at once (rows of (x, y) in the
-/// plotted axes' coordinates; the caller fixes other features, e.g. at their
-/// medians, or maps back from principal components) and returns one row of
-/// class probabilities per grid point (columns = classes).
+/// plotted axes' coordinates; the caller fixes the other inputs) and
+/// returns one row of class probabilities per grid point (columns =
+/// classes).
 ///
 /// - **Two classes** (two columns, or one column read as P(class 1)): the
 ///   cells are coloured by P(class 1) on Tol's diverging "sunset" scale in
 ///   11 bands (blue: class 0 likely, red: class 1 likely), with the P = 0.5
 ///   boundary drawn as a dark line ([`CONTOUR_STROKE`], by marching squares)
-///   and a colour legend.
+///   and the colour scale in the legend.
 /// - **Three or more classes**: each cell takes the colour of its most
 ///   probable class, lighter the less confident the prediction:
 ///
 ///   ```text
-///   k = argmax_j p_j,  t = (p_k - 1/K) / (1 - 1/K),  shade = mix(white, colour_k, 0.15 + 0.45 * t)
+///   k = argmax_j p_j,  t = (p_k - 1/K) / (1 - 1/K),  shade = mix(white, colour_k, 0.15 + 0.15 * floor(4 t))
 ///   ```
-///   (t in four steps).
 ///
 /// Neighbouring cells of equal colour are merged into one rectangle, so the
 /// SVG stays small. Points are coloured and shaped by class; above
@@ -135,7 +139,16 @@ pub fn decision_map(
     data: &ClassPoints,
     options: &DecisionMapOptions,
 ) -> Result<Chart> {
-    let title = options.chart.check("Decision map")?;
+    let figure = prepare(predict, data, options)?;
+    render(&figure, &options.chart)
+}
+
+/// What the map will show: cells, boundary, points, legend and notes.
+pub(crate) fn prepare(
+    predict: &dyn Fn(ArrayView2<f64>) -> Result<Array2<f64>>,
+    data: &ClassPoints,
+    options: &DecisionMapOptions,
+) -> Result<Figure> {
     let what = "decision map";
     let names = class_names(what, &data.class_names)?;
     if names.len() < 2 {
@@ -216,7 +229,13 @@ pub fn decision_map(
                 .enumerate()
                 .fold(
                     (0, f64::NEG_INFINITY),
-                    |acc, (j, &p)| if p > acc.1 { (j, p) } else { acc },
+                    |acc, (j, &p)| {
+                        if p > acc.1 {
+                            (j, p)
+                        } else {
+                            acc
+                        }
+                    },
                 );
             let classes = names.len() as f64;
             let t = ((p.clamp(0.0, 1.0) - 1.0 / classes) / (1.0 - 1.0 / classes)).clamp(0.0, 1.0);
@@ -227,7 +246,7 @@ pub fn decision_map(
     }
     let colour_of = |code: u16| -> Rgb {
         if code == NONE {
-            NO_PREDICTION
+            theme::EMPTY
         } else if two_class {
             SUNSET[code as usize].mix(theme::WHITE, MAP_LIGHTEN)
         } else {
@@ -235,6 +254,14 @@ pub fn decision_map(
             theme::WHITE.mix(class_colour(code as usize / 4), 0.15 + 0.15 * level)
         }
     };
+    let cells: Vec<(f64, f64, f64, f64, Rgb)> = merged_cells(n, &codes)
+        .into_iter()
+        .map(|((i0, i1, code), (j0, j1))| {
+            let xs = |i: usize| x_range.0 + (x_range.1 - x_range.0) * i as f64 / n as f64;
+            let ys = |j: usize| y_range.0 + (y_range.1 - y_range.0) * j as f64 / n as f64;
+            (xs(i0), xs(i1), ys(j0), ys(j1), colour_of(code))
+        })
+        .collect();
 
     let mut notes = prepared.notes.clone();
     notes.extend(options.notes.iter().cloned());
@@ -250,81 +277,73 @@ pub fn decision_map(
     }
     if !two_class {
         notes.push(
-            "shading: the most probable class; lighter where the model is less sure".to_string(),
+            "shading: the most probable class; paler where the model is less sure".to_string(),
         );
     }
 
-    let mut entries = scatter::class_entries(&names, &prepared.per_class);
-    let bar_heading = format!("P({})", names[1]);
+    let mut legend = scatter::class_entries(&names, &prepared.per_class);
+    let mut marks = vec![Mark::Cells {
+        cells,
+        opacity: 1.0,
+    }];
+    marks.push(scatter::class_mark(&prepared.points));
     if two_class {
-        entries.push(Entry::new(
+        legend.push(Entry::new(
             "P = 0.5 boundary",
             Key::Line {
                 colour: CONTOUR_STROKE,
                 width: CONTOUR_WIDTH as f64,
-                marker: None,
+                dash: theme::Dash::Solid,
             },
         ));
+        legend.push(Entry::new(
+            format!("P({})", names[1]),
+            Key::Scale {
+                stops: SUNSET
+                    .iter()
+                    .map(|c| c.mix(theme::WHITE, MAP_LIGHTEN))
+                    .collect(),
+                ticks: vec![(0.0, "0".into()), (0.5, "0.5".into()), (1.0, "1".into())],
+            },
+        ));
+        // The boundary goes over the points, so dense clouds cannot hide it.
+        let (dx, dy) = (
+            (x_range.1 - x_range.0) / n as f64,
+            (y_range.1 - y_range.0) / n as f64,
+        );
+        for line in contour_lines(&p_one, n, n, 0.5) {
+            let points: Vec<(f64, f64)> = line
+                .iter()
+                .map(|&(gi, gj)| (x_range.0 + (gi + 0.5) * dx, y_range.0 + (gj + 0.5) * dy))
+                .collect();
+            marks.push(Mark::Line {
+                points: points.clone(),
+                stroke: Stroke::solid(theme::WHITE, CONTOUR_WIDTH as f64 + 2.0).faded(0.8),
+            });
+            marks.push(Mark::Line {
+                points,
+                stroke: Stroke::solid(CONTOUR_STROKE, CONTOUR_WIDTH as f64),
+            });
+        }
     }
-    let x_label = options.chart.x_label_or(&data.x_name);
-    let y_label = options.chart.y_label_or(&data.y_name);
-    let x_ticks = linear_ticks(x_range.0, x_range.1, 6);
-    let y_ticks = linear_ticks(y_range.0, y_range.1, 6);
-
-    draw::render(
-        options.chart.width,
-        options.chart.height,
-        &title,
-        |canvas| {
-            let page = Page::new(canvas, &title, notes.clone());
-            page.draw(canvas)?;
-            let wanted = legend_width(&entries, Some(&bar_heading));
-            let (body, legend) = split_legend(page.content, wanted, 0.34);
-            let plot = Rect {
-                left: body.left + draw::left_gutter(&y_ticks, true),
-                top: body.top + 4.0,
-                right: body.right - 4.0,
-                bottom: body.bottom - draw::bottom_gutter(true),
-            };
-            let x = Axis {
-                scale: Scale::new(ScaleKind::Linear, x_range, (plot.left, plot.right)),
-                ticks: x_ticks.clone(),
-                label: x_label.clone(),
-            };
-            let y = Axis {
-                scale: Scale::new(ScaleKind::Linear, y_range, (plot.bottom, plot.top)),
-                ticks: y_ticks.clone(),
-                label: y_label.clone(),
-            };
-            draw_cells(canvas, plot, n, &codes, &colour_of)?;
-            canvas.stroke_rect(plot, theme::AXIS)?;
-            draw_axes(canvas, plot, &x, &y, Grid::None)?;
-            scatter::draw_points(canvas, &prepared.points, &x.scale, &y.scale)?;
-            // The boundary goes over the points, so dense clouds cannot hide it.
-            if two_class {
-                draw_boundary(canvas, plot, n, &p_one)?;
-            }
-            let used = draw_legend(
-                canvas,
-                legend.left,
-                plot.top,
-                legend.width(),
-                legend.height(),
-                None,
-                &entries,
-            )?;
-            if two_class {
-                draw_colour_bar(
-                    canvas,
-                    legend.left,
-                    plot.top + used + 14.0,
-                    &bar_heading,
-                    legend.width(),
-                )?;
-            }
-            Ok(())
-        },
-    )
+    let x = AxisSpec::linear(
+        x_range,
+        linear_ticks(x_range.0, x_range.1, 6),
+        options.chart.x_label_or(&data.x_name),
+    );
+    let y = AxisSpec::linear(
+        y_range,
+        linear_ticks(y_range.0, y_range.1, 6),
+        options.chart.y_label_or(&data.y_name),
+    );
+    let mut panel = XyPanel::new(x, y);
+    panel.grid = Grid::None;
+    panel.marks = marks;
+    panel.aspect = 0.7;
+    let frame = options
+        .chart
+        .frame("Decision map", Vec::new(), legend, notes);
+    Ok(Figure::single(frame, Panel::Xy(panel)))
 }
 
 /// The range to map along one axis: the caller's, or the points' padded by 5%.
@@ -341,8 +360,8 @@ fn axis_range(
             format!("({lo}, {hi})"),
             "must be two finite numbers, low < high",
         )),
-        None => draw::finite_range(values)
-            .map(|r| draw::pad_range(r, 0.05))
+        None => finite_range(values)
+            .map(|r| pad_range(r, 0.05))
             .ok_or_else(|| {
                 Error::input(
                     what,
@@ -352,24 +371,14 @@ fn axis_range(
     }
 }
 
-/// Pixel edge `i` of `n` cells across [start, end], rounded so that
-/// neighbouring cells share edges exactly (no seams).
-fn edge(start: f64, end: f64, i: usize, n: usize) -> f64 {
-    (start + (end - start) * i as f64 / n as f64).round()
-}
+/// A run of equal codes along a row: (first column, last column + 1, code).
+type Run = (usize, usize, u16);
+/// The rows a merged rectangle spans: (first row, last row + 1).
+type Rows = (usize, usize);
 
-/// Fills the plot with the cells, merging runs of equal colour along rows
-/// and then identical runs of consecutive rows into one rectangle.
-fn draw_cells(
-    canvas: &Canvas,
-    plot: Rect,
-    n: usize,
-    codes: &[u16],
-    colour_of: &dyn Fn(u16) -> Rgb,
-) -> Result<()> {
-    // A run (first column, last column + 1, code) spans rows (first, last + 1).
-    type Run = (usize, usize, u16);
-    type Rows = (usize, usize);
+/// Merges runs of equal codes along rows, then identical runs of
+/// consecutive rows, into rectangles; bottom row first, then left to right.
+fn merged_cells(n: usize, codes: &[u16]) -> Vec<(Run, Rows)> {
     let mut open: BTreeMap<Run, Rows> = BTreeMap::new();
     let mut done: Vec<(Run, Rows)> = Vec::new();
     for j in 0..n {
@@ -394,69 +403,13 @@ fn draw_cells(
         open = next;
     }
     done.extend(open);
-    // Draw in a fixed order: bottom row first, then left to right.
     done.sort_by_key(|&((i0, _, _), (j0, _))| (j0, i0));
-    for ((i0, i1, code), (j0, j1)) in done {
-        let rect = Rect {
-            left: edge(plot.left, plot.right, i0, n),
-            right: edge(plot.left, plot.right, i1, n),
-            top: edge(plot.bottom, plot.top, j1, n),
-            bottom: edge(plot.bottom, plot.top, j0, n),
-        };
-        canvas.fill_rect(rect, colour_of(code), 1.0)?;
-    }
-    Ok(())
-}
-
-/// Draws the P = 0.5 level line over a white halo.
-fn draw_boundary(canvas: &Canvas, plot: Rect, n: usize, p_one: &[f64]) -> Result<()> {
-    let (cw, ch) = (plot.width() / n as f64, plot.height() / n as f64);
-    for line in contour_lines(p_one, n, n, 0.5) {
-        let points: Vec<(f64, f64)> = line
-            .iter()
-            .map(|&(gi, gj)| (plot.left + (gi + 0.5) * cw, plot.bottom - (gj + 0.5) * ch))
-            .collect();
-        canvas.line(&points, theme::WHITE, 0.8, CONTOUR_WIDTH as f64 + 2.0)?;
-        canvas.line(&points, CONTOUR_STROKE, 1.0, CONTOUR_WIDTH as f64)?;
-    }
-    Ok(())
-}
-
-/// The colour legend of a two-class map: 11 bands from 1 (top) to 0.
-fn draw_colour_bar(canvas: &Canvas, x: f64, y: f64, heading: &str, width: f64) -> Result<()> {
-    let font = Font::new(size::LEGEND, theme::INK_SOFT);
-    let text = draw::fit_text(heading, size::LEGEND, width);
-    canvas.text(&text, x, y, font.bold(), Align::Left, Baseline::Top)?;
-    let top = y + size::LEGEND + 8.0;
-    let band = 9.0;
-    for (b, colour) in SUNSET.iter().enumerate() {
-        let rect = Rect {
-            left: x + 4.0,
-            right: x + 20.0,
-            top: top + (10 - b) as f64 * band,
-            bottom: top + (11 - b) as f64 * band,
-        };
-        canvas.fill_rect(rect, colour.mix(theme::WHITE, MAP_LIGHTEN), 1.0)?;
-    }
-    let whole = Rect {
-        left: x + 4.0,
-        right: x + 20.0,
-        top,
-        bottom: top + 11.0 * band,
-    };
-    canvas.stroke_rect(whole, theme::AXIS)?;
-    let tick = Font::new(size::TICK, theme::INK_SOFT);
-    for (value, label) in [(1.0, "1"), (0.5, "0.5"), (0.0, "0")] {
-        let py = whole.bottom - value * whole.height();
-        canvas.line(&[(x + 20.0, py), (x + 24.0, py)], theme::AXIS, 1.0, 1.0)?;
-        canvas.text(label, x + 27.0, py, tick, Align::Left, Baseline::Middle)?;
-    }
-    Ok(())
+    done
 }
 
 #[cfg(test)]
 mod tests {
-    use super::super::testing::{check, distance};
+    use super::super::testing::check;
     use super::*;
 
     fn logistic(z: f64) -> f64 {
@@ -506,20 +459,33 @@ mod tests {
 
     #[test]
     fn two_classes_show_the_boundary_and_a_colour_scale() {
-        let chart = decision_map(&circle, &ring_points(), &options()).unwrap();
-        let r = check(&chart, "decision-two-class-circle");
-        assert!(r.has_text("Decision map"));
-        assert!(r.has_text("bore (µm)") && r.has_text("temperature (°C)"));
-        assert!(r.has_text("inside (60)") && r.has_text("outside (60)"));
-        assert!(r.has_text("P(outside)") && r.has_text("P = 0.5 boundary"));
-        let stroke = CONTOUR_STROKE.to_svg();
-        let width = CONTOUR_WIDTH.to_string();
-        // One closed contour in the plot, plus the legend key.
+        let figure = prepare(&circle, &ring_points(), &options()).unwrap();
+        let labels: Vec<&str> = figure
+            .frame
+            .legend
+            .iter()
+            .map(|e| e.label.as_str())
+            .collect();
         assert_eq!(
-            r.count("polyline", &[("stroke", &stroke), ("stroke-width", &width)]),
-            2
+            labels,
+            [
+                "inside (60)",
+                "outside (60)",
+                "P = 0.5 boundary",
+                "P(outside)"
+            ]
         );
-        // Points: 60 circles (class 0) and 60 squares (class 1) in the plot, one of each in the legend.
+        // One closed contour (with its halo).
+        let contours = figure
+            .xy(0)
+            .marks
+            .iter()
+            .filter(|m| matches!(m, Mark::Line { stroke, .. } if stroke.colour == CONTOUR_STROKE))
+            .count();
+        assert_eq!(contours, 1);
+        let chart = render(&figure, &options().chart).unwrap();
+        let r = check(&chart, "decision-two-class-circle");
+        assert!(r.has_text("bore (µm)") && r.has_text("temperature (°C)"));
         assert_eq!(r.filled_with(class_colour(0)), 61);
         assert_eq!(r.filled_with(class_colour(1)), 61);
         // Merged cells keep the SVG small: far fewer rectangles than 150 x 150.
@@ -530,33 +496,25 @@ mod tests {
         );
     }
 
+    #[cfg(feature = "export")]
     #[test]
     fn the_circle_rule_colours_inside_and_outside_as_expected() {
-        // No points, so the map is visible everywhere.
+        use super::super::testing::distance;
         let data = ClassPoints {
             points: vec![],
             ..ring_points()
         };
         let chart = decision_map(&circle, &data, &options()).unwrap();
         let r = check(&chart, "decision-circle-colours");
-        // Recover the plot's pixel geometry from the frame rectangle (the
-        // outlined rect with the axis colour).
-        let doc = roxmltree::Document::parse(&r.svg).unwrap();
-        let frame = doc
-            .descendants()
-            .find(|n| n.has_tag_name("rect") && n.attribute("fill") == Some("none"))
-            .unwrap();
-        let num = |a: &str| frame.attribute(a).unwrap().parse::<f64>().unwrap();
-        let (left, top, width, height) = (num("x"), num("y"), num("width"), num("height"));
+        let plot = chart.boxes().plots[0];
         let at = |x: f64, y: f64| {
-            let px = left + (x + 2.0) / 4.0 * width;
-            let py = top + (2.0 - y) / 4.0 * height;
+            let px = plot.left + (x + 2.0) / 4.0 * plot.width();
+            let py = plot.top + (2.0 - y) / 4.0 * plot.height();
             r.pixel(px as u32, py as u32)
         };
         let low = SUNSET[0].mix(theme::WHITE, MAP_LIGHTEN);
         let high = SUNSET[10].mix(theme::WHITE, MAP_LIGHTEN);
-        let inside = at(0.1, -0.2);
-        let outside = at(1.7, 1.6);
+        let (inside, outside) = (at(0.1, -0.2), at(1.7, 1.6));
         assert!(
             distance(inside, low) < distance(inside, high),
             "inside {inside:?}"
@@ -604,14 +562,9 @@ mod tests {
         let chart = decision_map(&sectors, &data, &options()).unwrap();
         let r = check(&chart, "decision-three-class");
         assert!(r.has_text("setosa (30)") && r.has_text("virginica (30)"));
-        assert!(r.has_text("PC1") && r.has_text("PC2"));
         assert!(!r.has_text("P = 0.5 boundary"));
-        // Markers: circles, squares, triangles, 30 each plus the legend.
         for class in 0..3 {
             assert_eq!(r.filled_with(class_colour(class)), 31, "class {class}");
-        }
-        // Regions: a shade of each class colour somewhere in the map.
-        for class in 0..3 {
             let shade = theme::WHITE
                 .mix(class_colour(class), 0.15 + 0.15 * 3.0)
                 .to_svg();
@@ -676,15 +629,20 @@ mod tests {
         let mut data = ring_points();
         data.points.retain(|p| p.2 == 1);
         data.points.push((f64::NAN, 0.0, 1));
-        let chart = decision_map(&holes, &data, &options()).unwrap();
-        let r = check(&chart, "decision-nan-one-class");
+        let figure = prepare(&holes, &data, &options()).unwrap();
+        let notes = &figure.frame.notes;
         assert!(
-            r.has_text("skipped 1 point with a non-finite coordinate"),
-            "{:?}",
-            r.texts
+            notes.contains(&"skipped 1 point with a non-finite coordinate".to_string()),
+            "{notes:?}"
         );
-        assert!(r.has_text("the points hold only one class, \"outside\""));
-        assert!(r.has_text_containing("grid cells had no finite prediction"));
+        assert!(notes.contains(&"the points hold only one class, \"outside\"".to_string()));
+        assert!(notes
+            .iter()
+            .any(|n| n.contains("grid cells had no finite prediction")));
+        check(
+            &render(&figure, &options().chart).unwrap(),
+            "decision-nan-one-class",
+        );
     }
 
     #[test]
@@ -704,12 +662,10 @@ mod tests {
             resolution: 80,
             ..options()
         };
-        let chart = decision_map(&circle, &data, &small).unwrap();
-        let r = check(&chart, "decision-many-points");
-        assert!(
-            r.has_text("showing 5,000 of 20,000 points (every 4th)"),
-            "{:?}",
-            r.texts
-        );
+        let figure = prepare(&circle, &data, &small).unwrap();
+        assert!(figure
+            .frame
+            .notes
+            .contains(&"showing 5,000 of 20,000 points (every 4th)".to_string()));
     }
 }

@@ -5,8 +5,8 @@
 use ndarray::{Array2, ArrayView2};
 
 use super::draw::{
-    self, draw_axes, draw_legend, legend_width, linear_ticks, split_legend, Axis, Canvas, Grid,
-    Page, Rect, Scale, ScaleKind, Tick,
+    finite_range, linear_ticks, pad_range, render, Arrangement, AxisSpec, Figure, Grid, Panel,
+    XyPanel,
 };
 use super::pca::principal_components_2;
 use super::scatter;
@@ -71,7 +71,18 @@ pub fn hidden_layer<S: AsRef<str>>(
     view: HiddenView,
     options: &ChartOptions,
 ) -> Result<Chart> {
-    let title = options.check("Hidden layer")?;
+    let figure = prepare(activations, labels, class_names_given, view, options)?;
+    render(&figure, options)
+}
+
+/// What the view will show: one panel per pair of dimensions.
+pub(crate) fn prepare<S: AsRef<str>>(
+    activations: ArrayView2<f64>,
+    labels: &[usize],
+    class_names_given: &[S],
+    view: HiddenView,
+    options: &ChartOptions,
+) -> Result<Figure> {
     let what = "hidden-layer view";
     let names = class_names(what, class_names_given)?;
     let (rows, units) = activations.dim();
@@ -180,128 +191,81 @@ pub fn hidden_layer<S: AsRef<str>>(
     if let Some(note) = scatter::class_note(&names, &prepared[0].per_class) {
         notes.push(note);
     }
-    let entries = scatter::class_entries(&names, &prepared[0].per_class);
-    let x_override = options.x_label.clone();
-    let y_override = options.y_label.clone();
-
-    draw::render(options.width, options.height, &title, |canvas| {
-        let page = Page::new(canvas, &title, notes.clone());
-        page.draw(canvas)?;
-        let (body, legend) = split_legend(page.content, legend_width(&entries, None), 0.34);
-        let count = panels.len() as f64;
-        let gap = 16.0;
-        let width = (body.width() - gap * (count - 1.0)) / count;
-        for (k, (panel, points)) in panels.iter().zip(&prepared).enumerate() {
-            let area = Rect {
-                left: body.left + k as f64 * (width + gap),
-                right: body.left + k as f64 * (width + gap) + width,
-                ..body
-            };
-            let x_label = x_override.clone().unwrap_or_else(|| panel.x_label.clone());
-            let y_label = y_override.clone().unwrap_or_else(|| panel.y_label.clone());
-            if strip {
-                draw_strip(canvas, area, &points.points, &names, &x_label)?;
+    let legend = scatter::class_entries(&names, &prepared[0].per_class);
+    let count = panels.len();
+    let built: Vec<Panel> = panels
+        .iter()
+        .zip(&prepared)
+        .map(|(panel, points)| {
+            let x_label = options
+                .x_label
+                .clone()
+                .unwrap_or_else(|| panel.x_label.clone());
+            let y_label = options
+                .y_label
+                .clone()
+                .unwrap_or_else(|| panel.y_label.clone());
+            Panel::Xy(if strip {
+                strip_panel(&points.points, &names, &x_label)
             } else {
-                let ticks = if panels.len() > 1 { 4 } else { 6 };
-                draw_panel(canvas, area, &points.points, &x_label, &y_label, ticks)?;
-            }
-        }
-        draw_legend(
-            canvas,
-            legend.left,
-            body.top + 4.0,
-            legend.width(),
-            legend.height(),
-            None,
-            &entries,
-        )?;
-        Ok(())
+                scatter_panel(
+                    &points.points,
+                    &x_label,
+                    &y_label,
+                    if count > 1 { 4 } else { 6 },
+                )
+            })
+        })
+        .collect();
+    let frame = options.frame("Hidden layer", Vec::new(), legend, notes);
+    Ok(Figure {
+        frame,
+        arrangement: Arrangement::Row(vec![1.0; built.len()]),
+        panels: built,
     })
 }
 
-/// A scatter panel with its own axes inside `area`.
-fn draw_panel(
-    canvas: &Canvas,
-    area: Rect,
+/// A scatter panel of two dimensions.
+fn scatter_panel(
     points: &[(f64, f64, usize)],
     x_label: &str,
     y_label: &str,
     target_ticks: usize,
-) -> Result<()> {
-    let x_range = draw::pad_range(
-        draw::finite_range(points.iter().map(|p| p.0)).unwrap_or((0.0, 1.0)),
+) -> XyPanel {
+    let x_range = pad_range(
+        finite_range(points.iter().map(|p| p.0)).unwrap_or((0.0, 1.0)),
         0.05,
     );
-    let y_range = draw::pad_range(
-        draw::finite_range(points.iter().map(|p| p.1)).unwrap_or((0.0, 1.0)),
+    let y_range = pad_range(
+        finite_range(points.iter().map(|p| p.1)).unwrap_or((0.0, 1.0)),
         0.05,
     );
-    let x_ticks = linear_ticks(x_range.0, x_range.1, target_ticks);
-    let y_ticks = linear_ticks(y_range.0, y_range.1, target_ticks);
-    let plot = Rect {
-        left: area.left + draw::left_gutter(&y_ticks, true),
-        top: area.top + 4.0,
-        right: area.right - 4.0,
-        bottom: area.bottom - draw::bottom_gutter(true),
-    };
-    let x = Axis {
-        scale: Scale::new(ScaleKind::Linear, x_range, (plot.left, plot.right)),
-        ticks: x_ticks,
-        label: x_label.to_string(),
-    };
-    let y = Axis {
-        scale: Scale::new(ScaleKind::Linear, y_range, (plot.bottom, plot.top)),
-        ticks: y_ticks,
-        label: y_label.to_string(),
-    };
-    draw_axes(canvas, plot, &x, &y, Grid::Both)?;
-    scatter::draw_points(canvas, points, &x.scale, &y.scale)
+    let x = AxisSpec::linear(
+        x_range,
+        linear_ticks(x_range.0, x_range.1, target_ticks),
+        x_label,
+    );
+    let y = AxisSpec::linear(
+        y_range,
+        linear_ticks(y_range.0, y_range.1, target_ticks),
+        y_label,
+    );
+    let mut p = XyPanel::new(x, y);
+    p.grid = Grid::Both;
+    p.marks = vec![scatter::class_mark(points)];
+    p.aspect = 0.7;
+    p
 }
 
 /// One unit: a horizontal strip per class, points spread vertically inside
 /// their strip by a fixed golden-ratio sequence (deterministic jitter).
-fn draw_strip(
-    canvas: &Canvas,
-    area: Rect,
-    points: &[(f64, f64, usize)],
-    names: &[String],
-    x_label: &str,
-) -> Result<()> {
-    let x_range = draw::pad_range(
-        draw::finite_range(points.iter().map(|p| p.0)).unwrap_or((0.0, 1.0)),
+fn strip_panel(points: &[(f64, f64, usize)], names: &[String], x_label: &str) -> XyPanel {
+    let x_range = pad_range(
+        finite_range(points.iter().map(|p| p.0)).unwrap_or((0.0, 1.0)),
         0.05,
     );
-    let classes = names.len();
-    let y_ticks: Vec<Tick> = names
-        .iter()
-        .enumerate()
-        .map(|(i, n)| Tick {
-            value: i as f64,
-            label: draw::fit_text(n, super::theme::size::TICK, area.width() * 0.3),
-        })
-        .collect();
-    let plot = Rect {
-        left: area.left + draw::left_gutter(&y_ticks, false),
-        top: area.top + 4.0,
-        right: area.right - 4.0,
-        bottom: area.bottom - draw::bottom_gutter(true),
-    };
-    let x = Axis {
-        scale: Scale::new(ScaleKind::Linear, x_range, (plot.left, plot.right)),
-        ticks: linear_ticks(x_range.0, x_range.1, 6),
-        label: x_label.to_string(),
-    };
-    // Class 0 at the top.
-    let y = Axis {
-        scale: Scale::new(
-            ScaleKind::Linear,
-            (-0.5, classes as f64 - 0.5),
-            (plot.top, plot.bottom),
-        ),
-        ticks: y_ticks,
-        label: String::new(),
-    };
-    draw_axes(canvas, plot, &x, &y, Grid::Both)?;
+    let x = AxisSpec::linear(x_range, linear_ticks(x_range.0, x_range.1, 6), x_label);
+    let y = AxisSpec::categories(names);
     let jittered: Vec<(f64, f64, usize)> = points
         .iter()
         .enumerate()
@@ -310,7 +274,11 @@ fn draw_strip(
             (v, class as f64 + jitter, class)
         })
         .collect();
-    scatter::draw_points(canvas, &jittered, &x.scale, &y.scale)
+    let mut p = XyPanel::new(x, y);
+    p.grid = Grid::Vertical;
+    p.marks = vec![scatter::class_mark(&jittered)];
+    p.row_height = Some(46.0);
+    p
 }
 
 #[cfg(test)]

@@ -2,11 +2,10 @@
 //! optional validation-accuracy panel below.
 
 use super::draw::{
-    self, draw_axes, draw_legend, integer_ticks, legend_width, linear_ticks, log_ticks, nice_range,
-    split_legend, Align, Axis, Baseline, Canvas, Entry, Font, Grid, Key, Page, Rect, Scale,
-    ScaleKind,
+    finite_range, integer_ticks, linear_ticks, log_range, log_ticks, nice_range, render,
+    Arrangement, AxisSpec, Entry, Figure, Grid, Key, Mark, Panel, Stroke, XyPanel,
 };
-use super::theme::{self, size, Marker, Rgb};
+use super::theme::{self, Dash, Rgb};
 use super::{group_digits, stride, Chart, ChartOptions, MAX_EPOCHS};
 use crate::{Error, Result};
 
@@ -51,13 +50,16 @@ pub enum YScale {
 /// Options for [`learning_curves`].
 #[derive(Clone, Debug, PartialEq)]
 pub struct LearningCurveOptions {
-    /// Size, title ("Learning curves") and axis labels ("epoch", "loss").
+    /// Size, headings and axis labels ("epoch", "loss").
     pub chart: ChartOptions,
     /// Linear (default) or logarithmic loss axis.
     pub y_scale: YScale,
     /// Draw validation accuracy in a second panel below the loss, when any
     /// run recorded it. Default `true`.
     pub accuracy_panel: bool,
+    /// What one run is, for the subtitle and legend ("restart", "fold").
+    /// Default "run".
+    pub run_name: String,
 }
 
 impl Default for LearningCurveOptions {
@@ -66,47 +68,48 @@ impl Default for LearningCurveOptions {
             chart: ChartOptions::default(),
             y_scale: YScale::Linear,
             accuracy_panel: true,
+            run_name: "run".to_string(),
         }
     }
 }
 
-#[derive(Clone, Copy, PartialEq)]
-enum Panel {
-    Loss,
-    Accuracy,
-}
-
-/// One quantity (training loss, validation loss, validation accuracy)
-/// across runs, after cleaning and block-averaging.
-struct Series {
-    name: &'static str,
-    colour: Rgb,
-    marker: Marker,
-    panel: Panel,
+/// One quantity across runs, after cleaning and block-averaging.
+#[derive(Clone, Debug, PartialEq)]
+pub(crate) struct Series {
+    pub name: &'static str,
+    pub colour: Rgb,
+    pub dash: Dash,
+    pub accuracy: bool,
     /// One line per run that recorded it: (epoch, value), NaN for a gap.
-    lines: Vec<Vec<(f64, f64)>>,
-    /// Median over runs per epoch (only with two or more runs).
-    median: Option<Vec<(f64, f64)>>,
+    pub lines: Vec<Vec<(f64, f64)>>,
+    /// The median over runs at each epoch every run reached (two or more runs).
+    pub median: Option<Vec<(f64, f64)>>,
 }
 
 /// Draws loss per epoch for one or more runs, with validation loss, the
-/// early-stopping epoch and (optionally) validation accuracy.
+/// epoch each run kept and (optionally) validation accuracy.
 ///
-/// With several runs each run is a thin line and a bold line shows the
-/// median over runs at each epoch, so the spread between seeds stays visible:
+/// Training loss is a solid line, validation loss a dashed one (so the two
+/// differ in grey print too). With several runs each run is a thin line
+/// and a bold line shows the median over runs at each epoch:
 ///
 /// ```text
-/// median_e = median { value_e of run r : run r has a finite value at epoch e }
+/// median_e = median { value_e of run r : r = 1..R, value_e finite }   for e <= E_first
+/// E_first  = the last epoch of the run that stopped first
 /// ```
 ///
-/// The median stops at epochs where fewer than half of the runs have a value
-/// (runs that stopped early), rather than following the longest run alone.
+/// The median is drawn only up to `E_first`, where every run is still
+/// training, so it never jumps as runs stop; when runs stopped at
+/// different epochs a dotted line marks `E_first` ("medians end"), and the
+/// thin lines go on. (Where fewer than half the runs have a finite value
+/// at an epoch, the median is left out there.)
 ///
-/// Runs longer than [`MAX_EPOCHS`] epochs are averaged in blocks of k epochs
-/// (k = ceil(epochs / MAX_EPOCHS), mean of the finite values of the block,
-/// drawn at the block's middle epoch) and a note says so. Non-finite values
-/// (and, on a log scale, values at or below zero) are skipped and counted in
-/// a note. Each run's `best_epoch` is drawn as a dashed vertical line.
+/// Runs longer than [`MAX_EPOCHS`] epochs are averaged in blocks of k
+/// epochs (k = ceil(epochs / MAX_EPOCHS), mean of the finite values of the
+/// block, drawn at the block's middle epoch) and a note says so.
+/// Non-finite values (and, on a log scale, values at or below zero) are
+/// skipped and counted in a note. Each run's `best_epoch` is a dashed
+/// vertical line.
 ///
 /// # Errors
 ///
@@ -129,11 +132,86 @@ struct Series {
 /// };
 /// let options = LearningCurveOptions { y_scale: YScale::Log, ..Default::default() };
 /// let chart = learning_curves(&[run], &options)?;
-/// assert!(chart.as_svg().contains("best epoch 3"));
+/// assert!(chart.as_svg().contains("epoch kept (3)"));
 /// # Ok::<(), stratanet::Error>(())
 /// ```
 pub fn learning_curves(runs: &[TrainingHistory], options: &LearningCurveOptions) -> Result<Chart> {
-    let title = options.chart.check("Learning curves")?;
+    let figure = prepare(runs, options)?;
+    render(&figure, &options.chart)
+}
+
+/// Cleans one quantity of one run and averages it in blocks of `block`.
+fn clean(
+    values: &[f64],
+    block: usize,
+    log: bool,
+    non_finite: &mut usize,
+    non_positive: &mut usize,
+) -> Vec<(f64, f64)> {
+    let cleaned: Vec<f64> = values
+        .iter()
+        .map(|&v| {
+            if !v.is_finite() {
+                *non_finite += 1;
+                f64::NAN
+            } else if log && v <= 0.0 {
+                *non_positive += 1;
+                f64::NAN
+            } else {
+                v
+            }
+        })
+        .collect();
+    cleaned
+        .chunks(block)
+        .enumerate()
+        .map(|(b, chunk)| {
+            let finite: Vec<f64> = chunk.iter().copied().filter(|v| v.is_finite()).collect();
+            let mean = if finite.is_empty() {
+                f64::NAN
+            } else {
+                finite.iter().sum::<f64>() / finite.len() as f64
+            };
+            let first = (b * block + 1) as f64;
+            (first + (chunk.len() as f64 - 1.0) / 2.0, mean)
+        })
+        .collect()
+}
+
+/// The median over lines at each point up to the end of the shortest
+/// line; NaN where fewer than half the lines have a finite value.
+pub(crate) fn median_line(lines: &[Vec<(f64, f64)>]) -> Vec<(f64, f64)> {
+    let length = lines.iter().map(Vec::len).min().unwrap_or(0);
+    (0..length)
+        .map(|k| {
+            let x = lines[0][k].0;
+            let mut values: Vec<f64> = lines
+                .iter()
+                .map(|l| l[k].1)
+                .filter(|v| v.is_finite())
+                .collect();
+            values.sort_by(f64::total_cmp);
+            let n = values.len();
+            let median = match n {
+                _ if 2 * n < lines.len() => f64::NAN,
+                _ if n % 2 == 1 => values[n / 2],
+                _ => (values[n / 2 - 1] + values[n / 2]) / 2.0,
+            };
+            (x, median)
+        })
+        .collect()
+}
+
+fn plural(n: usize, one: &str) -> String {
+    if n == 1 {
+        one.to_string()
+    } else {
+        format!("{one}s")
+    }
+}
+
+/// What the chart will show: the series, axes, legend and notes.
+pub(crate) fn prepare(runs: &[TrainingHistory], options: &LearningCurveOptions) -> Result<Figure> {
     let what = "learning curves";
     if runs.is_empty() {
         return Err(Error::input(
@@ -164,79 +242,43 @@ pub fn learning_curves(runs: &[TrainingHistory], options: &LearningCurveOptions)
         .max()
         .unwrap_or(0);
     let block = stride(epochs, MAX_EPOCHS);
-
-    let mut non_finite = 0usize;
-    let mut non_positive = 0usize;
-    let mut prepare = |values: &[f64], loss: bool| -> Vec<(f64, f64)> {
-        let cleaned: Vec<f64> = values
-            .iter()
-            .map(|&v| {
-                if !v.is_finite() {
-                    non_finite += 1;
-                    f64::NAN
-                } else if loss && log && v <= 0.0 {
-                    non_positive += 1;
-                    f64::NAN
-                } else {
-                    v
-                }
-            })
-            .collect();
-        cleaned
-            .chunks(block)
-            .enumerate()
-            .map(|(b, chunk)| {
-                let finite: Vec<f64> = chunk.iter().copied().filter(|v| v.is_finite()).collect();
-                let mean = if finite.is_empty() {
-                    f64::NAN
-                } else {
-                    finite.iter().sum::<f64>() / finite.len() as f64
-                };
-                let first = (b * block + 1) as f64;
-                (first + (chunk.len() as f64 - 1.0) / 2.0, mean)
-            })
-            .collect()
-    };
-
-    let training: Vec<_> = runs
-        .iter()
-        .map(|r| prepare(&r.training_loss, true))
-        .collect();
-    let validation: Vec<_> = runs
-        .iter()
-        .filter_map(|r| r.validation_loss.as_deref())
-        .map(|v| prepare(v, true))
-        .collect();
-    let accuracy: Vec<_> = if options.accuracy_panel {
-        runs.iter()
-            .filter_map(|r| r.validation_accuracy.as_deref())
-            .map(|v| prepare(v, false))
-            .collect()
+    let (mut non_finite, mut non_positive) = (0usize, 0usize);
+    let mut lines_of =
+        |pick: &dyn Fn(&TrainingHistory) -> Option<&[f64]>, loss: bool| -> Vec<Vec<(f64, f64)>> {
+            runs.iter()
+                .filter_map(pick)
+                .map(|v| clean(v, block, log && loss, &mut non_finite, &mut non_positive))
+                .collect()
+        };
+    let training = lines_of(&|r| Some(&r.training_loss[..]), true);
+    let validation = lines_of(&|r| r.validation_loss.as_deref(), true);
+    let accuracy = if options.accuracy_panel {
+        lines_of(&|r| r.validation_accuracy.as_deref(), false)
     } else {
         Vec::new()
     };
-
+    let several = runs.len() > 1;
     let mut series = Vec::new();
-    for (name, colour, marker, panel, lines) in [
+    for (name, colour, dash, is_accuracy, lines) in [
         (
             "training loss",
             theme::OKABE_ITO[0],
-            Marker::Circle,
-            Panel::Loss,
+            Dash::Solid,
+            false,
             training,
         ),
         (
             "validation loss",
             theme::OKABE_ITO[1],
-            Marker::Square,
-            Panel::Loss,
+            Dash::Dashed,
+            false,
             validation,
         ),
         (
             "validation accuracy",
             theme::OKABE_ITO[2],
-            Marker::Triangle,
-            Panel::Accuracy,
+            Dash::Solid,
+            true,
             accuracy,
         ),
     ] {
@@ -247,28 +289,26 @@ pub fn learning_curves(runs: &[TrainingHistory], options: &LearningCurveOptions)
         series.push(Series {
             name,
             colour,
-            marker,
-            panel,
+            dash,
+            accuracy: is_accuracy,
             lines,
             median,
         });
     }
-    if !series.iter().any(|s| s.panel == Panel::Loss) {
-        let mut reason = String::from("no finite loss value to draw");
-        if non_positive > 0 {
-            reason.push_str(&format!(
-                " ({} at or below zero cannot go on a log scale; use YScale::Linear)",
+    if !series.iter().any(|s| !s.accuracy) {
+        let reason = if non_positive > 0 {
+            format!(
+                "no finite loss value to draw ({} at or below zero cannot go on a log scale; use YScale::Linear)",
                 group_digits(non_positive)
-            ));
+            )
         } else {
-            reason.push_str(&format!(
-                " ({} NaN or infinite values)",
+            format!(
+                "no finite loss value to draw ({} NaN or infinite values)",
                 group_digits(non_finite)
-            ));
-        }
+            )
+        };
         return Err(Error::input(what, reason));
     }
-    let with_accuracy = series.iter().any(|s| s.panel == Panel::Accuracy);
 
     let mut notes = Vec::new();
     if block > 1 {
@@ -299,63 +339,94 @@ pub fn learning_curves(runs: &[TrainingHistory], options: &LearningCurveOptions)
                 best.push(epoch);
             } else {
                 notes.push(format!(
-                    "run {}: best epoch {epoch} is outside 1 to {epochs}; not marked",
+                    "{} {}: epoch kept {epoch} is outside 1 to {epochs}; not marked",
+                    options.run_name,
                     k + 1
                 ));
             }
         }
     }
     best.sort_unstable();
+    // Where the medians end: the end of the first run to stop.
+    let lengths: Vec<usize> = runs.iter().map(|r| r.training_loss.len()).collect();
+    let first_stop = lengths.iter().copied().min().unwrap_or(0);
+    let medians_end = (several && lengths.iter().any(|&l| l != first_stop))
+        .then(|| {
+            series[0]
+                .median
+                .as_ref()
+                .and_then(|m| m.last())
+                .map(|p| p.0)
+        })
+        .flatten();
 
     // Legend.
-    let several = runs.len() > 1;
-    let mut entries: Vec<Entry> = series
+    let bold = if several { 2.4 } else { 2.0 };
+    let mut legend: Vec<Entry> = series
         .iter()
         .map(|s| {
-            let label = if several {
-                format!("{} (median)", s.name)
-            } else {
-                s.name.to_string()
-            };
             Entry::new(
-                label,
+                s.name,
                 Key::Line {
                     colour: s.colour,
-                    width: 3.0,
-                    marker: Some(s.marker),
+                    width: bold,
+                    dash: s.dash,
                 },
             )
         })
         .collect();
-    if several {
-        entries.push(Entry::new(
-            format!("single run (of {})", runs.len()),
-            Key::Line {
-                colour: theme::AXIS,
-                width: 1.0,
-                marker: None,
-            },
-        ));
-    }
     if !best.is_empty() {
-        let label = if best.len() > 1 {
-            "best epoch of a run"
-        } else {
-            "best epoch"
+        let mut distinct = best.clone();
+        distinct.dedup();
+        let label = match distinct.as_slice() {
+            [one] if best.len() == 1 => format!("epoch kept ({one})"),
+            [one] => format!(
+                "epoch kept ({one}, all {} {})",
+                best.len(),
+                plural(best.len(), &options.run_name)
+            ),
+            _ => format!(
+                "epoch kept by each {} ({}–{}, median {})",
+                options.run_name,
+                best[0],
+                best[best.len() - 1],
+                best[best.len() / 2]
+            ),
         };
-        entries.push(Entry::new(
+        legend.push(Entry::new(
             label,
-            Key::Dashed {
+            Key::Line {
                 colour: theme::INK_MUTED,
+                width: 1.0,
+                dash: Dash::Dashed,
             },
         ));
     }
+    let subtitle = if several {
+        vec![format!(
+            "{} {}: bold lines are the median over them, thin lines each {}; {}",
+            runs.len(),
+            plural(runs.len(), &options.run_name),
+            options.run_name,
+            match medians_end {
+                Some(e) => format!(
+                    "the medians end at epoch {}, where the first {} stopped",
+                    e.round(),
+                    options.run_name
+                ),
+                None => "every one ran the same epochs".to_string(),
+            }
+        )]
+    } else {
+        Vec::new()
+    };
 
-    let x_label = options
-        .chart
-        .x_label
-        .clone()
-        .unwrap_or_else(|| "epoch".to_string());
+    // Axes.
+    let loss_values = series
+        .iter()
+        .filter(|s| !s.accuracy)
+        .flat_map(|s| s.lines.iter().flatten().map(|p| p.1));
+    let (lo, hi) = finite_range(loss_values).unwrap_or((0.0, 1.0));
     let y_label = options.chart.y_label.clone().unwrap_or_else(|| {
         if log {
             "loss (log scale)".to_string()
@@ -363,44 +434,16 @@ pub fn learning_curves(runs: &[TrainingHistory], options: &LearningCurveOptions)
             "loss".to_string()
         }
     });
-
-    // Ranges and ticks.
-    let values = |panel: Panel| {
-        series
-            .iter()
-            .filter(move |s| s.panel == panel)
-            .flat_map(|s| s.lines.iter().flatten().map(|p| p.1))
-    };
-    let (loss_lo, loss_hi) = draw::finite_range(values(Panel::Loss)).unwrap_or((0.0, 1.0));
-    let (loss_range, loss_ticks, kind) = if log {
-        let (lo, hi) = draw::log_range(loss_lo, loss_hi);
-        ((lo, hi), log_ticks(lo, hi), ScaleKind::Log10)
+    let loss_axis = if log {
+        let range = log_range(lo, hi);
+        AxisSpec::log(range, log_ticks(range.0, range.1), y_label)
     } else {
-        let (mut lo, hi) = nice_range(loss_lo, loss_hi, 5);
-        if loss_lo >= 0.0 && lo < 0.0 {
-            lo = 0.0;
+        let (mut a, b) = nice_range(lo, hi, 5);
+        if lo >= 0.0 && a < 0.0 {
+            a = 0.0;
         }
-        ((lo, hi), linear_ticks(lo, hi, 5), ScaleKind::Linear)
+        AxisSpec::linear((a, b), linear_ticks(a, b, 5), y_label)
     };
-    let accuracy_range = draw::finite_range(values(Panel::Accuracy)).map(|(lo, hi)| {
-        let (mut lo, mut hi) = nice_range(lo, hi, 4);
-        if lo < 0.0
-            && values(Panel::Accuracy)
-                .filter(|v| v.is_finite())
-                .all(|v| v >= 0.0)
-        {
-            lo = 0.0;
-        }
-        if hi > 1.0
-            && values(Panel::Accuracy)
-                .filter(|v| v.is_finite())
-                .all(|v| v <= 1.0)
-        {
-            hi = 1.0;
-        }
-        (lo, hi)
-    });
-    let accuracy_ticks = accuracy_range.map(|(lo, hi)| linear_ticks(lo, hi, 4));
     let x_range = if epochs <= 1 {
         (0.0, 2.0)
     } else {
@@ -410,246 +453,92 @@ pub fn learning_curves(runs: &[TrainingHistory], options: &LearningCurveOptions)
         .into_iter()
         .filter(|t| t.value >= 1.0)
         .collect();
+    let x_label = options
+        .chart
+        .x_label
+        .clone()
+        .unwrap_or_else(|| "epoch".to_string());
+    let x_axis = AxisSpec::linear(x_range, x_ticks, x_label);
+    let with_accuracy = series.iter().any(|s| s.accuracy);
 
-    draw::render(
-        options.chart.width,
-        options.chart.height,
-        &title,
-        |canvas| {
-            let page = Page::new(canvas, &title, notes.clone());
-            page.draw(canvas)?;
-            let (body, legend) = split_legend(page.content, legend_width(&entries, None), 0.34);
-            let mut left_width = draw::left_gutter(&loss_ticks, true);
-            if let Some(ticks) = &accuracy_ticks {
-                left_width = left_width.max(draw::left_gutter(ticks, true));
-            }
-            let top = body.top
-                + if best.is_empty() {
-                    4.0
-                } else {
-                    size::NOTE + 8.0
-                };
-            let bottom = body.bottom - draw::bottom_gutter(true);
-            let (loss_plot, accuracy_plot) = if with_accuracy {
-                let gap = draw::bottom_gutter(false) + 14.0;
-                let loss_height = (bottom - top - gap) * 0.62;
-                (
-                    Rect {
-                        left: body.left + left_width,
-                        top,
-                        right: body.right - 8.0,
-                        bottom: top + loss_height,
-                    },
-                    Some(Rect {
-                        left: body.left + left_width,
-                        top: top + loss_height + gap,
-                        right: body.right - 8.0,
-                        bottom,
-                    }),
-                )
-            } else {
-                (
-                    Rect {
-                        left: body.left + left_width,
-                        top,
-                        right: body.right - 8.0,
-                        bottom,
-                    },
-                    None,
-                )
-            };
-            let x_scale =
-                |plot: Rect| Scale::new(ScaleKind::Linear, x_range, (plot.left, plot.right));
-            let loss_axis = Axis {
-                scale: Scale::new(kind, loss_range, (loss_plot.bottom, loss_plot.top)),
-                ticks: loss_ticks.clone(),
-                label: y_label.clone(),
-            };
-            let x_axis = |plot: Rect, label: &str| Axis {
-                scale: x_scale(plot),
-                ticks: x_ticks.clone(),
-                label: label.to_string(),
-            };
-            let loss_x = x_axis(loss_plot, if with_accuracy { "" } else { &x_label });
-            draw_axes(canvas, loss_plot, &loss_x, &loss_axis, Grid::Horizontal)?;
-            draw_best_epochs(canvas, loss_plot, &loss_x.scale, &best, true)?;
-            draw_series(
-                canvas,
-                &series,
-                Panel::Loss,
-                &loss_x.scale,
-                &loss_axis.scale,
-                several,
-            )?;
-            if let (Some(plot), Some(range), Some(ticks)) =
-                (accuracy_plot, accuracy_range, &accuracy_ticks)
-            {
-                let axis = Axis {
-                    scale: Scale::new(ScaleKind::Linear, range, (plot.bottom, plot.top)),
-                    ticks: ticks.clone(),
-                    label: "accuracy".to_string(),
-                };
-                let x = x_axis(plot, &x_label);
-                draw_axes(canvas, plot, &x, &axis, Grid::Horizontal)?;
-                draw_best_epochs(canvas, plot, &x.scale, &best, false)?;
-                draw_series(
-                    canvas,
-                    &series,
-                    Panel::Accuracy,
-                    &x.scale,
-                    &axis.scale,
-                    several,
-                )?;
-            }
-            draw_legend(
-                canvas,
-                legend.left,
-                loss_plot.top,
-                legend.width(),
-                legend.height(),
-                None,
-                &entries,
-            )?;
-            Ok(())
-        },
-    )
-}
-
-/// The median over lines at each index, NaN where no line has a finite value.
-fn median_line(lines: &[Vec<(f64, f64)>]) -> Vec<(f64, f64)> {
-    let length = lines.iter().map(Vec::len).max().unwrap_or(0);
-    (0..length)
-        .map(|k| {
-            let x = lines
-                .iter()
-                .find_map(|l| l.get(k))
-                .map_or(k as f64 + 1.0, |p| p.0);
-            let mut values: Vec<f64> = lines
-                .iter()
-                .filter_map(|l| l.get(k))
-                .map(|p| p.1)
-                .filter(|v| v.is_finite())
-                .collect();
-            values.sort_by(f64::total_cmp);
-            let n = values.len();
-            // Where fewer than half the runs are still going, the median
-            // would jump to whichever run is longest: stop it there.
-            let median = match n {
-                _ if 2 * n < lines.len() => f64::NAN,
-                _ if n % 2 == 1 => values[n / 2],
-                _ => (values[n / 2 - 1] + values[n / 2]) / 2.0,
-            };
-            (x, median)
-        })
-        .collect()
-}
-
-/// Splits a line at its gaps into pieces of finite points, in pixels.
-fn pieces(line: &[(f64, f64)], x: &Scale, y: &Scale) -> Vec<Vec<(f64, f64)>> {
-    let mut out = Vec::new();
-    let mut current = Vec::new();
-    for &(ex, v) in line {
-        if v.is_finite() {
-            current.push((x.map(ex), y.map(v)));
-        } else if !current.is_empty() {
-            out.push(std::mem::take(&mut current));
+    let panel = |accuracy: bool, y: AxisSpec, x: AxisSpec| -> XyPanel {
+        let mut marks = Vec::new();
+        let mut distinct = best.clone();
+        distinct.dedup();
+        for &e in &distinct {
+            marks.push(Mark::VRule {
+                x: e as f64,
+                stroke: Stroke::solid(theme::INK_MUTED, 1.0).dashed(Dash::Dashed),
+            });
         }
-    }
-    if !current.is_empty() {
-        out.push(current);
-    }
-    out
-}
-
-fn draw_series(
-    canvas: &Canvas,
-    series: &[Series],
-    panel: Panel,
-    x: &Scale,
-    y: &Scale,
-    several: bool,
-) -> Result<()> {
-    let shown: Vec<(usize, &Series)> = series
-        .iter()
-        .enumerate()
-        .filter(|(_, s)| s.panel == panel)
-        .collect();
-    if several {
-        for (_, s) in &shown {
-            for line in &s.lines {
-                for piece in pieces(line, x, y) {
-                    if piece.len() == 1 {
-                        canvas.circle(piece[0].0, piece[0].1, 1.5, s.colour, 0.5)?;
-                    } else {
-                        canvas.line(&piece, s.colour, 0.35, 1.0)?;
-                    }
+        if let Some(e) = medians_end {
+            marks.push(Mark::VRule {
+                x: e,
+                stroke: Stroke::solid(theme::INK_SOFT, 1.0).dashed(Dash::Dotted),
+            });
+        }
+        for s in series.iter().filter(|s| s.accuracy == accuracy) {
+            if several {
+                for line in &s.lines {
+                    marks.push(Mark::Line {
+                        points: line.clone(),
+                        stroke: Stroke::solid(s.colour, 0.9).faded(0.5),
+                    });
                 }
             }
+            let main = s.median.as_ref().unwrap_or(&s.lines[0]);
+            marks.push(Mark::Line {
+                points: main.clone(),
+                stroke: Stroke::solid(s.colour, bold).dashed(s.dash),
+            });
         }
-    }
-    for (index, s) in &shown {
-        let bold = match &s.median {
-            Some(median) => median,
-            None => &s.lines[0],
-        };
-        let pieces = pieces(bold, x, y);
-        for piece in &pieces {
-            canvas.line(piece, s.colour, 1.0, if several { 3.0 } else { 2.0 })?;
+        let mut p = XyPanel::new(x, y);
+        p.grid = Grid::Horizontal;
+        p.marks = marks;
+        if !accuracy {
+            if let Some(e) = medians_end {
+                p.top.push((e, "medians end".to_string()));
+            }
         }
-        // Sparse markers, shifted per series so that they do not coincide.
-        let points: Vec<(f64, f64)> = pieces.into_iter().flatten().collect();
-        let step = points.len().div_ceil(10).max(1);
-        let offset = (index * step / 3) % step;
-        for &(px, py) in points.iter().skip(offset).step_by(step) {
-            canvas.marker(s.marker, px, py, size::MARKER, s.colour, Some(theme::WHITE))?;
-        }
-    }
-    Ok(())
-}
-
-fn draw_best_epochs(
-    canvas: &Canvas,
-    plot: Rect,
-    x: &Scale,
-    best: &[usize],
-    label: bool,
-) -> Result<()> {
-    let mut distinct = best.to_vec();
-    distinct.dedup();
-    for &epoch in &distinct {
-        let px = x.map(epoch as f64);
-        canvas.dashed_line(
-            (px, plot.top - 2.0),
-            (px, plot.bottom),
-            5.0,
-            3.0,
-            theme::INK_MUTED,
-            1.0,
-        )?;
-    }
-    if !label || best.is_empty() {
-        return Ok(());
-    }
-    let median = best[best.len() / 2];
-    let text = if best.len() == 1 {
-        format!("best epoch {}", best[0])
-    } else if distinct.len() == 1 {
-        format!("best epoch {} (all {} runs)", best[0], best.len())
-    } else {
-        format!(
-            "best epochs {}–{}, median {median}",
-            best[0],
-            best[best.len() - 1]
-        )
+        p
     };
-    let px = x.map(median as f64);
-    let width = draw::text_width(&text, size::NOTE);
-    let font = Font::new(size::NOTE, theme::INK_MUTED);
-    let y = plot.top - 4.0;
-    if px + width + 4.0 <= plot.right {
-        canvas.text(&text, px + 3.0, y, font, Align::Left, Baseline::Bottom)
+    let frame = options
+        .chart
+        .frame("Learning curves", subtitle, legend, notes);
+    if with_accuracy {
+        let values = series
+            .iter()
+            .filter(|s| s.accuracy)
+            .flat_map(|s| s.lines.iter().flatten().map(|p| p.1));
+        let (lo, hi) = finite_range(values).unwrap_or((0.0, 1.0));
+        let (mut a, mut b) = nice_range(lo, hi, 4);
+        if lo >= 0.0 {
+            a = a.max(0.0);
+        }
+        if hi <= 1.0 {
+            b = b.min(1.0);
+        }
+        let accuracy_axis = AxisSpec::linear((a, b), linear_ticks(a, b, 4), "accuracy");
+        let mut top_x = x_axis.clone().unlabelled();
+        top_x.tick_labels = true;
+        top_x.label.clear();
+        Ok(Figure {
+            frame,
+            panels: vec![
+                Panel::Xy(panel(false, loss_axis, top_x)),
+                Panel::Xy({
+                    let mut p = panel(true, accuracy_axis, x_axis);
+                    p.aspect = 0.25;
+                    p
+                }),
+            ],
+            arrangement: Arrangement::Column(vec![0.64, 0.36]),
+        })
     } else {
-        canvas.text(&text, px - 3.0, y, font, Align::Right, Baseline::Bottom)
+        Ok(Figure::single(
+            frame,
+            Panel::Xy(panel(false, loss_axis, x_axis)),
+        ))
     }
 }
 
@@ -685,61 +574,85 @@ mod tests {
 
     #[test]
     fn one_run_with_validation_and_accuracy() {
-        let chart =
-            learning_curves(&[run(1, 120, Some(48))], &LearningCurveOptions::default()).unwrap();
-        let r = check(&chart, "learning-one-run");
-        assert!(r.has_text("Learning curves"));
-        assert!(r.has_text("epoch") && r.has_text("loss") && r.has_text("accuracy"));
-        assert!(
-            r.has_text("validation accuracy"),
-            "legend entry in full: {:?}",
-            r.texts
+        let figure = prepare(&[run(1, 120, Some(48))], &LearningCurveOptions::default()).unwrap();
+        assert_eq!(figure.panels.len(), 2);
+        let labels: Vec<&str> = figure
+            .frame
+            .legend
+            .iter()
+            .map(|e| e.label.as_str())
+            .collect();
+        assert_eq!(
+            labels,
+            [
+                "training loss",
+                "validation loss",
+                "validation accuracy",
+                "epoch kept (48)"
+            ]
         );
-        assert!(r.has_text("training loss") && r.has_text("validation loss"));
-        assert!(r.has_text("best epoch 48"));
-        // One bold polyline per series.
-        for colour in [
-            theme::OKABE_ITO[0],
-            theme::OKABE_ITO[1],
-            theme::OKABE_ITO[2],
-        ] {
-            assert_eq!(
-                r.count(
-                    "polyline",
-                    &[("stroke", &colour.to_svg()), ("stroke-width", "2")]
-                ),
-                1
-            );
-        }
-        assert!(r.ink_share() > 0.02);
+        // One line per series, no thin lines, no median.
+        let lines = |p: &XyPanel| {
+            p.marks
+                .iter()
+                .filter(|m| matches!(m, Mark::Line { .. }))
+                .count()
+        };
+        assert_eq!(lines(figure.xy(0)), 2);
+        assert_eq!(lines(figure.xy(1)), 1);
+        let chart = render(&figure, &ChartOptions::default()).unwrap();
+        let r = check(&chart, "learning-one-run");
+        assert!(r.has_text("Learning curves") && r.has_text("epoch") && r.has_text("accuracy"));
     }
 
+    /// The medians stop where the first run stopped, never jumping as runs
+    /// end, and the chart says so.
     #[test]
-    fn several_runs_show_thin_lines_and_a_median() {
-        let runs: Vec<_> = (0..5)
-            .map(|s| run(s, 80 + 5 * s as usize, Some(30 + 4 * s as usize)))
+    fn medians_end_where_the_first_run_stops() {
+        let runs: Vec<_> = (0..4)
+            .map(|s| run(s, 50 + 20 * s as usize, Some(30 + 4 * s as usize)))
             .collect();
         let options = LearningCurveOptions {
-            y_scale: YScale::Log,
-            accuracy_panel: false,
-            chart: ChartOptions::titled("Five seeds"),
+            run_name: "restart".into(),
+            ..Default::default()
         };
-        let chart = learning_curves(&runs, &options).unwrap();
-        let r = check(&chart, "learning-five-runs-log");
-        assert!(r.has_text("Five seeds") && r.has_text("loss (log scale)"));
-        assert!(r.has_text("training loss (median)") && r.has_text("single run (of 5)"));
-        assert!(r.has_text("best epochs 30–46, median 38"), "{:?}", r.texts);
-        let blue = theme::OKABE_ITO[0].to_svg();
-        assert_eq!(
-            r.count("polyline", &[("stroke", &blue), ("stroke-width", "1")]),
-            5
+        let figure = prepare(&runs, &options).unwrap();
+        let median = |p: &XyPanel| -> Vec<(f64, f64)> {
+            match p
+                .marks
+                .iter()
+                .rev()
+                .find(|m| matches!(m, Mark::Line { stroke, .. } if stroke.width > 2.0))
+            {
+                Some(Mark::Line { points, .. }) => points.clone(),
+                _ => panic!("no median"),
+            }
+        };
+        let m = median(figure.xy(1));
+        assert_eq!(m.len(), 50, "the median runs to the shortest run's end");
+        // At epoch 10 the median of four values is the mean of the middle two.
+        let mut at10: Vec<f64> = runs
+            .iter()
+            .map(|r| r.validation_accuracy.as_ref().unwrap()[9])
+            .collect();
+        at10.sort_by(f64::total_cmp);
+        assert!((m[9].1 - (at10[1] + at10[2]) / 2.0).abs() < 1e-12);
+        assert_eq!(figure.xy(0).top, vec![(50.0, "medians end".to_string())]);
+        assert!(
+            figure.frame.subtitle[0]
+                .contains("the medians end at epoch 50, where the first restart stopped"),
+            "{:?}",
+            figure.frame.subtitle
         );
-        // The median line and its legend key.
-        assert_eq!(
-            r.count("polyline", &[("stroke", &blue), ("stroke-width", "3")]),
-            2
-        );
-        assert!(!r.has_text("validation accuracy"));
+        let thin = figure
+            .xy(0)
+            .marks
+            .iter()
+            .filter(|m| matches!(m, Mark::Line { stroke, .. } if stroke.width < 1.0))
+            .count();
+        assert_eq!(thin, 8, "four thin lines per loss series");
+        let chart = render(&figure, &options.chart).unwrap();
+        check(&chart, "learning-four-restarts");
     }
 
     #[test]
@@ -773,11 +686,7 @@ mod tests {
         };
         let chart = learning_curves(&[one], &LearningCurveOptions::default()).unwrap();
         let r = check(&chart, "learning-single-epoch");
-        assert!(r.has_text("best epoch 1"));
-        assert!(
-            r.filled_with(theme::OKABE_ITO[0]) >= 1,
-            "the lone epoch is a visible marker"
-        );
+        assert!(r.has_text("epoch kept (1)"));
     }
 
     #[test]
@@ -790,19 +699,17 @@ mod tests {
             y_scale: YScale::Log,
             ..Default::default()
         };
-        let chart = learning_curves(&[a], &options).unwrap();
-        let r = check(&chart, "learning-nan-log");
-        assert!(
-            r.has_text("skipped 2 non-finite values (NaN or infinite)"),
-            "{:?}",
-            r.texts
-        );
-        assert!(r.has_text("skipped 1 loss value at or below zero (not shown on a log scale)"));
-        // The gaps split the training line into three pieces.
-        let blue = theme::OKABE_ITO[0].to_svg();
-        assert_eq!(
-            r.count("polyline", &[("stroke", &blue), ("stroke-width", "2")]),
-            3
+        let figure = prepare(&[a], &options).unwrap();
+        assert!(figure
+            .frame
+            .notes
+            .contains(&"skipped 2 non-finite values (NaN or infinite)".to_string()));
+        assert!(figure.frame.notes.contains(
+            &"skipped 1 loss value at or below zero (not shown on a log scale)".to_string()
+        ));
+        check(
+            &render(&figure, &options.chart).unwrap(),
+            "learning-nan-log",
         );
     }
 
@@ -825,8 +732,10 @@ mod tests {
             best_epoch: Some(99),
             ..TrainingHistory::new(vec![0.5, 0.4, 0.3])
         };
-        let chart = learning_curves(&[a], &LearningCurveOptions::default()).unwrap();
-        let r = check(&chart, "learning-bad-best-epoch");
-        assert!(r.has_text("run 1: best epoch 99 is outside 1 to 3; not marked"));
+        let figure = prepare(&[a], &LearningCurveOptions::default()).unwrap();
+        assert_eq!(
+            figure.frame.notes,
+            ["run 1: epoch kept 99 is outside 1 to 3; not marked"]
+        );
     }
 }

@@ -1,6 +1,7 @@
-//! Charts as SVG: learning curves, decision maps, hidden-layer views,
-//! confusion matrices, ROC and precision-recall curves, cross-validation
-//! comparisons and network diagrams.
+//! Charts as SVG (and PDF and PNG): learning curves, decision maps,
+//! hidden-layer views, confusion matrices, ROC and precision-recall curves,
+//! rankings of configurations, weights, regression fits, calibration,
+//! importance, nested cross-validation and a table's columns.
 //!
 //! **One naming scheme.** Every result that can be drawn has methods named
 //! for what they show, ending in `_chart`, each returning a [`Chart`]:
@@ -8,16 +9,23 @@
 //! | result | charts |
 //! |---|---|
 //! | [`Fitted`](crate::Fitted) | `learning_curves_chart()` |
-//! | [`Model`](crate::Model) | `decision_map_chart(&data, x, y)`, `decision_map_components_chart(&data)`, `hidden_layer_chart(&data, layer, view)`, `roc_chart(&data)`, `precision_recall_chart(&data)`, `network_chart()` |
+//! | [`Model`](crate::Model) | `decision_map_chart(&data, x, y)`, `components_chart(&data)`, `hidden_layer_chart(&data, layer, view)`, `roc_chart(&data)`, `precision_recall_chart(&data)`, `predicted_actual_chart(&data)`, `residuals_chart(&data)`, `weights_chart()` |
 //! | [`CrossValidation`](crate::validate::CrossValidation) | `scores_chart(metric)`, `learning_curves_chart()` |
 //! | [`Comparison`](crate::validate::Comparison) | `scores_chart(metric, a_name, b_name)` |
+//! | [`SweepTable`](crate::validate::SweepTable) | `scores_chart()` |
 //! | [`ClassificationMetrics`](crate::validate::ClassificationMetrics) | `confusion_chart()` |
 //!
-//! The chart kinds themselves, on plain data (vectors, `ndarray` arrays and
-//! small input structs), are one module down, in [`plot`]. In an evcxr
-//! notebook a `Chart` as the last expression of a cell shows as a picture
-//! ([`Chart::evcxr_display`]); elsewhere save it with [`Chart::save`] or
-//! take the text with [`Chart::as_svg`].
+//! Methods that draw rows of a table have a `_with` form taking
+//! [`ChartOptions`], whose `rows` names the rows for the title and
+//! subtitle (`model.roc_chart_with(&val, &ChartOptions::default().rows("validation rows"))`).
+//! The chart kinds themselves, on plain data (vectors, `ndarray` arrays
+//! and small input structs), are one module down, in [`plot`]; kinds
+//! whose results other parts of the library compute on their own
+//! (reliability bins, permutation importances, nested cross-validation,
+//! a table's column overview) are there too. In an evcxr notebook a
+//! `Chart` as the last expression of a cell shows as a picture
+//! ([`Chart::evcxr_display`]); elsewhere save it with [`Chart::save`] (SVG,
+//! PDF or PNG by extension) or take the text with [`Chart::as_svg`].
 //!
 //! ```
 //! use stratanet::chart::plot::{learning_curves, TrainingHistory};
@@ -33,57 +41,86 @@
 //!
 //! - **Colours.** Classes and series use the qualitative palette of Okabe &
 //!   Ito (2008), *Color Universal Design* ([`theme::OKABE_ITO`]), which stays
-//!   distinguishable with the common colour-vision deficiencies. Two-class
-//!   probability maps use Paul Tol's diverging "sunset" scheme and confusion
-//!   matrices his sequential "iridescent" scheme, both from Tol (2021),
-//!   *Colour Schemes*, SRON technical note ([`theme::SUNSET`],
-//!   [`theme::IRIDESCENT`]).
+//!   distinguishable with the common colour-vision deficiencies. Signed
+//!   values (two-class probability maps, weights) use Paul Tol's diverging
+//!   "sunset" scheme and confusion matrices his sequential "iridescent"
+//!   scheme, both from Tol (2021), *Colour Schemes*, SRON technical note
+//!   ([`theme::SUNSET`], [`theme::IRIDESCENT`]).
 //! - **Grey print.** Classes differ in marker shape as well as colour
-//!   (circle, square, triangle, diamond, ...; [`theme::Marker`]), and line
-//!   series carry sparse markers, so a chart still reads in black and white.
-//! - **Layout.** White background, title at the top left, a legend column at
-//!   the right of the plot (never over the data), light horizontal grid lines,
-//!   and notes about skipped or thinned data at the bottom left.
-//! - **Text.** One generic family, `sans-serif`, in a few fixed sizes. The
-//!   layout estimates text widths (plotters' naive estimator is not used for
-//!   layout; no font library is needed).
-//! - **Determinism.** The same input gives a byte-identical SVG: no random
-//!   identifiers, no time stamps, no hash-map iteration. Large inputs are
-//!   thinned deterministically (every k-th point, or epochs averaged in
-//!   blocks) above [`MAX_POINTS`] points or [`MAX_EPOCHS`] epochs, and the
-//!   chart says so in a note.
+//!   (circle, square, triangle, diamond, ...; [`theme::Marker`]); lines
+//!   differ in dash pattern as well as colour ([`theme::Dash`]); negative
+//!   weights carry a bar. Lines carry no markers: a marker is a data point.
+//! - **Layout.** White background; title and a subtitle saying what is
+//!   shown, from which model and which rows (with their count) at the top
+//!   left; the legend as a band under them, entries flowing left to right,
+//!   colour scales included, so it never sits on the data and takes no
+//!   width from the plots; notes about skipped, thinned or held data at
+//!   the foot. The height follows the content when it is not given.
+//! - **Text.** Liberation Sans, shipped in the crate (`src/chart/fonts`,
+//!   SIL Open Font License 1.1) and measured with its own advance widths,
+//!   so the layout is the renderer's; the SVG names metric-compatible
+//!   faces after it. The smallest text is 7.5 pt at the chart's physical
+//!   size ([`ChartOptions`]).
+//! - **Determinism.** The same input gives a byte-identical SVG, PDF and
+//!   PNG: no random identifiers, no time stamps, no hash-map iteration, no
+//!   machine fonts. Large inputs are thinned deterministically (every k-th
+//!   point, or epochs averaged in blocks) above [`MAX_POINTS`] points or
+//!   [`MAX_EPOCHS`] epochs, and the chart says so in a note.
 //! - **No panics.** Empty or unusable input gives an [`Error`](crate::Error) of kind
 //!   [`ErrorKind::InvalidInput`](crate::ErrorKind::InvalidInput) or
 //!   [`ErrorKind::InvalidOption`](crate::ErrorKind::InvalidOption); partly
 //!   unusable input (NaN values, one class) gives a chart with a note saying
 //!   what was left out.
+//!
+//! ## Adding a chart kind
+//!
+//! Write a file with a plain-data input, a `prepare` function that turns
+//! it into a `draw::Figure` (title, subtitle, legend entries, notes, and
+//! panels of marks in data coordinates; unit tests check this) and a
+//! public function that calls `prepare` and `draw::render`. Re-export it
+//! in [`plot`], and add a `*_chart` method in `results` when a result type
+//! holds the data. The drawing layer (`draw/`) lays out and draws every
+//! figure the same way.
 
+mod columns;
 mod compare;
+mod components;
 mod confusion;
 mod contour;
 mod curves;
 mod decision;
 mod draw;
-mod figure;
+#[cfg(feature = "export")]
+mod export;
+mod finished;
+pub(crate) mod fonts;
 mod hidden;
+mod importance;
 mod labels;
 mod learning;
-mod network;
+mod nested;
+mod options;
 mod pca;
 pub mod plot;
+mod regression;
+mod reliability;
 mod results;
 mod scatter;
 pub mod theme;
+mod weights;
 
 #[cfg(test)]
-mod testing;
+pub(crate) mod testing;
 
 pub use decision::DecisionMapOptions;
-pub use figure::{Chart, ChartOptions, MAX_EPOCHS, MAX_POINTS};
+pub use finished::{Chart, PNG_DPI};
 pub use hidden::HiddenView;
 pub use labels::{axis_label, UNIT_SUFFIXES};
 pub(crate) use labels::{class_names, decision_features, group_digits, stride};
 pub use learning::LearningCurveOptions;
+pub use options::{ChartOptions, MAX_EPOCHS, MAX_POINTS, PX_PER_MM};
+pub(crate) use reliability::wilson;
+pub(crate) use results::{configuration_name, model_line, named_reading, source_name};
 
 #[cfg(test)]
 mod tests {
@@ -131,22 +168,26 @@ mod tests {
             width: 10,
             ..ChartOptions::default()
         };
-        let err = small.check("x").unwrap_err();
+        let err = small.check_size().unwrap_err();
         assert!(err.to_string().contains("width"), "{err}");
-        assert_eq!(ChartOptions::default().check("T").unwrap(), "T");
-        assert_eq!(ChartOptions::titled("Mine").check("T").unwrap(), "Mine");
+        assert!(ChartOptions::default().height(100).check_size().is_err());
+        assert_eq!(ChartOptions::default().title_or("T"), "T");
+        assert_eq!(ChartOptions::titled("Mine").title_or("T"), "Mine");
+        // Journal column widths (common practice, no source): 85 and 175 mm.
+        assert_eq!(ChartOptions::single_column().width, 321);
+        assert_eq!(ChartOptions::double_column().width, 661);
     }
 
     #[test]
     fn evcxr_content_is_one_block() {
-        let chart = Chart::from_parts("<svg></svg>\n".into(), 720, 480, "t");
+        let chart = Chart::from_parts("<svg></svg>\n".into(), 720, 480, "t", Default::default());
         assert_eq!(
             chart.evcxr_content(),
             "EVCXR_BEGIN_CONTENT image/svg+xml\n<svg></svg>\nEVCXR_END_CONTENT"
         );
         let debug = format!("{chart:?}");
         assert!(
-            debug.contains("720 x 480") && !debug.contains("<svg"),
+            debug.contains("720 x 480 px (190 x 127 mm)") && !debug.contains("<svg"),
             "{debug}"
         );
     }
@@ -155,7 +196,7 @@ mod tests {
     fn save_is_atomic_and_names_the_path_on_failure() {
         let dir = testing::preview_dir();
         let path = dir.join("save-test.svg");
-        let chart = Chart::from_parts("<svg/>".into(), 240, 180, "t");
+        let chart = Chart::from_parts("<svg/>".into(), 240, 180, "t", Default::default());
         chart.save(&path).unwrap();
         assert_eq!(fs::read_to_string(&path).unwrap(), "<svg/>");
         let leftovers: Vec<_> = fs::read_dir(&dir)
@@ -168,5 +209,48 @@ mod tests {
         let err = chart.save(&missing).unwrap_err();
         assert!(err.is_io());
         assert!(err.to_string().contains("no-such-folder"), "{err}");
+        let err = chart.save(dir.join("chart.jpeg")).unwrap_err();
+        assert!(err.to_string().contains(".svg, .pdf or .png"), "{err}");
+    }
+
+    #[cfg(feature = "export")]
+    fn roc_column() -> Chart {
+        use plot::{roc_curves, Curve};
+        let curve = Curve {
+            label: "fail".into(),
+            points: vec![(0.0, 0.0), (0.1, 0.6), (0.3, 0.9), (1.0, 1.0)],
+            summary: Some(0.87),
+        };
+        roc_curves(&[curve], &ChartOptions::single_column()).unwrap()
+    }
+
+    /// Reruns give the same bytes, and the files have the chart's physical
+    /// size: an 85 mm wide page (240.75 pt) and a 300 dpi image (1,004 px).
+    #[cfg(feature = "export")]
+    #[test]
+    fn png_and_pdf_are_byte_identical_and_sized() {
+        let c = roc_column();
+        let (png, pdf) = (c.to_png(300.0).unwrap(), c.to_pdf().unwrap());
+        // svg2pdf's order of embedded fonts varies from run to run (a hash
+        // map); ten runs would catch it with near certainty.
+        for _ in 0..10 {
+            assert!(
+                pdf == roc_column().to_pdf().unwrap(),
+                "PDF bytes differ between runs"
+            );
+        }
+        assert_eq!(png, roc_column().to_png(300.0).unwrap());
+        assert_eq!(&png[1..4], b"PNG");
+        let width = u32::from_be_bytes(png[16..20].try_into().unwrap());
+        assert_eq!(width, (321.0f64 * 300.0 / 96.0).ceil() as u32);
+        assert!(png.windows(4).any(|w| w == b"pHYs"));
+        let text = String::from_utf8_lossy(&pdf);
+        assert!(text.starts_with("%PDF-"));
+        assert!(text.contains("240.75"), "the page is 85 mm wide");
+        assert!(
+            !text.contains("/Font"),
+            "text is drawn as outlines, no font needed"
+        );
+        assert!(!text.contains("CreationDate"), "no time stamp");
     }
 }

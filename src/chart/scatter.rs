@@ -1,7 +1,7 @@
 //! Class-labelled points, shared by the decision map and the hidden-layer
 //! view: checking, thinning, ranges, drawing and legend entries.
 
-use super::draw::{Canvas, Entry, Key, Scale};
+use super::draw::{Entry, Key, Mark};
 use super::theme::{self, class_colour, class_marker, size};
 use super::{group_digits, stride, MAX_POINTS};
 use crate::{Error, Result};
@@ -91,6 +91,7 @@ pub(crate) fn class_entries(names: &[String], per_class: &[usize]) -> Vec<Entry>
                 Key::Marker {
                     shape: class_marker(i),
                     colour: class_colour(i),
+                    outline: theme::OUTLINE,
                 },
             )
         })
@@ -112,30 +113,20 @@ pub(crate) fn class_note(names: &[String], per_class: &[usize]) -> Option<String
     }
 }
 
-/// Draws the points, coloured and shaped by class, outlined for contrast.
-/// Smaller markers, without outlines, for clouds of more than 1,500 points.
-pub(crate) fn draw_points(
-    canvas: &Canvas,
-    points: &[(f64, f64, usize)],
-    x: &Scale,
-    y: &Scale,
-) -> Result<()> {
-    // Dense clouds: smaller markers without outlines, which also halves
-    // the SVG (an outline is a second element per point).
-    let (r, outline) = if points.len() > 1500 {
+/// The points as one mark, in the order given (no class is always on top),
+/// coloured and shaped by class and outlined for contrast; smaller
+/// markers, without outlines, for clouds of more than 1,500 points.
+pub(crate) fn class_mark(points: &[(f64, f64, usize)]) -> Mark {
+    // Dense clouds: smaller markers without outlines, which also shortens
+    // the SVG.
+    let (radius, outline) = if points.len() > 1500 {
         (size::MARKER - 1.5, None)
     } else {
         (size::MARKER, Some(theme::OUTLINE))
     };
-    for &(px, py, class) in points {
-        canvas.marker(
-            class_marker(class),
-            x.map(px),
-            y.map(py),
-            r,
-            class_colour(class),
-            outline,
-        )?;
+    Mark::Classes {
+        points: points.to_vec(),
+        outline,
+        radius,
     }
-    Ok(())
 }

@@ -59,13 +59,9 @@ impl Rgb {
         0.2126 * lin(self.0) + 0.7152 * lin(self.1) + 0.0722 * lin(self.2)
     }
 
-    /// The SVG spelling, `#RRGGBB` in upper case (as plotters writes it).
+    /// The SVG spelling, `#RRGGBB` in upper case.
     pub fn to_svg(self) -> String {
         format!("#{:02X}{:02X}{:02X}", self.0, self.1, self.2)
-    }
-
-    pub(crate) fn plotters(self) -> plotters::style::RGBColor {
-        plotters::style::RGBColor(self.0, self.1, self.2)
     }
 }
 
@@ -149,10 +145,8 @@ pub const IRIDESCENT: [Rgb; 23] = [
     Rgb::hex(0x46353A),
 ];
 
-/// Positive weights in network diagrams (Okabe & Ito blue).
-pub const POSITIVE: Rgb = OKABE_ITO[0];
-/// Negative weights in network diagrams (Okabe & Ito vermillion).
-pub const NEGATIVE: Rgb = OKABE_ITO[1];
+/// Cells with no value (no prediction, no count).
+pub const EMPTY: Rgb = Rgb::hex(0xD9D9D9);
 
 /// The colour of class (or series) `index`; cycles after eight.
 pub fn class_colour(index: usize) -> Rgb {
@@ -180,6 +174,63 @@ pub fn scale_colour(stops: &[Rgb], t: f64) -> Rgb {
         return stops[0];
     }
     stops[i].mix(stops[i + 1], position - i as f64)
+}
+
+/// The line pattern of series `index`: solid, dashed, dotted, dash-dot,
+/// long dash, cycling; with the colour it keeps series apart in grey print.
+pub fn series_dash(index: usize) -> Dash {
+    Dash::ALL[index % Dash::ALL.len()]
+}
+
+/// Line patterns.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub enum Dash {
+    /// An unbroken line.
+    Solid,
+    /// Short dashes ([`Dash::pattern`] gives the lengths).
+    Dashed,
+    /// Round-looking dots.
+    Dotted,
+    /// Dash, dot, dash.
+    DashDot,
+    /// Long dashes.
+    LongDash,
+}
+
+impl Dash {
+    /// Every pattern, in series order.
+    pub const ALL: [Dash; 5] = [
+        Dash::Solid,
+        Dash::Dashed,
+        Dash::Dotted,
+        Dash::DashDot,
+        Dash::LongDash,
+    ];
+
+    /// The SVG `stroke-dasharray` for a line `width` pixels wide (dash and
+    /// gap lengths grow with the width, so thick lines keep their rhythm),
+    /// or `None` for a solid line.
+    pub fn pattern(self, width: f64) -> Option<String> {
+        let w = width.max(1.0);
+        let lengths: &[f64] = match self {
+            Dash::Solid => return None,
+            Dash::Dashed => &[4.0, 2.5],
+            Dash::Dotted => &[1.2, 1.8],
+            Dash::DashDot => &[5.0, 2.0, 1.2, 2.0],
+            Dash::LongDash => &[8.0, 3.0],
+        };
+        Some(
+            lengths
+                .iter()
+                .map(|l| {
+                    // Two decimals at most, trailing zeros trimmed.
+                    let text = format!("{:.2}", l * w.sqrt() * 1.6);
+                    text.trim_end_matches('0').trim_end_matches('.').to_string()
+                })
+                .collect::<Vec<_>>()
+                .join(" "),
+        )
+    }
 }
 
 /// Marker shapes; class `i` uses [`class_marker`]`(i)`.
@@ -272,23 +323,30 @@ impl Marker {
     }
 }
 
-/// Text sizes in SVG pixels. All are multiples of 0.5 that survive plotters'
-/// conversion exactly, so the SVG reads `font-size="12"`, not `11.999...`.
+/// Text sizes and spacing in CSS pixels (1/96 inch; 1 pt = 4/3 px). The
+/// same at every chart size, as in print: the smallest text is 10 px,
+/// 7.5 pt, at the chart's physical size ([`ChartOptions::width`]).
+///
+/// [`ChartOptions::width`]: super::ChartOptions::width
 pub(crate) mod size {
-    /// Chart title.
-    pub const TITLE: f64 = 16.0;
+    /// Chart title (bold).
+    pub const TITLE: f64 = 14.5;
+    /// Subtitle lines under the title.
+    pub const SUBTITLE: f64 = 11.0;
     /// Axis labels and panel captions.
-    pub const LABEL: f64 = 12.5;
-    /// Tick labels.
-    pub const TICK: f64 = 11.0;
+    pub const LABEL: f64 = 11.5;
+    /// Tick labels and numbers beside rows.
+    pub const TICK: f64 = 10.5;
     /// Legend entries.
-    pub const LEGEND: f64 = 12.0;
+    pub const LEGEND: f64 = 11.0;
     /// Notes at the foot of the chart.
-    pub const NOTE: f64 = 11.0;
+    pub const NOTE: f64 = 10.0;
+    /// The smallest text any chart draws (7.5 pt).
+    pub const SMALLEST: f64 = 10.0;
     /// Outer margin.
-    pub const MARGIN: f64 = 16.0;
+    pub const MARGIN: f64 = 12.0;
     /// Marker "radius".
-    pub const MARKER: f64 = 4.5;
+    pub const MARKER: f64 = 4.0;
 }
 
 #[cfg(test)]
@@ -304,6 +362,14 @@ mod tests {
         assert_eq!(scale_colour(&SUNSET, 1.0), SUNSET[10]);
         assert_eq!(scale_colour(&SUNSET, f64::NAN), SUNSET[0]);
         assert_eq!(scale_colour(&SUNSET, 0.5), SUNSET[5]);
+    }
+
+    #[test]
+    fn dashes_scale_with_width() {
+        assert_eq!(Dash::Solid.pattern(2.0), None);
+        assert_eq!(Dash::Dashed.pattern(1.0).unwrap(), "6.4 4");
+        assert_eq!(series_dash(1), Dash::Dashed);
+        assert_eq!(series_dash(5), Dash::Solid);
     }
 
     #[test]

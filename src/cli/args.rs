@@ -350,6 +350,9 @@ pub(crate) struct FitArgs {
     /// Write the charts (SVG) into this folder.
     #[arg(long, value_name = "DIR")]
     pub charts: Option<PathBuf>,
+    /// Write a self-contained HTML page (no network needed) with the table, scores, baselines and every chart, captioned.
+    #[arg(long, value_name = "FILE.html")]
+    pub report: Option<PathBuf>,
     /// A cost matrix CSV (a header of true classes, one line per decision): the model decides by the least expected cost, and predict writes each row's decision and its expected cost.
     #[arg(long, value_name = "PATH", conflicts_with_all = ["target_recall", "target_precision"])]
     pub costs: Option<PathBuf>,
@@ -437,6 +440,9 @@ pub(crate) struct CvArgs {
     /// Write the charts (SVG) into this folder.
     #[arg(long, value_name = "DIR")]
     pub charts: Option<PathBuf>,
+    /// Write a self-contained HTML page (no network needed) with the table, scores, baselines and every chart, captioned.
+    #[arg(long, value_name = "FILE.html")]
+    pub report: Option<PathBuf>,
     /// Write every row's out-of-fold prediction (one line per row and repeat, with the table's ID columns) to this CSV file.
     #[arg(long, value_name = "PATH")]
     pub out_of_fold: Option<PathBuf>,
@@ -472,6 +478,9 @@ pub(crate) struct SweepArgs {
     /// Save the best configuration, refitted on all rows, here.
     #[arg(long, value_name = "PATH")]
     pub out: Option<PathBuf>,
+    /// Write a self-contained HTML page (no network needed) with the table, scores, baselines and every chart, captioned.
+    #[arg(long, value_name = "FILE.html", conflicts_with = "write_plan")]
+    pub report: Option<PathBuf>,
     #[command(flatten)]
     pub output: OutputArgs,
 }

@@ -4,10 +4,11 @@ use super::charts::{ensure_dir, fit_charts, save_all};
 use super::output::{cv_json, Outcome};
 use super::progress::Progress;
 use crate::atomic::write_text;
+use crate::chart::{configuration_name, ChartOptions};
 use crate::data::CsvOptions;
 use crate::error::{Error, Result};
 use crate::fit::{fit, FitOptions};
-use crate::notebook::{escape, notes};
+use crate::report::{self, Page};
 use crate::rng::seeded_rng;
 use crate::validate::{
     compare_configurations, CrossValidation, CvOptions, HoldOut, Metric, Scores,
@@ -100,10 +101,13 @@ pub(crate) fn demo(out: &Path, seed: u64, progress: &Progress) -> Result<Outcome
     } else {
         single.clone().restarts(4)
     };
+    // One name per configuration, the same in every table, chart and line.
+    let hidden_name = configuration_name(&hidden);
+    let single_name = configuration_name(&single);
     let chosen_name = if better_is_hidden {
-        "hidden layer of 12 tanh units"
+        hidden_name.clone()
     } else {
-        "no hidden layer"
+        single_name.clone()
     };
     say("fitting the chosen configuration with 4 restarts");
     let fitted = fit(&development, &chosen, &mut rng)?;
@@ -119,45 +123,46 @@ pub(crate) fn demo(out: &Path, seed: u64, progress: &Progress) -> Result<Outcome
         let idx = held_out.row_indices().to_vec();
         data.select(&idx)
     };
+    let test_options = ChartOptions::default().scored(score.scored_rows());
     files.extend(save_all(
         &charts_dir,
         vec![
-            ("confusion-matrix-test", test_metrics.confusion_chart()),
-            ("roc-test", fitted.model().roc_chart(&test_rows)),
+            (
+                "confusion-matrix-test",
+                test_metrics.confusion_chart_with(&test_options),
+            ),
+            (
+                "roc-test",
+                fitted.model().roc_chart_with(&test_rows, &test_options),
+            ),
             (
                 "cv-comparison",
-                comparison.scores_chart(Metric::Accuracy, "hidden 12", "no hidden layer"),
+                comparison.scores_chart(Metric::Accuracy, &hidden_name, &single_name),
             ),
         ],
     )?);
-    // The summary page embeds every chart, so it reads on its own.
-    let mut html = String::from(
-        "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\"><title>stratanet demo</title></head>\n<body style=\"font-family:sans-serif;max-width:980px;margin:24px auto;color:#222\">\n",
-    );
-    let _ = writeln!(html, "<h1 style=\"font-size:22px\">stratanet demo: sorting turned bushings (synthetic data)</h1>");
-    let _ = writeln!(html, "<p style=\"background:#fff4e0;border-left:4px solid #c77700;padding:8px 12px\"><b>Caution.</b> {}</p>", escape(DEMO_CAUTION));
-    let _ = writeln!(
-        html,
-        "<p>{} rows of invented gauge readings (demo-data/README.md). {} rows were held out as a test set before anything else; cross-validation and the choice of network used the other {} only.</p>",
+    // The summary page is the report page, with the demo's sections; it
+    // embeds every chart, so it reads on its own.
+    let mut page = Page::new("stratanet demo: sorting turned bushings (synthetic data)");
+    page.caution(DEMO_CAUTION);
+    page.paragraph(&format!(
+        "{} rows of invented gauge readings (demo-data/README.md). {} rows were held out as a test set before anything else; cross-validation and the choice of network used the other {} only.",
         data.n_rows(),
         held_out.len(),
         development.n_rows()
+    ));
+    report::table_section(&mut page, &development)?;
+    report::comparison_section(&mut page, &comparison, &hidden_name, &single_name)?;
+    page.paragraph(&format!(
+        "Chosen: {chosen_name}, fitted again on the {} development rows with 4 restarts.",
+        development.n_rows()
+    ));
+    report::fit_sections(&mut page, &development, &fitted, Some("charts"))?;
+    report::holdout_section(&mut page, &fitted, &test_rows, &score)?;
+    let html = page.finish(
+        "",
+        &[format!("Seed {seed}: rerunning `stratanet demo --seed {seed}` reproduces every number and chart byte for byte, on any number of threads.")],
     );
-    html.push_str("<h2 style=\"font-size:18px\">1. Comparing two configurations</h2>");
-    html.push_str(&comparison.to_html());
-    let _ = writeln!(html, "<p>Chosen: {}.</p>", escape(chosen_name));
-    html.push_str("<h2 style=\"font-size:18px\">2. The fitted model</h2>");
-    html.push_str(&fitted.to_html());
-    html.push_str("<h2 style=\"font-size:18px\">3. One look at the held-out test set</h2>");
-    html.push_str(&score.to_html());
-    html.push_str("<h2 style=\"font-size:18px\">4. Charts</h2>");
-    for f in &files {
-        let name = f.file_name().and_then(|n| n.to_str()).unwrap_or_default();
-        let svg = std::fs::read_to_string(f).map_err(|e| Error::io(f, "reading", e))?;
-        let _ = writeln!(html, "<figure style=\"margin:12px 0\">{svg}<figcaption style=\"font-size:12px;color:#555\"><a href=\"charts/{n}\">charts/{n}</a></figcaption></figure>", n = escape(name));
-    }
-    html.push_str(&notes(&[format!("Seed {seed}; rerunning `stratanet demo --seed {seed}` reproduces every number and chart byte for byte.")]));
-    html.push_str("</body></html>\n");
     let summary = out.join("summary.html");
     write_text(&summary, &html)?;
 
@@ -219,15 +224,19 @@ pub(crate) fn demo(out: &Path, seed: u64, progress: &Progress) -> Result<Outcome
     );
     let _ = writeln!(
         text,
-        "  hidden layer of 12    {:.3}  95% [{:.3}, {:.3}]",
+        "  {hidden_name:<20}  {:.3}  95% [{:.3}, {:.3}]",
         a.mean, a.ci_low, a.ci_high
     );
     let _ = writeln!(
         text,
-        "  no hidden layer       {:.3}  95% [{:.3}, {:.3}]",
+        "  {single_name:<20}  {:.3}  95% [{:.3}, {:.3}]",
         b.mean, b.ci_low, b.ci_high
     );
-    let _ = writeln!(text, "  {}", comparison.test.reading);
+    let _ = writeln!(
+        text,
+        "  {}",
+        crate::chart::named_reading(&comparison.test.reading, &hidden_name, &single_name)
+    );
     let _ = writeln!(
         text,
         "chosen: {chosen_name}; held-out accuracy {:.3} (scored once)",

@@ -41,6 +41,7 @@ pub(crate) struct FitJob {
     pub seed: u64,
     pub out: PathBuf,
     pub charts: Option<PathBuf>,
+    pub report: Option<PathBuf>,
     pub costs: Option<CostMatrix>,
 }
 
@@ -70,6 +71,7 @@ pub(crate) struct CvJob {
     pub cv: CvOptions,
     pub seed: u64,
     pub charts: Option<PathBuf>,
+    pub report: Option<PathBuf>,
     pub out_of_fold: Option<PathBuf>,
     pub costs: Option<CostMatrix>,
     pub bins: Binning,
@@ -85,6 +87,7 @@ pub(crate) struct SweepJob {
     pub metric: Option<Metric>,
     pub seed: u64,
     pub out: Option<PathBuf>,
+    pub report: Option<PathBuf>,
 }
 
 pub(crate) struct NestedJob {
@@ -328,9 +331,28 @@ fn fold_options(f: &FoldArgs) -> Result<CvOptions> {
     Ok(cv)
 }
 
+/// A report path: any file name ending in .html or .htm.
+fn report_path(outputs: Outputs, report: &Option<PathBuf>) -> Result<Outputs> {
+    let Some(path) = report else {
+        return Ok(outputs);
+    };
+    let html = path
+        .extension()
+        .and_then(|e| e.to_str())
+        .is_some_and(|e| e.eq_ignore_ascii_case("html") || e.eq_ignore_ascii_case("htm"));
+    if !html {
+        return Err(Error::option(
+            "report",
+            path.display(),
+            "is a web page; give a file name ending in .html",
+        ));
+    }
+    Ok(outputs.file("report", path))
+}
+
 fn fit(a: FitArgs) -> Result<FitJob> {
     let options = fit_options(&a.net)?;
-    let mut outputs = Outputs::default().file("out", &a.out);
+    let mut outputs = report_path(Outputs::default().file("out", &a.out), &a.report)?;
     if let Some(dir) = &a.charts {
         outputs = outputs.folder(
             "charts",
@@ -352,6 +374,7 @@ fn fit(a: FitArgs) -> Result<FitJob> {
         seed: a.net.seed,
         out: a.out,
         charts: a.charts,
+        report: a.report,
         costs,
     })
 }
@@ -379,7 +402,7 @@ fn predict(a: PredictArgs) -> Result<PredictJob> {
 fn cv(a: CvArgs) -> Result<CvJob> {
     let options = fit_options(&a.net)?;
     let cv = fold_options(&a.folds)?;
-    let mut outputs = Outputs::default();
+    let mut outputs = report_path(Outputs::default(), &a.report)?;
     if let Some(dir) = &a.charts {
         outputs = outputs.folder(
             "charts",
@@ -404,6 +427,7 @@ fn cv(a: CvArgs) -> Result<CvJob> {
         cv,
         seed: a.net.seed,
         charts: a.charts,
+        report: a.report,
         out_of_fold: a.out_of_fold,
         costs,
         bins: a.bins,
@@ -468,6 +492,7 @@ fn sweep(a: SweepArgs) -> Result<Job> {
     if let Some(p) = &a.out {
         outputs = outputs.file("out", p);
     }
+    outputs = report_path(outputs, &a.report)?;
     outputs.check(&[&a.data])?;
     let job = SweepJob {
         data: a.data,
@@ -478,6 +503,7 @@ fn sweep(a: SweepArgs) -> Result<Job> {
         metric: a.metric,
         seed: a.net.seed,
         out: a.out,
+        report: a.report,
     };
     Ok(match a.write_plan {
         Some(p) => Job::WritePlan(job, p),

@@ -13,10 +13,12 @@ use super::prepare::{
     PredictJob, StatusJob, SweepJob, TrialJob, TrialOut, Trials,
 };
 use super::progress::Progress;
+use crate::atomic::write_text;
 use crate::data::{Dataset, Target};
 use crate::error::{Error, Message, Result};
 use crate::fit::{fit_checked, FitOptions, CAUTION};
 use crate::model_file;
+use crate::report;
 use crate::rng::{child_seed, seeded_rng};
 use crate::validate::sweep_files::{self, index_list, PlanFile};
 use crate::validate::{
@@ -84,6 +86,10 @@ fn fit(j: FitJob, progress: &Progress) -> Result<Outcome> {
         let filled = fitted.model().filled(&data)?;
         written = charts::fit_charts(&filled, &fitted, dir)?;
     }
+    if let Some(path) = &j.report {
+        let html = report::fit_report(&data, &fitted, footer(j.seed))?;
+        write_text(path, &html)?;
+    }
     let r = fitted.report();
     let model = fitted.model();
     let baseline = fitted.baseline();
@@ -139,6 +145,7 @@ fn fit(j: FitJob, progress: &Progress) -> Result<Outcome> {
         "decision_rule": saved.decision_rule().map(|r| r.describe(model.target_names())),
         "table_fingerprint": model.provenance().table_fingerprint,
         "charts": written,
+        "report": j.report,
         "decisions": flags(data.decisions()),
         "notes": flags(fitted.notes()),
         "warnings": flags(&warnings),
@@ -217,7 +224,17 @@ fn fit(j: FitJob, progress: &Progress) -> Result<Outcome> {
     for c in &written {
         let _ = writeln!(text, "wrote {}", c.display());
     }
+    if let Some(path) = &j.report {
+        let _ = writeln!(text, "wrote the report {}", path.display());
+    }
     Ok(Outcome { json, text })
+}
+
+/// The footer of a report page: the one seed of the run.
+fn footer(seed: u64) -> Vec<String> {
+    vec![format!(
+        "Seed {seed}: the same command with the same seed reproduces every number and chart of this page byte for byte, on any number of threads."
+    )]
 }
 
 fn check(j: CheckJob) -> Result<Outcome> {
@@ -310,11 +327,16 @@ fn cross_validate(j: CvJob, progress: &Progress) -> Result<Outcome> {
     if let Some(dir) = &j.charts {
         written = charts::cv_charts(&data, &result, dir)?;
     }
+    if let Some(path) = &j.report {
+        let html = report::cv_report(&data, &result, footer(j.seed))?;
+        write_text(path, &html)?;
+    }
     let mut json = cv_json(&result);
     json["command"] = json!("cv");
     json["data"] = json!(j.data);
     json["seed"] = json!(j.seed);
     json["charts"] = json!(written);
+    json["report"] = json!(j.report);
     json["decisions"] = json!(flags(data.decisions()));
     let mut warnings = data.warnings().to_vec();
     warnings.extend(result.warnings());
@@ -356,6 +378,9 @@ fn cross_validate(j: CvJob, progress: &Progress) -> Result<Outcome> {
     labelled(&mut text, "warning", &result.warnings());
     for c in &written {
         let _ = writeln!(text, "wrote {}", c.display());
+    }
+    if let Some(path) = &j.report {
+        let _ = writeln!(text, "wrote the report {}", path.display());
     }
     Ok(Outcome { json, text })
 }
@@ -541,6 +566,8 @@ fn sweep_outcome(
     }
     json["best"] = json!(table.rows[0].name);
     json["model"] = json!(best_saved);
+    // A merge writes no report; the key is there so both outputs match.
+    json["report"] = serde_json::Value::Null;
     let optimism = format!(
         "the best configuration's score is optimistic: it was chosen among {} on these same folds; for an honest estimate of the tuned procedure use `stratanet nested`",
         table.rows.len()
@@ -604,21 +631,31 @@ fn sweep_outcome(
 fn sweep(j: SweepJob, progress: &Progress) -> Result<Outcome> {
     let data = j.table.read(&j.data)?;
     let plan = plan_of(&j, &data)?;
+    let result = sweeps::sweep_plan_checked(&data, plan, &progress.observer())?;
+    if let Some(out) = &j.out {
+        result.best.model().save(out)?;
+    }
+    if let Some(path) = &j.report {
+        let html = report::sweep_report(&data, &result, footer(j.seed))?;
+        write_text(path, &html)?;
+    }
     let Sweep {
         table,
         rounds,
         best,
-    } = sweeps::sweep_plan_checked(&data, plan, &progress.observer())?;
-    if let Some(out) = &j.out {
-        best.model().save(out)?;
-    }
-    Ok(sweep_outcome(
-        &table,
-        &rounds,
+    } = &result;
+    let mut outcome = sweep_outcome(
+        table,
+        rounds,
         j.out.as_deref(),
         Some((&data, &j.data)),
         best.warnings(),
-    ))
+    );
+    outcome.json["report"] = json!(j.report);
+    if let Some(path) = &j.report {
+        let _ = writeln!(outcome.text, "wrote the report {}", path.display());
+    }
+    Ok(outcome)
 }
 
 fn nested(j: NestedJob, progress: &Progress) -> Result<Outcome> {

@@ -7,7 +7,7 @@ use crate::chart::Chart;
 use crate::data::{CsvOptions, Dataset};
 use crate::error::Result;
 use crate::fit::{fit_with_seed, FitOptions, Fitted};
-use crate::notebook::{notes, show, warnings};
+use crate::notebook::{notes, show};
 use crate::validate::Scores;
 use std::path::Path;
 
@@ -25,6 +25,8 @@ pub struct Analysis {
     /// A decision map over the first two numeric columns (classifiers with
     /// at least two numeric columns).
     pub decision_map: Option<Chart>,
+    /// The seed given.
+    pub seed: u64,
 }
 
 /// Reads `path`, predicts `target` (dropping the columns in `drop`), fits
@@ -78,35 +80,26 @@ fn analyse(data: Dataset, options: &FitOptions, seed: u64) -> Result<Analysis> {
         validation,
         learning_curves,
         decision_map,
+        seed,
     })
 }
 
 impl Analysis {
-    /// The whole report as one HTML fragment with the charts inline.
+    /// The whole report as one HTML fragment with the charts inline: the
+    /// same sections as `stratanet fit --report` (the table, training,
+    /// validation scores with baselines, what the model learned).
     pub fn to_html(&self) -> String {
-        let mut h = self.data.to_html();
-        h.push_str(&self.fitted.report().to_html());
-        h.push_str(&notes(self.fitted.notes()));
-        h.push_str(&warnings(self.fitted.warnings()));
-        if let Some(v) = &self.validation {
-            h.push_str(&format!(
-                "<p style=\"font-family:sans-serif;font-size:13px\">Scores on the {} validation rows (held out from training, used for early stopping):</p>",
-                self.fitted.split().validation.len()
-            ));
-            h.push_str(&v.to_html());
-        }
-        h.push_str("<div>");
-        h.push_str(self.learning_curves.as_svg());
-        h.push_str("</div>");
-        if let Some(m) = &self.decision_map {
-            h.push_str("<div>");
-            h.push_str(m.as_svg());
-            h.push_str("</div>");
-        }
-        h.push_str(&self.fitted.model().network().to_html());
+        let mut page = super::page::Page::new("Analysis");
+        let built = super::sections::table_section(&mut page, &self.data).and_then(|()| {
+            super::sections::fit_sections(&mut page, &self.data, &self.fitted, None)
+        });
+        let mut h = match built {
+            Ok(()) => page.fragment(),
+            Err(e) => format!("<p>{}</p>", crate::notebook::escape(&e.to_string())),
+        };
         h.push_str(&notes(&[format!(
             "Seed {}: a rerun gives the same numbers and charts.",
-            self.fitted.model().seed()
+            self.seed
         )]));
         h
     }

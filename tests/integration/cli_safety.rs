@@ -75,7 +75,7 @@ fn fit_refuses_its_input_as_the_model_or_a_chart() {
     args.extend(["--out", s(&spelled)]);
     refused(&args, "--out", &table, &before);
     // A chart the folder would receive.
-    let as_chart = dir.join("network.svg");
+    let as_chart = dir.join("weights.svg");
     fs::copy(&table, &as_chart).unwrap();
     let model = dir.join("model.json");
     let mut args = vec!["fit", s(&as_chart)];
@@ -87,7 +87,7 @@ fn fit_refuses_its_input_as_the_model_or_a_chart() {
     let mut args = vec!["fit", s(&table)];
     args.extend(TABLE);
     let charts = dir.join("charts");
-    let clash = charts.join("network.svg");
+    let clash = charts.join("weights.svg");
     fs::create_dir_all(&charts).unwrap();
     args.extend(["--charts", s(&charts), "--out", s(&clash)]);
     refused(&args, "--charts", &table, &before);
