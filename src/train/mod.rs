@@ -12,6 +12,8 @@ mod engine;
 mod gradcheck;
 mod loss;
 mod options;
+#[cfg(test)]
+mod rules_tests;
 
 pub use gradcheck::{check_gradients, GradientCheck};
 pub(crate) use loss::constant_loss;
