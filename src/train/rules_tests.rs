@@ -646,7 +646,7 @@ fn early_stopping_without_validation_rows_is_refused() {
 // f32 against f64: the same run in both precisions. Single precision rounds
 // at about 6e-8 relative (IEEE 754-2008, binary32); over 40 epochs of a
 // small tanh network the training losses agree to 1e-4 relative (a bound
-// chosen with a wide margin; the largest difference seen was below 1e-5).
+// well above that rounding, and far below the effect of a lost update).
 
 #[test]
 fn f32_training_follows_f64() {

@@ -83,18 +83,11 @@ fn first_losses(arithmetic: stratanet::network::Arithmetic) -> Vec<String> {
         .collect()
 }
 
-// The fast mode's pins hold on this project's machines (x86-64 with FMA);
-// its last bits may differ on a CPU without fused multiply-add.
-#[test]
-fn value_stability_of_the_first_losses() {
-    let pinned: [&str; 5] = PINNED;
-    assert_eq!(
-        first_losses(stratanet::network::Arithmetic::Fast),
-        pinned,
-        "the seeded training losses changed"
-    );
-}
-
+// Only the portable mode is pinned: its bits are the same on every machine.
+// The fast mode's bits may differ between CPUs, so it is not pinned; it is
+// checked by value against the portable mode, on products large enough to
+// reach its other kernel, in fast_kernels.rs. (A fast-mode pin on this 3-4-1
+// network ran the same code as the portable one and held the same digits.)
 // The portable mode's pins hold on every machine.
 #[test]
 fn value_stability_of_the_first_losses_in_portable_mode() {
@@ -105,14 +98,6 @@ fn value_stability_of_the_first_losses_in_portable_mode() {
         "the seeded portable training losses changed"
     );
 }
-
-const PINNED: [&str; 5] = [
-    "0.655848473842568",
-    "0.634506237353311",
-    "0.615835567767088",
-    "0.603721280870959",
-    "0.591067205375129",
-];
 
 const PINNED_PORTABLE: [&str; 5] = [
     "0.655848473842568",

@@ -11,6 +11,7 @@ mod csv_errors;
 mod demo_data;
 mod determinism;
 mod diabetes;
+mod fast_kernels;
 mod fuzz_replay;
 mod gradients;
 mod honest;
