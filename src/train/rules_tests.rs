@@ -129,6 +129,89 @@ fn the_batch_gradient_is_the_mean_over_rows() {
     close(bias_of(&net), -0.02, 1e-15, "b");
 }
 
+// The epoch's training loss is the mean over rows of the losses before each
+// update: rows x = 1 and x = 3, y = 0, w = 1, b = 0 have half squared errors
+// 0.5 and 4.5, mean 2.5 (worked by hand), whether in one batch or two.
+#[test]
+fn the_epoch_loss_is_the_mean_over_rows() {
+    for batch in [BatchSize::Full, BatchSize::Rows(2)] {
+        let mut net = linear(&[1.0], 0.0);
+        let x = array![[1.0], [3.0]];
+        let y = array![[0.0], [0.0]];
+        let options = TrainingOptions {
+            batch_size: Some(batch),
+            ..plain(Optimiser::Sgd, 0.01, 1)
+        };
+        let report = train_arrays(
+            &mut net,
+            x.view(),
+            y.view(),
+            None,
+            &options,
+            &mut crate::seeded_rng(1),
+        )
+        .unwrap();
+        assert_eq!(report.final_training_loss, 2.5, "{batch}");
+        assert_eq!(report.training_losses(), vec![2.5]);
+    }
+}
+
+// Divergence is an error naming the epoch: with a rate of 1e200 the first
+// row's update sends w to about -1e200, and the second row's loss overflows
+// to infinity in epoch 1 (one row per update, rows in order).
+#[test]
+fn divergence_names_the_epoch() {
+    let mut net = linear(&[1.0], 0.0);
+    let x = array![[1.0], [1.0]];
+    let y = array![[0.0], [0.0]];
+    let options = TrainingOptions {
+        batch_size: Some(BatchSize::Rows(1)),
+        ..plain(Optimiser::Sgd, 1e200, 3)
+    };
+    let err = train_arrays(
+        &mut net,
+        x.view(),
+        y.view(),
+        None,
+        &options,
+        &mut crate::seeded_rng(1),
+    )
+    .unwrap_err();
+    match err.kind() {
+        ErrorKind::Diverged {
+            epoch,
+            learning_rate,
+            loss,
+        } => {
+            assert_eq!(*epoch, 1);
+            assert_eq!(*learning_rate, 1e200);
+            assert!(loss.is_infinite());
+        }
+        other => panic!("{other:?}"),
+    }
+    // The weights themselves overflow in epoch 2 when the loss of epoch 1
+    // stays finite: one row, rate 1e300, x = 1e10.
+    let mut net = linear(&[1.0], 0.0);
+    let (x, y) = (array![[1e10]], array![[0.0]]);
+    let options = TrainingOptions {
+        batch_size: Some(BatchSize::Rows(1)),
+        ..plain(Optimiser::Sgd, 1e300, 3)
+    };
+    let err = train_arrays(
+        &mut net,
+        x.view(),
+        y.view(),
+        None,
+        &options,
+        &mut crate::seeded_rng(1),
+    )
+    .unwrap_err();
+    assert!(
+        matches!(err.kind(), ErrorKind::Diverged { epoch: 1, .. }),
+        "{err:?}"
+    );
+}
+
 #[test]
 fn biases_stay_put_when_not_trained() {
     let mut net = linear(&[0.5, -0.25], 0.1);

@@ -22,6 +22,7 @@ mod model_files;
 mod nothing_lost;
 mod portable;
 mod properties;
+mod restarts;
 mod support;
 mod sweeps;
 mod tables;
