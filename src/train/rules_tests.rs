@@ -965,3 +965,54 @@ fn option_ranges_are_enforced() {
         ok.validate().unwrap();
     }
 }
+
+// The validation loss is the mean over validation rows of the per-row loss
+// summed over outputs: one input, two outputs with weights (1, 2) and no
+// bias; rows x = 1 and x = 2 with targets 0 give half squared errors
+// (1 + 4) / 2 = 2.5 and (4 + 16) / 2 = 10, mean 6.25 (worked by hand). The
+// training rows are zeros with target 0, so nothing moves.
+#[test]
+fn the_validation_loss_is_the_mean_over_rows() {
+    let mut net = Network::from_layers(
+        vec![Layer {
+            weights: array![[1.0, 2.0]],
+            biases: Array1::zeros(2),
+        }],
+        Activation::Identity,
+        Head::Identity,
+    )
+    .unwrap();
+    let (x, y) = (Array2::zeros((2, 1)), Array2::zeros((2, 2)));
+    let (vx, vy) = (array![[1.0], [2.0]], Array2::zeros((2, 2)));
+    let options = TrainingOptions {
+        early_stopping: patience(3),
+        ..plain(Optimiser::Sgd, 0.1, 2)
+    };
+    let report = train_arrays(
+        &mut net,
+        x.view(),
+        y.view(),
+        Some((vx.view(), vy.view())),
+        &options,
+        &mut crate::seeded_rng(1),
+    )
+    .unwrap();
+    assert_eq!(report.validation_losses(), vec![6.25, 6.25]);
+    assert_eq!(report.best_validation_loss, Some(6.25));
+    assert_eq!(report.best_epoch, 1);
+    // A validation loss that overflows is divergence, in the epoch it happens.
+    let (vx, vy) = (array![[1e200], [0.0]], Array2::zeros((2, 2)));
+    let err = train_arrays(
+        &mut net,
+        x.view(),
+        y.view(),
+        Some((vx.view(), vy.view())),
+        &options,
+        &mut crate::seeded_rng(1),
+    )
+    .unwrap_err();
+    assert!(
+        matches!(err.kind(), ErrorKind::Diverged { epoch: 1, .. }),
+        "{err:?}"
+    );
+}
