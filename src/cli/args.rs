@@ -4,9 +4,10 @@
 //! another flag is an `Option` (left out means "the library decides").
 
 use crate::data::{DecimalMark, Delimiter, Missing, Scaling, Task};
-use crate::fit::ClassWeights;
+use crate::fit::{Calibration, ClassWeights};
 use crate::network::{Activation, Arithmetic, Init, Precision};
 use crate::train::{BatchSize, Loss, Optimiser, Schedule};
+use crate::validate::metrics::Binning;
 use crate::validate::Metric;
 use clap::{Args, Parser, Subcommand};
 use std::path::PathBuf;
@@ -159,6 +160,18 @@ pub(crate) struct NetArgs {
     /// Class weights in the loss: none, balanced (n / (k n_c)), or CLASS=W,CLASS=W [none].
     #[arg(long, value_name = "WEIGHTS", value_parser = parsed::<ClassWeights>)]
     pub class_weights: Option<ClassWeights>,
+    /// Calibrate a classifier's probabilities on the validation rows: none or temperature [none].
+    #[arg(long, value_name = "none|temperature", value_parser = parsed::<Calibration>)]
+    pub calibration: Option<Calibration>,
+    /// Two classes: choose the decision threshold on the validation rows so that at least this share of the positive rows is found.
+    #[arg(long, value_name = "SHARE", conflicts_with = "target_precision")]
+    pub target_recall: Option<f64>,
+    /// Two classes: choose the decision threshold on the validation rows so that at least this share of the rows called positive is right.
+    #[arg(long, value_name = "SHARE")]
+    pub target_precision: Option<f64>,
+    /// The class a target recall or precision refers to [the second of the sorted classes, said in a note].
+    #[arg(long, value_name = "CLASS")]
+    pub positive_class: Option<String>,
     /// Float type: f64 or f32 [f64].
     #[arg(long, value_name = "f64|f32", value_parser = parsed::<Precision>)]
     pub precision: Option<Precision>,
@@ -332,6 +345,9 @@ pub(crate) struct FitArgs {
     /// Write the charts (SVG) into this folder.
     #[arg(long, value_name = "DIR")]
     pub charts: Option<PathBuf>,
+    /// A cost matrix CSV (a header of true classes, one line per decision): the model decides by the least expected cost, and predict writes each row's decision and its expected cost.
+    #[arg(long, value_name = "PATH", conflicts_with_all = ["target_recall", "target_precision"])]
+    pub costs: Option<PathBuf>,
     #[command(flatten)]
     pub output: OutputArgs,
 }
@@ -416,6 +432,15 @@ pub(crate) struct CvArgs {
     /// Write the charts (SVG) into this folder.
     #[arg(long, value_name = "DIR")]
     pub charts: Option<PathBuf>,
+    /// Write every row's out-of-fold prediction (one line per row and repeat, with the table's ID columns) to this CSV file.
+    #[arg(long, value_name = "PATH")]
+    pub out_of_fold: Option<PathBuf>,
+    /// A cost matrix CSV (a header of true classes, one line per decision): report the cost per row of the least-expected-cost decisions on the held-out rows.
+    #[arg(long, value_name = "PATH")]
+    pub costs: Option<PathBuf>,
+    /// How calibration bins the held-out probabilities: count:B (equal rows per bin) or width:B (equal widths) [count:10].
+    #[arg(long, value_name = "RULE", value_parser = parsed::<Binning>, default_value = "count:10")]
+    pub bins: Binning,
     #[command(flatten)]
     pub output: OutputArgs,
 }

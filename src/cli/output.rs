@@ -37,51 +37,107 @@ pub(crate) fn scores_text(scores: &Scores, out: &mut String) {
     }
 }
 
+/// A resampled test against the baseline as JSON (`null` with one fold).
+fn test_json(t: Option<&crate::validate::ResampledTTest>) -> Value {
+    t.map_or(Value::Null, |t| {
+        json!({
+            "mean_difference": t.mean_difference,
+            "t": t.t,
+            "degrees_of_freedom": t.degrees_of_freedom,
+            "p_value": t.p_value,
+            "undefined": t.undefined,
+            "reading": t.reading,
+        })
+    })
+}
+
+fn interval_json(s: &crate::validate::Summary, values: &[f64]) -> Value {
+    json!({
+        "folds": values,
+        "mean": s.mean,
+        "std_dev": s.std_dev,
+        "ci_low": s.ci_low,
+        "ci_high": s.ci_high,
+    })
+}
+
+/// A cross-validation's scores: each metric names the rows it was computed
+/// on, with the baseline's score on the same rows beside it and the
+/// corrected test between them.
 pub(crate) fn cv_json(cv: &CrossValidation) -> Value {
+    let rows = cv.scored_rows();
     let mut metrics = Map::new();
     for s in &cv.summary {
-        metrics.insert(
-            s.metric.name().to_string(),
-            json!({
-                "folds": s.values,
-                "mean": s.summary.mean,
-                "std_dev": s.summary.std_dev,
-                "ci_low": s.summary.ci_low,
-                "ci_high": s.summary.ci_high,
-            }),
-        );
+        let mut m = interval_json(&s.summary, &s.values);
+        m["scored_rows"] = json!(rows.name());
+        m["baseline"] = interval_json(&s.baseline, &s.baseline_values);
+        m["against_baseline"] = test_json(s.against_baseline.as_ref());
+        metrics.insert(s.metric.name().to_string(), m);
     }
     json!({
         "folds": cv.cv.folds,
         "repeats": cv.cv.repeats,
         "rows": cv.n_rows,
+        "scored_rows": rows.name(),
+        "scored_rows_meaning": rows.explain(),
+        "baseline": baseline_words(cv),
         "metrics": metrics,
         "notes": cv.notes(),
     })
 }
 
+/// What the baseline is, in words.
+fn baseline_words(cv: &CrossValidation) -> &'static str {
+    if cv.class_names.is_empty() {
+        "each fold's training mean predicted for every held-out row"
+    } else {
+        "each fold's training class shares predicted for every held-out row (its accuracy is the majority class's)"
+    }
+}
+
 pub(crate) fn cv_text(cv: &CrossValidation, out: &mut String) {
+    let rows = cv.scored_rows();
+    let _ = writeln!(out, "  scored on {}", rows.explain());
+    let _ = writeln!(out, "  baseline: {}", baseline_words(cv));
     let _ = writeln!(
         out,
-        "  {:<26} {:>8} {:>8}   95% interval ({} folds, corrected for shared training rows)",
-        "metric",
-        "mean",
-        "sd",
-        cv.folds.len()
+        "  {:<26} {:>8} {:>8}   {:<18} {:>8}  {:>8}",
+        "metric", "mean", "sd", "95% interval", "baseline", "p vs base"
     );
     for s in &cv.summary {
+        let p = s
+            .against_baseline
+            .as_ref()
+            .filter(|t| t.undefined.is_none())
+            .map_or("-".to_string(), |t| format_p(t.p_value));
         let _ = writeln!(
             out,
-            "  {:<26} {:>8.4} {:>8.4}   [{:.4}, {:.4}]",
+            "  {:<26} {:>8.4} {:>8.4}   [{:.4}, {:.4}] {:>8.4}  {:>8}",
             s.metric.name(),
             s.summary.mean,
             s.summary.std_dev,
             s.summary.ci_low,
-            s.summary.ci_high
+            s.summary.ci_high,
+            s.baseline.mean,
+            p
         );
     }
+    let _ = writeln!(
+        out,
+        "  (intervals: {} fold scores, corrected for shared training rows; p: corrected resampled t-test of model against baseline on the same folds)",
+        cv.folds.len()
+    );
     for note in cv.notes() {
         let _ = writeln!(out, "  note: {note}");
+    }
+}
+
+/// A p-value for a table cell: four decimals, or `<0.0001`.
+fn format_p(p: f64) -> String {
+    if p < 1e-4 {
+        "<0.0001".to_string()
+    } else {
+        format!("{p:.4}")
     }
 }
 
@@ -272,4 +328,106 @@ pub(crate) fn summary_text(s: &crate::data::TableSummary, out: &mut String) {
     }
     labelled(out, "decided", &s.decisions);
     labelled(out, "warning", &s.warnings);
+}
+
+/// Calibration of the pooled out-of-fold probabilities: the reliability
+/// bins with the expected and maximum calibration errors, and the Brier
+/// score's partition over the same bins.
+pub(crate) fn calibration_json(
+    r: &crate::validate::metrics::Reliability,
+    b: &crate::validate::metrics::BrierPartition,
+) -> Value {
+    json!({
+        "scored_rows": crate::data::ScoredRows::OutOfFold.name(),
+        "forecast": r.forecast.describe().0,
+        "binning": r.binning.to_string(),
+        "rows": r.rows,
+        "expected_calibration_error": r.expected_error,
+        "maximum_calibration_error": r.maximum_error,
+        "bins": r.bins.iter().map(|bin| json!({
+            "lower": bin.lower,
+            "upper": bin.upper,
+            "rows": bin.rows,
+            "mean_predicted": bin.mean_predicted,
+            "observed": bin.observed,
+        })).collect::<Vec<_>>(),
+        "brier": {
+            "score": b.brier,
+            "reliability": b.reliability,
+            "resolution": b.resolution,
+            "uncertainty": b.uncertainty,
+            "within_bin_variance": b.within_variance,
+            "within_bin_covariance": b.within_covariance,
+        },
+    })
+}
+
+pub(crate) fn calibration_text(
+    r: &crate::validate::metrics::Reliability,
+    b: &crate::validate::metrics::BrierPartition,
+    out: &mut String,
+) {
+    let _ = writeln!(
+        out,
+        "calibration of the out-of-fold probabilities ({} predictions pooled over folds and repeats; {}, bins {}):",
+        r.rows,
+        r.forecast.describe().0,
+        r.binning
+    );
+    let _ = writeln!(
+        out,
+        "  expected calibration error {:.4}, maximum {:.4} (0 = predicted shares match observed shares)",
+        r.expected_error, r.maximum_error
+    );
+    let _ = writeln!(
+        out,
+        "  Brier {:.4} = reliability {:.4} - resolution {:.4} + uncertainty {:.4} + within-bin terms {:.4} (Murphy 1973; Stephenson et al. 2008)",
+        b.brier,
+        b.reliability,
+        b.resolution,
+        b.uncertainty,
+        b.within_variance - 2.0 * b.within_covariance
+    );
+}
+
+/// Costs of least-expected-cost decisions on the held-out rows.
+pub(crate) fn costs_json(c: &crate::validate::CostSummary) -> Value {
+    json!({
+        "scored_rows": crate::data::ScoredRows::OutOfFold.name(),
+        "decisions": c.matrix.decisions(),
+        "classes": c.matrix.classes(),
+        "costs": c.matrix.costs(),
+        "cost_per_row": interval_json(&c.summary, &c.fold_costs),
+        "baseline": interval_json(&c.baseline, &c.baseline_costs),
+        "baseline_decisions": c.baseline_decisions,
+        "against_baseline": test_json(c.against_baseline.as_ref()),
+        "decision_counts": c.decision_counts,
+    })
+}
+
+pub(crate) fn costs_text(c: &crate::validate::CostSummary, out: &mut String) {
+    let _ = writeln!(
+        out,
+        "costs of the least-expected-cost decisions on the out-of-fold rows:"
+    );
+    let _ = writeln!(
+        out,
+        "  cost per row {:.4} [{:.4}, {:.4}]; baseline (the best constant decision of each fold's training rows) {:.4}{}",
+        c.summary.mean,
+        c.summary.ci_low,
+        c.summary.ci_high,
+        c.baseline.mean,
+        c.against_baseline
+            .as_ref()
+            .filter(|t| t.undefined.is_none())
+            .map_or(String::new(), |t| format!("; p vs baseline {}", format_p(t.p_value)))
+    );
+    let counts: Vec<String> = c
+        .matrix
+        .decisions()
+        .iter()
+        .zip(&c.decision_counts)
+        .map(|(d, n)| format!("{d} {n}"))
+        .collect();
+    let _ = writeln!(out, "  decisions made: {}", counts.join(", "));
 }

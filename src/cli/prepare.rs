@@ -10,9 +10,10 @@ use super::charts;
 use super::paths::Outputs;
 use crate::data::CsvOptions;
 use crate::error::{Error, Result};
-use crate::fit::FitOptions;
+use crate::fit::{CostMatrix, FitOptions};
 use crate::model_file::{FeatureOptions, TargetColumn};
 use crate::train::EarlyStopping;
+use crate::validate::metrics::Binning;
 use crate::validate::{Candidates, CvOptions, Grid, Halving, Metric, RandomSearch, Search};
 use std::path::PathBuf;
 
@@ -39,6 +40,7 @@ pub(crate) struct FitJob {
     pub seed: u64,
     pub out: PathBuf,
     pub charts: Option<PathBuf>,
+    pub costs: Option<CostMatrix>,
 }
 
 pub(crate) struct CheckJob {
@@ -67,6 +69,9 @@ pub(crate) struct CvJob {
     pub cv: CvOptions,
     pub seed: u64,
     pub charts: Option<PathBuf>,
+    pub out_of_fold: Option<PathBuf>,
+    pub costs: Option<CostMatrix>,
+    pub bins: Binning,
 }
 
 pub(crate) struct SweepJob {
@@ -231,6 +236,15 @@ fn fit_options(n: &NetArgs) -> Result<FitOptions> {
     if let Some(s) = n.target_scaling {
         o.target_scaling = s;
     }
+    if let Some(c) = n.calibration {
+        o.calibration = c;
+    }
+    o.threshold_target = match (n.target_recall, n.target_precision) {
+        (Some(r), _) => Some(crate::fit::ThresholdTarget::Recall(r)),
+        (None, Some(q)) => Some(crate::fit::ThresholdTarget::Precision(q)),
+        (None, None) => None,
+    };
+    o.positive_class = n.positive_class.clone();
     if let Some(w) = &n.class_weights {
         o.class_weights = w.clone();
     }
@@ -316,7 +330,10 @@ fn fit(a: FitArgs) -> Result<FitJob> {
                 .collect(),
         );
     }
-    outputs.check(&[&a.data])?;
+    let mut inputs: Vec<&std::path::Path> = vec![&a.data];
+    inputs.extend(a.costs.as_deref());
+    outputs.check(&inputs)?;
+    let costs = a.costs.as_deref().map(CostMatrix::read).transpose()?;
     Ok(FitJob {
         data: a.data,
         table: table(a.table)?,
@@ -324,6 +341,7 @@ fn fit(a: FitArgs) -> Result<FitJob> {
         seed: a.net.seed,
         out: a.out,
         charts: a.charts,
+        costs,
     })
 }
 
@@ -350,18 +368,24 @@ fn predict(a: PredictArgs) -> Result<PredictJob> {
 fn cv(a: CvArgs) -> Result<CvJob> {
     let options = fit_options(&a.net)?;
     let cv = fold_options(&a.folds)?;
+    let mut outputs = Outputs::default();
     if let Some(dir) = &a.charts {
-        Outputs::default()
-            .folder(
-                "charts",
-                dir,
-                charts::CV_CHART_FILES
-                    .iter()
-                    .map(|s| format!("{s}.svg"))
-                    .collect(),
-            )
-            .check(&[&a.data])?;
+        outputs = outputs.folder(
+            "charts",
+            dir,
+            charts::CV_CHART_FILES
+                .iter()
+                .map(|s| format!("{s}.svg"))
+                .collect(),
+        );
     }
+    if let Some(path) = &a.out_of_fold {
+        outputs = outputs.file("out_of_fold", path);
+    }
+    let mut inputs: Vec<&std::path::Path> = vec![&a.data];
+    inputs.extend(a.costs.as_deref());
+    outputs.check(&inputs)?;
+    let costs = a.costs.as_deref().map(CostMatrix::read).transpose()?;
     Ok(CvJob {
         data: a.data,
         table: table(a.table)?,
@@ -369,6 +393,9 @@ fn cv(a: CvArgs) -> Result<CvJob> {
         cv,
         seed: a.net.seed,
         charts: a.charts,
+        out_of_fold: a.out_of_fold,
+        costs,
+        bins: a.bins,
     })
 }
 

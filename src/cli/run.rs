@@ -4,8 +4,9 @@
 
 use super::charts;
 use super::output::{
-    cv_json, cv_text, flags, labelled, loss_words, read_text, scores_json, scores_text, shown,
-    summary_json, summary_text, table_json, table_text, Outcome,
+    calibration_json, calibration_text, costs_json, costs_text, cv_json, cv_text, flags, labelled,
+    loss_words, read_text, scores_json, scores_text, shown, summary_json, summary_text, table_json,
+    table_text, Outcome,
 };
 use super::prepare::{
     CheckJob, CvJob, DemoJob, FitJob, InspectJob, Job, MergeJob, NestedJob, PredictJob, StatusJob,
@@ -18,11 +19,14 @@ use crate::fit::{fit_checked, FitOptions, CAUTION};
 use crate::model_file;
 use crate::rng::{child_seed, seeded_rng};
 use crate::validate::sweep_files::{self, index_list, PlanFile};
-use crate::validate::{cv, sweep as sweeps, Metric, Scores, Sweep, SweepPlan, SweepTable};
+use crate::validate::{
+    cv, sweep as sweeps, CrossValidation, Metric, Scores, Sweep, SweepPlan, SweepTable,
+};
 use rayon::prelude::*;
 use serde_json::json;
 use std::borrow::Cow;
 use std::fmt::Write as _;
+use std::path::Path;
 
 /// Runs a prepared job.
 ///
@@ -69,7 +73,11 @@ fn fit(j: FitJob, progress: &Progress) -> Result<Outcome> {
     // As `fit` with the generator seeded from `--seed`.
     let seed = child_seed(&mut seeded_rng(j.seed));
     let fitted = fit_checked(Cow::Borrowed(&data), &options, seed, None)?;
-    fitted.model().save(&j.out)?;
+    let saved = match &j.costs {
+        Some(c) => Cow::Owned(fitted.model().clone().with_costs(c)?),
+        None => Cow::Borrowed(fitted.model()),
+    };
+    saved.save(&j.out)?;
     let mut written = Vec::new();
     if let Some(dir) = &j.charts {
         let filled = fitted.model().filled(&data)?;
@@ -77,9 +85,8 @@ fn fit(j: FitJob, progress: &Progress) -> Result<Outcome> {
     }
     let r = fitted.report();
     let model = fitted.model();
-    let last = r.history.last();
     let baseline = fitted.baseline();
-    let validation = if fitted.split().validation.is_empty() || model.is_classifier() {
+    let validation = if fitted.split().validation.is_empty() {
         None
     } else {
         Scores::of(model, &data.select(&fitted.split().validation))
@@ -111,7 +118,7 @@ fn fit(j: FitJob, progress: &Progress) -> Result<Outcome> {
         "stopped_early": r.stopped_early,
         "best_validation_loss": r.best_validation_loss,
         "final_training_loss": r.final_training_loss,
-        "validation_accuracy": last.and_then(|e| e.validation_accuracy),
+        "validation_accuracy": validation.as_ref().and_then(|s| s.value(crate::validate::Metric::Accuracy).ok()),
         "validation_r_squared": r_squared,
         "baseline": {
             "description": baseline.description,
@@ -119,6 +126,16 @@ fn fit(j: FitJob, progress: &Progress) -> Result<Outcome> {
             "validation_loss": baseline.validation_loss,
         },
         "seed": j.seed,
+        "training_rows": fitted.split().train.len(),
+        "validation_rows": fitted.split().validation.len(),
+        "validation_scored_rows": crate::data::ScoredRows::Validation.name(),
+        "temperature": model.temperature().map(|t| json!({
+            "value": t.value,
+            "rows": t.rows,
+            "log_loss_before": t.log_loss_before,
+            "log_loss_after": t.log_loss_after,
+        })),
+        "decision_rule": saved.decision_rule().map(|r| r.describe(model.target_names())),
         "table_fingerprint": model.provenance().table_fingerprint,
         "charts": written,
         "decisions": flags(data.decisions()),
@@ -127,12 +144,18 @@ fn fit(j: FitJob, progress: &Progress) -> Result<Outcome> {
     });
     let mut text = String::new();
     read_text(&data, &j.data, &mut text);
+    let (trained, held) = (fitted.split().train.len(), fitted.split().validation.len());
     let _ = writeln!(
         text,
-        "fitted {:?} on {} rows of {}",
+        "fitted {:?} on {} rows of {}: {trained} training rows{}",
         model.network().sizes(),
         data.n_rows(),
-        j.data.display()
+        j.data.display(),
+        if held == 0 {
+            String::new()
+        } else {
+            format!(", {held} validation rows (they chose the stopping epoch and the network kept, so their scores are mildly optimistic)")
+        }
     );
     let _ = writeln!(text, "  loss: {}", loss_words(r.loss, scaled));
     let _ = writeln!(
@@ -168,8 +191,18 @@ fn fit(j: FitJob, progress: &Progress) -> Result<Outcome> {
             }
         }
     }
-    if let Some(a) = last.and_then(|e| e.validation_accuracy) {
-        let _ = writeln!(text, "  validation accuracy {a:.4}");
+    if let Some(a) = validation
+        .as_ref()
+        .and_then(|s| s.value(crate::validate::Metric::Accuracy).ok())
+    {
+        let _ = writeln!(
+            text,
+            "  validation accuracy {a:.4} (the kept network on the {held} validation rows)"
+        );
+    }
+    // A threshold is in the fit's notes; costs were attached here.
+    if let Some(rule @ crate::fit::DecisionRule::Costs(_)) = saved.decision_rule() {
+        let _ = writeln!(text, "  decides by {}", rule.describe(model.target_names()));
     }
     if let Some(r2) = r_squared {
         let _ = writeln!(
@@ -298,12 +331,99 @@ fn cross_validate(j: CvJob, progress: &Progress) -> Result<Outcome> {
         j.data.display()
     );
     cv_text(&result, &mut text);
+    if data.labels().is_some() {
+        let r = result.reliability(&data, j.bins)?;
+        let b = result.brier_partition(&data, j.bins)?;
+        json["calibration"] = calibration_json(&r, &b);
+        calibration_text(&r, &b, &mut text);
+    }
+    if let Some(costs) = &j.costs {
+        let c = result.costs(&data, costs)?;
+        json["costs"] = costs_json(&c);
+        costs_text(&c, &mut text);
+    }
+    if let Some(path) = &j.out_of_fold {
+        let rows = write_out_of_fold(&data, &result, path)?;
+        json["out_of_fold"] = json!({"path": path, "lines": rows});
+        let _ = writeln!(
+            text,
+            "wrote {rows} out-of-fold predictions (every row once per repeat) to {}",
+            path.display()
+        );
+    }
     labelled(&mut text, "note", &result.fit_notes());
     labelled(&mut text, "warning", &result.warnings());
     for c in &written {
         let _ = writeln!(text, "wrote {}", c.display());
     }
     Ok(Outcome { json, text })
+}
+
+/// Writes every repeat's out-of-fold predictions as CSV: the row of the
+/// table as read (from 1), the table's ID columns, the repeat and fold
+/// (from 1), the true value, then the prediction (class and class
+/// probabilities, or values). Returns the number of prediction lines.
+fn write_out_of_fold(data: &Dataset, cv: &CrossValidation, path: &Path) -> Result<usize> {
+    let mut w = csv::Writer::from_writer(Vec::new());
+    let io = |e: csv::Error| Error::csv(path, e);
+    let mut header = vec!["table_row".to_string()];
+    if let Some(ids) = &data.ids {
+        header.extend(ids.names().iter().cloned());
+    }
+    header.extend(["repeat".into(), "fold".into()]);
+    let names = data.target.names();
+    match data.labels() {
+        Some(_) => {
+            header.push(format!("true_{}", data.target_name));
+            header.push("predicted".into());
+            header.extend(names.iter().map(|c| format!("p_{c}")));
+        }
+        None => {
+            header.extend(names.iter().map(|c| format!("true_{c}")));
+            header.extend(names.iter().map(|c| format!("predicted_{c}")));
+        }
+    }
+    w.write_record(&header).map_err(io)?;
+    let k = cv.cv.folds;
+    let mut lines = 0;
+    for repeat in 0..cv.repeats() {
+        let oof = cv.out_of_fold(repeat)?;
+        for row in 0..data.n_rows() {
+            let mut rec = vec![(row + 1).to_string()];
+            if let Some(ids) = &data.ids {
+                rec.extend(ids.row(row).iter().cloned());
+            }
+            rec.push((repeat + 1).to_string());
+            rec.push((oof.fold_of_row[row] - repeat * k + 1).to_string());
+            let p = oof.predictions.row(row);
+            match (data.labels(), &data.target) {
+                (Some(labels), _) => {
+                    rec.push(names[labels[row]].clone());
+                    let best = p
+                        .iter()
+                        .enumerate()
+                        .fold(0, |b, (i, v)| if *v > p[b] { i } else { b });
+                    rec.push(names[best].clone());
+                    rec.extend(p.iter().map(|v| format!("{v}")));
+                }
+                (None, Target::Values { values, .. }) => {
+                    rec.extend(values.row(row).iter().map(|v| format!("{v}")));
+                    rec.extend(p.iter().map(|v| format!("{v}")));
+                }
+                (None, Target::Classes { .. }) => unreachable!("classes have labels"),
+            }
+            w.write_record(&rec).map_err(io)?;
+            lines += 1;
+        }
+    }
+    let bytes = w
+        .into_inner()
+        .map_err(|e| Error::io(path, "writing", e.into_error()))?;
+    crate::atomic::write_text(
+        path,
+        std::str::from_utf8(&bytes).expect("CSV of UTF-8 text"),
+    )?;
+    Ok(lines)
 }
 
 /// The sorting metric: the one asked for, else accuracy for classes and

@@ -550,6 +550,117 @@ pub fn choose_threshold(
     })
 }
 
+/// How a model turns its probabilities into decisions (kept in the model
+/// file and applied by [`Model::decide`](super::Model::decide)).
+#[derive(Clone, Debug, PartialEq)]
+pub enum DecisionRule {
+    /// The decision with the least expected cost (Elkan 2001); the matrix's
+    /// columns are the model's classes in order.
+    Costs(CostMatrix),
+    /// Two classes: decide `positive` when its probability is at least the
+    /// threshold, chosen on the fit's validation rows.
+    Threshold {
+        /// The positive class (index into the model's classes).
+        positive: usize,
+        /// The threshold and what it reached on the validation rows.
+        chosen: ChosenThreshold,
+    },
+}
+
+/// The decisions a model takes for some rows.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Decisions {
+    /// The decisions' names (a cost matrix's decisions, or the classes).
+    pub names: Vec<String>,
+    /// Each row's decision (index into `names`).
+    pub chosen: Vec<usize>,
+    /// Each row's expected cost of its decision (cost matrices only).
+    pub expected_cost: Option<Vec<f64>>,
+}
+
+impl DecisionRule {
+    /// The decisions for rows with class probabilities `p` (one column per
+    /// class, the model's order); `classes` names them.
+    ///
+    /// # Errors
+    /// A probability table of the wrong width.
+    pub fn decide(&self, p: ArrayView2<'_, f64>, classes: &[String]) -> Result<Decisions> {
+        match self {
+            DecisionRule::Costs(m) => {
+                let costs = m.expected_costs(p)?;
+                let chosen = m.decide(p)?;
+                let expected = chosen
+                    .iter()
+                    .enumerate()
+                    .map(|(row, &d)| costs[[row, d]])
+                    .collect();
+                Ok(Decisions {
+                    names: m.decisions().to_vec(),
+                    chosen,
+                    expected_cost: Some(expected),
+                })
+            }
+            DecisionRule::Threshold { positive, chosen } => {
+                if p.ncols() != 2 || *positive > 1 {
+                    return Err(Error::shape(
+                        "probabilities for a threshold",
+                        (p.nrows(), 2),
+                        p.dim(),
+                    ));
+                }
+                let negative = 1 - positive;
+                Ok(Decisions {
+                    names: classes.to_vec(),
+                    chosen: p
+                        .rows()
+                        .into_iter()
+                        .map(|r| {
+                            if r[*positive] >= chosen.threshold {
+                                *positive
+                            } else {
+                                negative
+                            }
+                        })
+                        .collect(),
+                    expected_cost: None,
+                })
+            }
+        }
+    }
+}
+
+impl DecisionRule {
+    /// The rule in words, naming the positive class from `classes`.
+    pub fn describe(&self, classes: &[String]) -> String {
+        match self {
+            DecisionRule::Threshold { positive, .. } => {
+                let name = classes.get(*positive).map_or("?", String::as_str);
+                self.to_string()
+                    .replacen("the positive class", &format!("\"{name}\""), 1)
+            }
+            DecisionRule::Costs(_) => self.to_string(),
+        }
+    }
+}
+
+impl fmt::Display for DecisionRule {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            DecisionRule::Costs(m) => write!(
+                f,
+                "the least expected cost over {} decisions ({})",
+                m.decisions().len(),
+                m.decisions().join(", ")
+            ),
+            DecisionRule::Threshold { chosen, .. } => write!(
+                f,
+                "a threshold: the positive class when its probability is at least {:.6}, else the other (chosen for {} on {} validation rows: recall {:.4}, precision {:.4})",
+                chosen.threshold, chosen.target, chosen.rows, chosen.recall, chosen.precision
+            ),
+        }
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

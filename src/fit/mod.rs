@@ -32,19 +32,20 @@
 //!    [`Fitted::warnings`] and the model's provenance.
 
 mod baseline;
-mod decision;
+pub mod decision;
 mod model;
 mod options;
 mod provenance;
-mod temperature;
+pub mod temperature;
 
 pub use baseline::Baseline;
 pub use decision::{
-    choose_threshold, ChosenThreshold, CostMatrix, ThresholdTarget, MAX_COST_ENTRIES,
+    choose_threshold, ChosenThreshold, CostMatrix, DecisionRule, Decisions, ThresholdTarget,
+    MAX_COST_ENTRIES,
 };
 pub use model::Model;
 pub(crate) use model::CAUTION;
-pub use options::{ClassWeights, FitOptions};
+pub use options::{Calibration, ClassWeights, FitOptions};
 pub use provenance::Provenance;
 pub use temperature::{fit_temperature, probabilities_at, Temperature, TEMPERATURE_BOUNDS};
 
@@ -428,6 +429,13 @@ pub(crate) fn fit_checked(
     }
     let restarts: Vec<TrainingReport> = runs.iter().map(|(_, r)| r.clone()).collect();
     let (network, report) = runs.into_iter().nth(chosen).expect("at least one restart");
+    let (temperature, decision) = choose_on_validation_rows(
+        &network,
+        validation_part.as_ref(),
+        options,
+        &target_names,
+        &mut notes,
+    )?;
     let warnings = fit_warnings(&report, &baseline, options);
     let model = Model {
         network,
@@ -459,6 +467,8 @@ pub(crate) fn fit_checked(
             baseline_validation_loss: baseline.validation_loss,
             warnings: warnings.iter().map(ToString::to_string).collect(),
         },
+        temperature,
+        decision,
     };
     Ok(Fitted {
         model,
@@ -470,6 +480,117 @@ pub(crate) fn fit_checked(
         notes,
         warnings,
     })
+}
+
+/// The temperature ([`FitOptions::calibration`]) and the threshold
+/// ([`FitOptions::threshold_target`]) fitted on the validation rows
+/// `validation` (scaled) of the kept network, each with a note.
+fn choose_on_validation_rows(
+    network: &Network,
+    validation: Option<&Dataset>,
+    options: &FitOptions,
+    classes: &[String],
+    notes: &mut Vec<Message>,
+) -> Result<(Option<Temperature>, Option<DecisionRule>)> {
+    let calibrate = options.calibration == Calibration::Temperature;
+    if !calibrate && options.threshold_target.is_none() {
+        return Ok((None, None));
+    }
+    let what = if calibrate {
+        crate::error::opt_is("calibration", "temperature")
+    } else {
+        "a threshold target".to_string()
+    };
+    let Some(v) = validation else {
+        return Err(crate::Error::option(
+            "validation_share",
+            options.validation_share_or_default(),
+            format!(
+                "{what} is fitted on validation rows, and this fit has none (a small table switches early stopping and its validation rows off); set {} above 0",
+                opt("validation_share")
+            ),
+        ));
+    };
+    let Some(labels) = v.labels() else {
+        return Err(crate::Error::input(
+            v.source(),
+            format!("{what} is for classifiers; the target holds numbers"),
+        ));
+    };
+    let head = network.head();
+    let sums = network.output_sums(v.x())?;
+    let temperature = if calibrate {
+        let t = fit_temperature(sums.view(), labels, head)?;
+        notes.push(Message::new(format!(
+            "temperature scaling: T = {:.4} fitted on the {} validation rows (their log-loss {:.4} at T = 1, {:.4} at T){}",
+            t.value,
+            t.rows,
+            t.log_loss_before,
+            t.log_loss_after,
+            t.note.as_deref().map_or(String::new(), |n| format!("; {n}"))
+        )));
+        Some(t)
+    } else {
+        None
+    };
+    let Some(target) = options.threshold_target else {
+        return Ok((temperature, None));
+    };
+    let flag = match target {
+        ThresholdTarget::Recall(_) => "target_recall",
+        ThresholdTarget::Precision(_) => "target_precision",
+    };
+    if classes.len() != 2 {
+        return Err(crate::Error::option(
+            flag,
+            match target {
+                ThresholdTarget::Recall(v) | ThresholdTarget::Precision(v) => v,
+            },
+            format!(
+                "a threshold is for two classes; this target has {} ({}): use {} for more classes",
+                classes.len(),
+                classes.join(", "),
+                opt("costs")
+            ),
+        ));
+    }
+    let positive = match &options.positive_class {
+        Some(name) => classes.iter().position(|c| c == name).ok_or_else(|| {
+            crate::Error::option(
+                "positive_class",
+                name,
+                format!(
+                    "is not a class of the target; give one of {}",
+                    classes.join(", ")
+                ),
+            )
+        })?,
+        None => {
+            notes.push(Message::new(format!(
+                "the positive class for {} is \"{}\", the second of the sorted classes ({}); set {} to choose",
+                opt(flag),
+                classes[1],
+                classes.join(", "),
+                opt("positive_class")
+            )));
+            1
+        }
+    };
+    let p = probabilities_at(
+        sums.view(),
+        head,
+        temperature.as_ref().map_or(1.0, |t| t.value),
+    )?;
+    let scores: Vec<f64> = p.column(positive).to_vec();
+    let truth: Vec<bool> = labels.iter().map(|&l| l == positive).collect();
+    let chosen = choose_threshold(&scores, &truth, target)
+        .map_err(|e| e.context(format!("{} on the validation rows", opt(flag))))?;
+    let rule = DecisionRule::Threshold { positive, chosen };
+    notes.push(Message::new(format!(
+        "decisions by {}",
+        rule.describe(classes)
+    )));
+    Ok((temperature, Some(rule)))
 }
 
 /// What looks wrong with a finished fit: no better than the baseline, or

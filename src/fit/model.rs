@@ -2,11 +2,12 @@
 //! rows (the scaler, the column encoding, the class names) and where it came
 //! from ([`Provenance`](super::Provenance)).
 
-use super::{FitOptions, Provenance};
+use super::probabilities_at;
+use super::{CostMatrix, DecisionRule, Decisions, FitOptions, Provenance, Temperature};
 use crate::data::rows::CellRules;
 use crate::data::{ColumnEncoding, Dataset, Imputer, Scaler};
 use crate::error::{Error, Result};
-use crate::network::Network;
+use crate::network::{Head, Network};
 use ndarray::{Array2, ArrayView2};
 
 /// A fitted network with everything needed to use it on new rows: the
@@ -44,6 +45,12 @@ pub struct Model {
     pub(crate) seed: u64,
     /// How and from what the model was made.
     pub(crate) provenance: Provenance,
+    /// The temperature dividing the output sums (a classifier fitted with
+    /// [`Calibration::Temperature`](super::Calibration::Temperature)).
+    pub(crate) temperature: Option<Temperature>,
+    /// How the model turns probabilities into decisions, when it does more
+    /// than take the most probable class.
+    pub(crate) decision: Option<DecisionRule>,
 }
 
 impl Model {
@@ -156,6 +163,63 @@ impl Model {
         Ok(z)
     }
 
+    /// The fitted temperature, when the probabilities are calibrated.
+    pub fn temperature(&self) -> Option<&Temperature> {
+        self.temperature.as_ref()
+    }
+
+    /// The decision rule, when the model decides by costs or a threshold.
+    pub fn decision_rule(&self) -> Option<&DecisionRule> {
+        self.decision.as_ref()
+    }
+
+    /// The same model deciding by the least expected cost under `costs`
+    /// (Elkan 2001), whose classes must be the model's (any order).
+    ///
+    /// # Errors
+    /// A regression model, classes that differ from the model's, or a model
+    /// that already decides by a threshold (one rule per model).
+    pub fn with_costs(mut self, costs: &CostMatrix) -> Result<Model> {
+        let Some(classes) = self.class_names() else {
+            return Err(Error::input(
+                "cost matrix",
+                "the model predicts numbers; costs are for classifiers",
+            ));
+        };
+        if matches!(self.decision, Some(DecisionRule::Threshold { .. })) {
+            return Err(Error::option(
+                "costs",
+                "given",
+                format!(
+                    "the model already decides by a threshold chosen for {}; a model decides by one rule: leave out the threshold target or the costs",
+                    match &self.decision {
+                        Some(DecisionRule::Threshold { chosen, .. }) => chosen.target.to_string(),
+                        _ => String::new(),
+                    }
+                ),
+            ));
+        }
+        let m = costs.for_classes(classes)?;
+        self.decision = Some(DecisionRule::Costs(m));
+        Ok(self)
+    }
+
+    /// The model's decisions for raw feature rows: by its decision rule, or
+    /// the most probable class when it has none.
+    ///
+    /// # Errors
+    /// Wrong column count, or a regression model.
+    pub fn decide(&self, x: ArrayView2<'_, f64>) -> Result<Decisions> {
+        match &self.decision {
+            Some(rule) => rule.decide(self.predict_probabilities(x)?.view(), &self.target_names),
+            None => Ok(Decisions {
+                names: self.target_names.clone(),
+                chosen: self.predict_classes(x)?,
+                expected_cost: None,
+            }),
+        }
+    }
+
     /// Network outputs for raw (unscaled) feature rows: class probabilities
     /// or a logistic output for a classifier, values in the target's own
     /// units for regression (the target scaling undone). Missing (NaN) cells
@@ -164,6 +228,19 @@ impl Model {
     /// # Errors
     /// Wrong column count; a NaN the model cannot fill.
     pub fn predict(&self, x: ArrayView2<'_, f64>) -> Result<Array2<f64>> {
+        if let Some(t) = &self.temperature {
+            let p = probabilities_at(
+                self.network.output_sums(self.scaled(x)?.view())?.view(),
+                self.network.head(),
+                t.value,
+            )?;
+            // A logistic head's one output is the second class's probability.
+            return Ok(if self.network.head() == Head::Logistic {
+                p.slice(ndarray::s![.., 1..]).to_owned()
+            } else {
+                p
+            });
+        }
         let mut out = self.network.predict(self.scaled(x)?.view())?;
         if let Some(t) = &self.target_scaler {
             t.unscale_in_place(out.view_mut())?;
@@ -176,7 +253,14 @@ impl Model {
     /// # Errors
     /// Wrong column count, or a regression model.
     pub fn predict_probabilities(&self, x: ArrayView2<'_, f64>) -> Result<Array2<f64>> {
-        self.network.predict_probabilities(self.scaled(x)?.view())
+        match &self.temperature {
+            Some(t) => probabilities_at(
+                self.network.output_sums(self.scaled(x)?.view())?.view(),
+                self.network.head(),
+                t.value,
+            ),
+            None => self.network.predict_probabilities(self.scaled(x)?.view()),
+        }
     }
 
     /// Predicted class indices for raw feature rows.

@@ -1,5 +1,6 @@
 //! What [`fit`](super::fit) needs beyond the data: [`FitOptions`].
 
+use super::ThresholdTarget;
 use crate::data::{Dataset, Scaling, Target};
 use crate::error::{Error, Result};
 use crate::network::{Activation, Head, Init, Precision};
@@ -195,7 +196,34 @@ pub struct FitOptions {
     pub precision: Precision,
     /// The training options.
     pub training: TrainingOptions,
+    /// Calibration of a classifier's probabilities after training, fitted
+    /// on the validation rows only (inside every fold in cross-validation).
+    pub calibration: Calibration,
+    /// For two classes: a decision threshold chosen on the validation rows
+    /// (after any calibration) to reach this recall or precision for the
+    /// positive class; the model then decides with it.
+    pub threshold_target: Option<ThresholdTarget>,
+    /// The class `threshold_target` refers to; `None` takes the second
+    /// class of the target (the classes sorted), and the fit says so.
+    pub positive_class: Option<String>,
 }
+
+/// How a classifier's probabilities are calibrated after training.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub enum Calibration {
+    /// The network's probabilities as they are.
+    #[default]
+    None,
+    /// One temperature dividing the output sums, fitted by maximum
+    /// likelihood on the validation rows (Guo et al. 2017;
+    /// [`fit_temperature`](super::fit_temperature)).
+    Temperature,
+}
+
+crate::error::text_forms!(Calibration, "calibration", {
+    Calibration::None => "none",
+    Calibration::Temperature => "temperature",
+});
 
 impl Default for FitOptions {
     fn default() -> Self {
@@ -211,6 +239,9 @@ impl Default for FitOptions {
             restarts: 1,
             precision: Precision::F64,
             training: TrainingOptions::default(),
+            calibration: Calibration::None,
+            threshold_target: None,
+            positive_class: None,
         }
     }
 }
@@ -280,6 +311,16 @@ impl FitOptions {
     /// Sets early stopping (`None` turns it off).
     pub fn early_stopping(mut self, early_stopping: Option<EarlyStopping>) -> Self {
         self.training.early_stopping = early_stopping;
+        self
+    }
+    /// Sets the calibration of the probabilities.
+    pub fn calibration(mut self, calibration: Calibration) -> Self {
+        self.calibration = calibration;
+        self
+    }
+    /// Chooses a decision threshold for two classes on the validation rows.
+    pub fn threshold_target(mut self, target: ThresholdTarget) -> Self {
+        self.threshold_target = Some(target);
         self
     }
     /// Sets the float type.
@@ -396,6 +437,38 @@ impl FitOptions {
             if let Some(loss) = self.training.loss {
                 loss.check_head(head)?;
             }
+        }
+        if let Some(target) = self.threshold_target {
+            target.validate()?;
+        }
+        let chooses = self.calibration != Calibration::None || self.threshold_target.is_some();
+        if chooses && self.validation_share_or_default() == 0.0 {
+            let (name, value) = match (self.calibration, self.threshold_target) {
+                (Calibration::Temperature, _) => ("calibration", self.calibration.to_string()),
+                (_, Some(ThresholdTarget::Recall(v))) => ("target_recall", v.to_string()),
+                (_, Some(ThresholdTarget::Precision(v))) => ("target_precision", v.to_string()),
+                (Calibration::None, None) => unreachable!("something is chosen"),
+            };
+            return Err(Error::option(
+                name,
+                value,
+                format!(
+                    "is fitted on validation rows, and there are none: set {} above 0 ({} is usual) or turn on early stopping",
+                    crate::error::opt("validation_share"),
+                    FitOptions::VALIDATION_SHARE
+                ),
+            ));
+        }
+        if self.positive_class.is_some() && self.threshold_target.is_none() {
+            return Err(Error::option(
+                "positive_class",
+                self.positive_class.as_deref().unwrap_or_default(),
+                format!(
+                    "names the class a threshold target refers to; give {} or {} too, or leave it out",
+                    crate::error::opt("target_recall"),
+                    crate::error::opt("target_precision")
+                ),
+            ));
         }
         self.training.validate()
     }

@@ -86,7 +86,7 @@ pub fn probabilities_at(
                 let m = row.iter().fold(f64::NEG_INFINITY, |m, &z| m.max(b * z));
                 let mut sum = 0.0;
                 for (k, &z) in row.iter().enumerate() {
-                    let e = (b * z - m).exp();
+                    let e = libm::exp(b * z - m);
                     p[[s, k]] = e;
                     sum += e;
                 }
@@ -107,9 +107,9 @@ pub fn probabilities_at(
 
 fn logistic(z: f64) -> f64 {
     if z >= 0.0 {
-        1.0 / (1.0 + (-z).exp())
+        1.0 / (1.0 + libm::exp(-z))
     } else {
-        let e = z.exp();
+        let e = libm::exp(z);
         e / (1.0 + e)
     }
 }
@@ -124,20 +124,20 @@ fn loss_and_slope(logits: ArrayView2<'_, f64>, labels: &[usize], head: Head, b: 
             let signed = if y == 1 { b * z } else { -b * z };
             // -ln sigma(t) = ln(1 + e^-t), computed without overflow.
             loss += if signed > 0.0 {
-                (-signed).exp().ln_1p()
+                libm::log1p(libm::exp(-signed))
             } else {
-                -signed + signed.exp().ln_1p()
+                -signed + libm::log1p(libm::exp(signed))
             };
             slope += (logistic(b * z) - y as f64) * z;
         } else {
             let m = row.iter().fold(f64::NEG_INFINITY, |m, &z| m.max(b * z));
             let (mut sum, mut weighted) = (0.0, 0.0);
             for &z in row {
-                let e = (b * z - m).exp();
+                let e = libm::exp(b * z - m);
                 sum += e;
                 weighted += e * z;
             }
-            loss += m + sum.ln() - b * row[y];
+            loss += m + libm::log(sum) - b * row[y];
             slope += weighted / sum - row[y];
         }
     }
@@ -213,16 +213,16 @@ pub fn fit_temperature(
             )),
         )
     } else {
-        let (mut lo, mut hi) = (low.ln(), high.ln());
+        let (mut lo, mut hi) = (libm::log(low), libm::log(high));
         for _ in 0..120 {
             let mid = 0.5 * (lo + hi);
-            if slope(mid.exp()) < 0.0 {
+            if slope(libm::exp(mid)) < 0.0 {
                 lo = mid;
             } else {
                 hi = mid;
             }
         }
-        ((0.5 * (lo + hi)).exp(), None)
+        (libm::exp(0.5 * (lo + hi)), None)
     };
     let before = loss_and_slope(logits, labels, head, 1.0).0;
     let after = loss_and_slope(logits, labels, head, b).0;

@@ -9,7 +9,7 @@
 //! ignored.
 
 use crate::data::Scaling;
-use crate::fit::{ClassWeights, FitOptions};
+use crate::fit::{Calibration, ClassWeights, FitOptions, ThresholdTarget};
 use crate::network::{Activation, Arithmetic, Head, Init, Precision};
 use crate::train::{BatchSize, EarlyStopping, Loss, Optimiser, Schedule, TrainingOptions};
 use serde::{Deserialize, Serialize};
@@ -44,6 +44,19 @@ pub(crate) struct OptionsV2 {
     pub shuffle: bool,
     pub train_biases: bool,
     pub arithmetic: String,
+    /// `none` or `temperature` (absent in files written before calibration).
+    #[serde(default = "no_calibration")]
+    pub calibration: String,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub target_recall: Option<f64>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub target_precision: Option<f64>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub positive_class: Option<String>,
+}
+
+fn no_calibration() -> String {
+    Calibration::None.to_string()
 }
 
 /// A batch size as files write it: a number of rows, or `"full"`.
@@ -107,6 +120,16 @@ impl OptionsV2 {
             shuffle: t.shuffle,
             train_biases: t.train_biases,
             arithmetic: t.arithmetic.to_string(),
+            calibration: o.calibration.to_string(),
+            target_recall: match o.threshold_target {
+                Some(ThresholdTarget::Recall(v)) => Some(v),
+                _ => None,
+            },
+            target_precision: match o.threshold_target {
+                Some(ThresholdTarget::Precision(v)) => Some(v),
+                _ => None,
+            },
+            positive_class: o.positive_class.clone(),
         }
     }
 
@@ -149,6 +172,19 @@ impl OptionsV2 {
                 arithmetic: parse::<Arithmetic>("arithmetic", &self.arithmetic)?,
                 observer: Default::default(),
             },
+            calibration: parse::<Calibration>("calibration", &self.calibration)?,
+            threshold_target: match (self.target_recall, self.target_precision) {
+                (Some(_), Some(_)) => {
+                    return Err(
+                        "\"target_recall\" and \"target_precision\": at most one may be given"
+                            .into(),
+                    )
+                }
+                (Some(r), None) => Some(ThresholdTarget::Recall(r)),
+                (None, Some(p)) => Some(ThresholdTarget::Precision(p)),
+                (None, None) => None,
+            },
+            positive_class: self.positive_class,
         };
         options.validate().map_err(|e| e.to_string())?;
         Ok(options)
@@ -396,6 +432,10 @@ impl OptionsV1 {
                 },
                 observer: Default::default(),
             },
+            // Version 1 had no calibration or threshold.
+            calibration: Calibration::None,
+            threshold_target: None,
+            positive_class: None,
         };
         options.validate().map_err(|e| e.to_string())?;
         Ok(options)

@@ -1,7 +1,9 @@
 //! Prediction tables: a model's predictions for the rows of a
 //! [`FeatureTable`] as CSV: the file line, the model's ID columns (when
 //! the file has them), then the predicted class and each class's
-//! probability, or the predicted values in the target's own units.
+//! probability (calibrated when the model has a temperature), with the
+//! decision (and its expected cost under a cost matrix) when the model has
+//! a decision rule; or the predicted values in the target's own units.
 
 use super::FeatureTable;
 use crate::atomic::write_text;
@@ -19,6 +21,13 @@ pub(crate) fn prediction_columns(model: &Model, table: &FeatureTable) -> Vec<Str
     if model.is_classifier {
         cols.push("predicted".into());
         cols.extend(model.target_names.iter().map(|c| format!("p_{c}")));
+        match &model.decision {
+            Some(crate::fit::DecisionRule::Costs(_)) => {
+                cols.extend(["decision".to_string(), "expected_cost".to_string()]);
+            }
+            Some(crate::fit::DecisionRule::Threshold { .. }) => cols.push("decision".into()),
+            None => {}
+        }
     } else {
         cols.extend(model.target_names.iter().map(|c| format!("predicted_{c}")));
     }
@@ -47,11 +56,22 @@ pub(crate) fn write_predictions(model: &Model, table: &FeatureTable, out: &Path)
         let head = model.network.head();
         let classes = crate::network::classes_from_outputs(out.view(), head)?;
         let p = crate::network::probabilities_from_outputs(out, head)?;
+        let decisions = model
+            .decision
+            .as_ref()
+            .map(|rule| rule.decide(p.view(), &model.target_names))
+            .transpose()?;
         for (i, row) in p.rows().into_iter().enumerate() {
             let mut rec = vec![table.lines[i].to_string()];
             rec.extend(ids(i));
             rec.push(model.target_names[classes[i]].clone());
             rec.extend(row.iter().map(|v| format!("{v}")));
+            if let Some(d) = &decisions {
+                rec.push(d.names[d.chosen[i]].clone());
+                if let Some(cost) = &d.expected_cost {
+                    rec.push(format!("{}", cost[i]));
+                }
+            }
             w.write_record(rec).map_err(io)?;
         }
     } else {

@@ -7,7 +7,10 @@
 use super::options_schema::{OptionsV1, OptionsV2};
 use crate::data::rows::CellRules;
 use crate::data::{ColumnEncoding, DecimalMark, Imputer, Scaler, Scaling};
-use crate::fit::{FitOptions, Model, Provenance};
+use crate::fit::{
+    ChosenThreshold, CostMatrix, DecisionRule, FitOptions, Model, Provenance, Temperature,
+    ThresholdTarget,
+};
 use crate::network::{Activation, Head, Layer, Network, Precision, MAX_PARAMETERS};
 use ndarray::{Array1, Array2};
 use serde::{Deserialize, Serialize};
@@ -66,6 +69,50 @@ pub(super) struct File<O> {
     pub seed: u64,
     pub provenance: ProvenanceV1,
     pub network: NetworkV1,
+    /// The temperature dividing the output sums (version 2; a classifier
+    /// fitted with temperature scaling).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub temperature: Option<TemperatureV2>,
+    /// How the model decides (version 2; costs or a threshold).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub decision: Option<DecisionV2>,
+}
+
+/// A fitted temperature as files hold it.
+#[derive(Debug, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(super) struct TemperatureV2 {
+    pub value: f64,
+    pub rows: usize,
+    pub log_loss_before: f64,
+    pub log_loss_after: f64,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub note: Option<String>,
+}
+
+/// A decision rule as files hold it.
+#[derive(Debug, Serialize, Deserialize)]
+#[serde(tag = "rule", rename_all = "snake_case", deny_unknown_fields)]
+pub(super) enum DecisionV2 {
+    /// The least expected cost: `costs[d][c]`, columns in `classes` order.
+    Costs {
+        decisions: Vec<String>,
+        classes: Vec<String>,
+        costs: Vec<Vec<f64>>,
+    },
+    /// Two classes: `positive` when its probability is at least `threshold`.
+    Threshold {
+        positive: String,
+        threshold: f64,
+        #[serde(default, skip_serializing_if = "Option::is_none")]
+        target_recall: Option<f64>,
+        #[serde(default, skip_serializing_if = "Option::is_none")]
+        target_precision: Option<f64>,
+        recall: f64,
+        precision: f64,
+        rows: usize,
+        positives: usize,
+    },
 }
 
 #[derive(Debug, Serialize, Deserialize)]
@@ -375,6 +422,36 @@ impl File<OptionsV2> {
                 warnings: p.warnings.clone(),
             },
             network,
+            temperature: model.temperature.as_ref().map(|t| TemperatureV2 {
+                value: t.value,
+                rows: t.rows,
+                log_loss_before: t.log_loss_before,
+                log_loss_after: t.log_loss_after,
+                note: t.note.clone(),
+            }),
+            decision: model.decision.as_ref().map(|d| match d {
+                DecisionRule::Costs(m) => DecisionV2::Costs {
+                    decisions: m.decisions().to_vec(),
+                    classes: m.classes().to_vec(),
+                    costs: m.costs().to_vec(),
+                },
+                DecisionRule::Threshold { positive, chosen } => DecisionV2::Threshold {
+                    positive: model.target_names[*positive].clone(),
+                    threshold: chosen.threshold,
+                    target_recall: match chosen.target {
+                        ThresholdTarget::Recall(v) => Some(v),
+                        ThresholdTarget::Precision(_) => None,
+                    },
+                    target_precision: match chosen.target {
+                        ThresholdTarget::Precision(v) => Some(v),
+                        ThresholdTarget::Recall(_) => None,
+                    },
+                    recall: chosen.recall,
+                    precision: chosen.precision,
+                    rows: chosen.rows,
+                    positives: chosen.positives,
+                },
+            }),
         }
     }
 }
@@ -425,12 +502,14 @@ impl<O: OptionsSchema> File<O> {
             && (self.imputer.is_some()
                 || self.target_scaler.is_some()
                 || self.table.is_some()
+                || self.temperature.is_some()
+                || self.decision.is_some()
                 || self
                     .columns
                     .iter()
                     .any(|c| matches!(c, ColumnV1::MissingIndicator { .. })))
         {
-            return Err("the file is version 1 but holds parts of version 2 (\"imputer\", \"target_scaler\", \"table\" or a missing_indicator column)".into());
+            return Err("the file is version 1 but holds parts of version 2 (\"imputer\", \"target_scaler\", \"table\", \"temperature\", \"decision\" or a missing_indicator column)".into());
         }
         let n = self.feature_names.len();
         if let Some(i) = &self.imputer {
@@ -844,7 +923,99 @@ impl<O: OptionsSchema> File<O> {
             ),
             None => (Vec::new(), CellRules::new(DecimalMark::Point, None)),
         };
+        let classes: Vec<String> = if t.is_classifier {
+            t.classes.clone().expect("checked")
+        } else {
+            t.outputs.clone().expect("checked")
+        };
+        let temperature =
+            match self.temperature {
+                None => None,
+                Some(_) if !t.is_classifier => return Err(
+                    "\"temperature\": the model predicts numbers; a temperature is for classifiers"
+                        .into(),
+                ),
+                Some(v) => {
+                    let (lo, hi) = crate::fit::TEMPERATURE_BOUNDS;
+                    if !(v.value >= lo && v.value <= hi) {
+                        return Err(format!(
+                            "\"temperature\": \"value\" is {}, outside [{lo}, {hi}]",
+                            v.value
+                        ));
+                    }
+                    Some(Temperature {
+                        value: v.value,
+                        rows: v.rows,
+                        log_loss_before: v.log_loss_before,
+                        log_loss_after: v.log_loss_after,
+                        note: v.note,
+                    })
+                }
+            };
+        let decision = match self.decision {
+            None => None,
+            Some(_) if !t.is_classifier => {
+                return Err(
+                    "\"decision\": the model predicts numbers; decisions are for classifiers"
+                        .into(),
+                )
+            }
+            Some(DecisionV2::Costs {
+                decisions,
+                classes: columns,
+                costs,
+            }) => {
+                let m = CostMatrix::new(decisions, columns, costs)
+                    .and_then(|m| m.for_classes(&classes))
+                    .map_err(|e| format!("\"decision\": {e}"))?;
+                Some(DecisionRule::Costs(m))
+            }
+            Some(DecisionV2::Threshold {
+                positive,
+                threshold,
+                target_recall,
+                target_precision,
+                recall,
+                precision,
+                rows,
+                positives,
+            }) => {
+                if classes.len() != 2 {
+                    return Err(format!(
+                        "\"decision\": a threshold is for two classes; the model has {}",
+                        classes.len()
+                    ));
+                }
+                let Some(index) = classes.iter().position(|c| *c == positive) else {
+                    return Err(format!("\"decision\": \"positive\" is \"{positive}\", not a class of the model ({})", classes.join(", ")));
+                };
+                let target = match (target_recall, target_precision) {
+                    (Some(r), None) => ThresholdTarget::Recall(r),
+                    (None, Some(q)) => ThresholdTarget::Precision(q),
+                    _ => return Err("\"decision\": give exactly one of \"target_recall\" and \"target_precision\"".into()),
+                };
+                target
+                    .validate()
+                    .map_err(|e| format!("\"decision\": {e}"))?;
+                if !threshold.is_finite() {
+                    return Err("\"decision\": \"threshold\" is not a finite number".into());
+                }
+                Some(DecisionRule::Threshold {
+                    positive: index,
+                    chosen: ChosenThreshold {
+                        target,
+                        threshold,
+                        recall,
+                        precision,
+                        rows,
+                        positives,
+                    },
+                })
+            }
+        };
         Ok(Model {
+            temperature,
+            decision,
             network,
             scaler,
             imputer,

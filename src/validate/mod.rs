@@ -21,12 +21,12 @@ pub use stats::{
     Summary,
 };
 mod compare;
-mod costs;
+pub mod costs;
 pub(crate) mod cv;
 mod holdout;
 pub mod importance;
 pub(crate) mod nested;
-mod out_of_fold;
+pub mod out_of_fold;
 mod search;
 pub(crate) mod sweep;
 pub mod sweep_files;

@@ -520,3 +520,87 @@ fn decisions_and_warnings_reach_text_json_and_predictions() {
         "half the squared error of the scaled target, mean per row"
     );
 }
+
+/// `cv` names the rows its scores come from, puts the baseline and the
+/// test against it beside every metric, reports calibration and costs, and
+/// writes out-of-fold predictions whose pooled accuracy and Brier score
+/// equal the folds' mean (600 rows in 5 equal folds; the pooled mean of
+/// equal-sized folds is their mean: arithmetic, no source).
+#[test]
+fn cv_names_its_rows_with_baselines_calibration_costs_and_out_of_fold_rows() {
+    let dir = scratch("cli-cv-honest");
+    let oof = dir.join("oof.csv");
+    let costs = dir.join("costs.csv");
+    std::fs::write(
+        &costs,
+        "decision,accept,rework,scrap\nship,0,40,300\nrework,15,10,120\nscrap,60,50,20\n",
+    )
+    .unwrap();
+    let out = json(&stratanet(&[
+        "cv",
+        &parts(),
+        "--target",
+        "verdict",
+        "--id",
+        "part_id",
+        "--folds",
+        "5",
+        "--epochs",
+        "30",
+        "--costs",
+        &costs.display().to_string(),
+        "--out-of-fold",
+        &oof.display().to_string(),
+        "--json",
+    ]));
+    assert_eq!(out["scored_rows"], "out-of-fold");
+    let accuracy = &out["metrics"]["accuracy"];
+    assert_eq!(accuracy["scored_rows"], "out-of-fold");
+    // The baseline predicts the training class shares: its accuracy is the
+    // majority class's share of each fold's held-out rows (393 of 600
+    // accept in the demo table, stratified folds).
+    let base = accuracy["baseline"]["mean"].as_f64().unwrap();
+    assert!((base - 393.0 / 600.0).abs() < 0.01, "{base}");
+    assert!(accuracy["against_baseline"]["p_value"].as_f64().unwrap() < 0.05);
+    let cal = &out["calibration"];
+    let b = &cal["brier"];
+    let f = |v: &Value| v.as_f64().unwrap();
+    // Murphy (1973) with Stephenson et al.'s (2008) within-bin terms.
+    let sum = f(&b["reliability"]) - f(&b["resolution"])
+        + f(&b["uncertainty"])
+        + f(&b["within_bin_variance"])
+        - 2.0 * f(&b["within_bin_covariance"]);
+    assert!((sum - f(&b["score"])).abs() < 1e-12);
+    assert!((f(&b["score"]) - f(&out["metrics"]["brier"]["mean"])).abs() < 1e-12);
+    let ece = f(&cal["expected_calibration_error"]);
+    assert!((0.0..0.2).contains(&ece), "{ece}");
+    assert_eq!(out["costs"]["decisions"][0], "ship");
+    assert!(f(&out["costs"]["cost_per_row"]["mean"]) < f(&out["costs"]["baseline"]["mean"]));
+    // The out-of-fold file: one line per row, the ID column, and pooled
+    // scores equal to the folds' mean.
+    let text = std::fs::read_to_string(&oof).unwrap();
+    let mut lines = text.lines();
+    assert_eq!(
+        lines.next().unwrap(),
+        "table_row,part_id,repeat,fold,true_verdict,predicted,p_accept,p_rework,p_scrap"
+    );
+    let rows: Vec<Vec<&str>> = lines.map(|l| l.split(',').collect()).collect();
+    assert_eq!(rows.len(), 600);
+    assert_eq!(rows[0][1], "P00001");
+    let right = rows.iter().filter(|r| r[4] == r[5]).count() as f64 / 600.0;
+    assert!((right - f(&accuracy["mean"])).abs() < 1e-12);
+    let classes = ["accept", "rework", "scrap"];
+    let brier: f64 = rows
+        .iter()
+        .map(|r| {
+            (0..3)
+                .map(|c| {
+                    let y = f64::from(u8::from(r[4] == classes[c]));
+                    (r[6 + c].parse::<f64>().unwrap() - y).powi(2)
+                })
+                .sum::<f64>()
+        })
+        .sum::<f64>()
+        / 600.0;
+    assert!((brier - f(&out["metrics"]["brier"]["mean"])).abs() < 1e-9);
+}

@@ -3,6 +3,7 @@
 //! correct implementation must have (sources beside each check).
 
 use crate::support::demo_parts;
+use stratanet::fit::{Calibration, CostMatrix, DecisionRule, ThresholdTarget};
 use stratanet::prelude::*;
 use stratanet::validate::{nested_cross_validate, sweep, Grid};
 
@@ -355,4 +356,141 @@ fn cross_validated_costs_follow_their_definition() {
     let test = summary.against_baseline.as_ref().unwrap();
     assert!(test.mean_difference < 0.0, "{test:?}");
     assert_eq!(summary.decision_counts.iter().sum::<usize>(), data.n_rows());
+}
+
+/// Rows drawn from a known logistic model, p(y = 1) = sigma(2 x1 - x2),
+/// with three pure-noise inputs (the generator of the simulation; the
+/// checks below rest on Guo et al. 2017, not on these numbers).
+fn logistic_rows(n: usize, seed: u64) -> Dataset {
+    use rand::Rng;
+    let mut rng = seeded_rng(seed);
+    let mut x = ndarray::Array2::zeros((n, 5));
+    let mut labels = Vec::with_capacity(n);
+    for i in 0..n {
+        for j in 0..5 {
+            // A sum of 12 uniforms less 6: near-normal, mean 0, variance 1.
+            x[[i, j]] = (0..12).map(|_| rng.random::<f64>()).sum::<f64>() - 6.0;
+        }
+        let p = 1.0 / (1.0 + (-(2.0 * x[[i, 0]] - x[[i, 1]])).exp());
+        labels.push(usize::from(rng.random::<f64>() < p));
+    }
+    Dataset::classification(x, labels, vec!["no".into(), "yes".into()]).unwrap()
+}
+
+fn fresh_log_loss(model: &Model, rows: &Dataset) -> f64 {
+    let p = model.predict_probabilities(rows.x()).unwrap();
+    let labels = rows.labels().unwrap();
+    -labels
+        .iter()
+        .enumerate()
+        .map(|(i, &y)| p[[i, y]].max(1e-300).ln())
+        .sum::<f64>()
+        / labels.len() as f64
+}
+
+/// Temperature scaling (Guo, Pleiss, Sun & Weinberger, "On calibration of
+/// modern neural networks", ICML 2017): a wide network trained far past
+/// its best epoch on 240 noisy rows is over-confident, so the temperature
+/// fitted on its validation rows is above 1 and the log-loss on 20,000
+/// fresh rows falls; a logistic unit (no hidden layer) on the same kind of
+/// rows is already calibrated (it is the true model's form), so its
+/// temperature is near 1.
+#[test]
+fn temperature_scaling_cools_an_over_confident_network_and_leaves_a_calibrated_one() {
+    let train = logistic_rows(240, 11);
+    let fresh = logistic_rows(20_000, 12);
+    let over = FitOptions::default()
+        .hidden(&[64])
+        .early_stopping(None)
+        .validation_share(0.3)
+        .epochs(1500)
+        .learning_rate(0.05);
+    let plain = fit(&train, &over, &mut seeded_rng(3)).unwrap();
+    let scaled = fit(
+        &train,
+        &over.clone().calibration(Calibration::Temperature),
+        &mut seeded_rng(3),
+    )
+    .unwrap();
+    // Temperature scaling does not change the network.
+    assert_eq!(plain.model().network(), scaled.model().network());
+    let t = scaled.model().temperature().unwrap().value;
+    let (before, after) = (
+        fresh_log_loss(plain.model(), &fresh),
+        fresh_log_loss(scaled.model(), &fresh),
+    );
+    assert!(t > 1.5, "over-confident: T = {t}");
+    assert!(after < before, "fresh log-loss {before} -> {after}");
+    // The temperature travels in the model file.
+    let path = crate::support::scratch("honest-temperature").join("scaled.json");
+    scaled.model().save(&path).unwrap();
+    assert_eq!(&Model::load(&path).unwrap(), scaled.model());
+    // The same classes either way: dividing by T keeps the order.
+    assert_eq!(
+        plain.model().predict_classes(fresh.x()).unwrap(),
+        scaled.model().predict_classes(fresh.x()).unwrap()
+    );
+
+    let big = logistic_rows(4000, 13);
+    let unit = FitOptions::default()
+        .hidden(&[])
+        .validation_share(0.5)
+        .epochs(200)
+        .calibration(Calibration::Temperature);
+    let calibrated = fit(&big, &unit, &mut seeded_rng(4)).unwrap();
+    let t = calibrated.model().temperature().unwrap().value;
+    assert!((0.9..1.1).contains(&t), "already calibrated: T = {t}");
+}
+
+/// A cost matrix and a threshold travel in the model file and decide the
+/// same way after loading; a zero-one matrix decides the most probable
+/// class (Elkan 2001, section 2).
+#[test]
+fn decision_rules_survive_the_model_file_and_zero_one_costs_pick_the_most_probable_class() {
+    let train = logistic_rows(400, 21);
+    let fresh = logistic_rows(500, 22);
+    let fitted = fit(
+        &train,
+        &FitOptions::default()
+            .epochs(60)
+            .threshold_target(ThresholdTarget::Recall(0.95)),
+        &mut seeded_rng(5),
+    )
+    .unwrap();
+    let model = fitted.model();
+    let Some(DecisionRule::Threshold { positive, chosen }) = model.decision_rule() else {
+        panic!("a threshold rule");
+    };
+    assert_eq!(*positive, 1);
+    assert!(chosen.recall >= 0.95);
+    let dir = crate::support::scratch("honest-decisions");
+    let path = dir.join("threshold.json");
+    model.save(&path).unwrap();
+    let back = Model::load(&path).unwrap();
+    assert_eq!(&back, model);
+    let d = back.decide(fresh.x()).unwrap();
+    let p = back.predict_probabilities(fresh.x()).unwrap();
+    for (i, &c) in d.chosen.iter().enumerate() {
+        assert_eq!(c, usize::from(p[[i, 1]] >= chosen.threshold));
+    }
+    let zero_one = CostMatrix::zero_one(&["no".to_string(), "yes".to_string()]).unwrap();
+    let plain = fit(
+        &train,
+        &FitOptions::default().epochs(60),
+        &mut seeded_rng(5),
+    )
+    .unwrap();
+    let costed = plain.model().clone().with_costs(&zero_one).unwrap();
+    let path = dir.join("costs.json");
+    costed.save(&path).unwrap();
+    let back = Model::load(&path).unwrap();
+    let d = back.decide(fresh.x()).unwrap();
+    assert_eq!(d.chosen, back.predict_classes(fresh.x()).unwrap());
+    assert!(d
+        .expected_cost
+        .unwrap()
+        .iter()
+        .all(|c| (0.0..=0.5).contains(c)));
+    // One rule per model.
+    assert!(model.clone().with_costs(&zero_one).is_err());
 }

@@ -439,7 +439,7 @@ fn missing_unknown_and_mistyped_fields_are_named() {
             (
                 "unknown-field.json",
                 replaced(&text, "\"seed\":", "\"comment\": \"hello\",\n  \"seed\":"),
-                "unknown-field.json: not a usable model file: line 87, column 11: unknown field `comment`, expected one of `format`, `format_version`, `target`, `columns`, `feature_names`, `scaler`, `imputer`, `target_scaler`, `table`, `training_options`, `seed`, `provenance`, `network`",
+                "unknown-field.json: not a usable model file: line 87, column 11: unknown field `comment`, expected one of `format`, `format_version`, `target`, `columns`, `feature_names`, `scaler`, `imputer`, `target_scaler`, `table`, `training_options`, `seed`, `provenance`, `network`, `temperature`, `decision`",
             ),
             (
                 "unknown-activation.json",

@@ -4,12 +4,12 @@
 //! Inputs are plain data:
 //!
 //! - true and predicted class labels as `&[usize]`, each in `0..n_classes`;
-//! - class probabilities as an [`ArrayView2<f64>`]: one row per sample, one
+//! - class probabilities as an [`ArrayView2<f64>`](ndarray::ArrayView2): one row per sample, one
 //!   column per class, each row summing to 1 (within 1e-6);
 //! - for ranking metrics of one class against the rest, `&[f64]` scores
 //!   (higher means "more likely positive") and `&[bool]` labels (`true` =
 //!   positive). From `usize` labels: `labels.iter().map(|&l| l == positive)`;
-//! - for regression, `&[f64]` truth and prediction, or [`ArrayView2<f64>`] with
+//! - for regression, `&[f64]` truth and prediction, or [`ArrayView2<f64>`](ndarray::ArrayView2) with
 //!   one column per output.
 //!
 //! # Undefined values
@@ -57,7 +57,7 @@
 //! # Ok::<(), stratanet::Error>(())
 //! ```
 
-mod calibration;
+pub mod calibration;
 mod checks;
 mod confusion;
 mod probability;

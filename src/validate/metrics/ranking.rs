@@ -164,7 +164,7 @@ pub struct OneVsRestAuc {
 /// classes count as much as common ones.
 ///
 /// # Errors
-/// As [`log_loss`] for the probabilities.
+/// As [`log_loss`](super::log_loss) for the probabilities.
 pub fn one_vs_rest_auc(truth: &[usize], probabilities: ArrayView2<f64>) -> Result<OneVsRestAuc> {
     let n_classes = check_probabilities("one-vs-rest AUC", truth, probabilities)?;
     let mut per_class = Vec::with_capacity(n_classes);

@@ -88,9 +88,9 @@ pub struct ClassificationMetrics {
     pub macro_f1: f64,
     /// See [`ConfusionMatrix::weighted_f1`].
     pub weighted_f1: f64,
-    /// See [`log_loss`]; `None` without probabilities.
+    /// See [`log_loss`](super::log_loss); `None` without probabilities.
     pub log_loss: Option<f64>,
-    /// See [`brier_score`]; `None` without probabilities.
+    /// See [`brier_score`](super::brier_score); `None` without probabilities.
     pub brier: Option<f64>,
     /// Binary ROC AUC of class 1's probability ([`roc_auc`]), or with more
     /// classes the one-vs-rest macro average ([`one_vs_rest_auc`]); `None`
@@ -113,7 +113,7 @@ impl ClassificationMetrics {
     /// predicted class is the most probable one ([`most_probable_classes`]).
     ///
     /// # Errors
-    /// As [`log_loss`].
+    /// As [`log_loss`](super::log_loss).
     pub fn from_probabilities(truth: &[usize], probabilities: ArrayView2<f64>) -> Result<Self> {
         let n_classes = check_probabilities("classification metrics", truth, probabilities)?;
         let predicted = most_probable_classes(probabilities);
@@ -276,13 +276,13 @@ impl ClassificationMetrics {
 /// Regression errors of one output (one target column).
 #[derive(Debug, Clone, PartialEq)]
 pub struct OutputReport {
-    /// See [`mean_squared_error`].
+    /// See [`mean_squared_error`](super::mean_squared_error).
     pub mean_squared_error: f64,
-    /// See [`root_mean_squared_error`].
+    /// See [`root_mean_squared_error`](super::root_mean_squared_error).
     pub root_mean_squared_error: f64,
-    /// See [`mean_absolute_error`].
+    /// See [`mean_absolute_error`](super::mean_absolute_error).
     pub mean_absolute_error: f64,
-    /// See [`r_squared`]; 0 with a note when undefined.
+    /// See [`r_squared`](super::r_squared); 0 with a note when undefined.
     pub r_squared: f64,
 }
 
@@ -296,13 +296,13 @@ pub struct OutputReport {
 pub struct RegressionMetrics {
     /// The number of samples (rows).
     pub n_samples: usize,
-    /// Mean over outputs of [`mean_squared_error`].
+    /// Mean over outputs of [`mean_squared_error`](super::mean_squared_error).
     pub mean_squared_error: f64,
-    /// Mean over outputs of [`root_mean_squared_error`].
+    /// Mean over outputs of [`root_mean_squared_error`](super::root_mean_squared_error).
     pub root_mean_squared_error: f64,
-    /// Mean over outputs of [`mean_absolute_error`].
+    /// Mean over outputs of [`mean_absolute_error`](super::mean_absolute_error).
     pub mean_absolute_error: f64,
-    /// Mean of [`r_squared`] over the outputs where it is defined; 0 with a
+    /// Mean of [`r_squared`](super::r_squared) over the outputs where it is defined; 0 with a
     /// note when it is defined for none.
     pub r_squared: f64,
     /// One entry per output.
@@ -315,7 +315,7 @@ impl RegressionMetrics {
     /// Metrics for one output.
     ///
     /// # Errors
-    /// As [`mean_squared_error`].
+    /// As [`mean_squared_error`](super::mean_squared_error).
     pub fn from_slices(truth: &[f64], predicted: &[f64]) -> Result<Self> {
         check_regression("regression metrics", truth, predicted)?;
         let ndarray_truth = ArrayView2::from_shape((truth.len(), 1), truth)
