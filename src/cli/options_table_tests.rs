@@ -6,7 +6,7 @@
 use super::*;
 use crate::cli::args::{Cli, Command, NetArgs};
 use crate::data::Scaling;
-use crate::fit::ClassWeights;
+use crate::fit::{Calibration, ClassWeights, ThresholdTarget};
 use crate::network::{Activation, Arithmetic, Init, Precision};
 use crate::train::{BatchSize, Loss, Optimiser, Schedule};
 use clap::{Args, Parser};
@@ -37,6 +37,18 @@ const TABLE: &[(&str, &str, Check)] = &[
     }),
     ("--class-weights", "balanced", |o| {
         o.class_weights == ClassWeights::Balanced
+    }),
+    ("--calibration", "temperature", |o| {
+        o.calibration == Calibration::Temperature
+    }),
+    ("--target-recall", "0.9", |o| {
+        o.threshold_target == Some(ThresholdTarget::Recall(0.9))
+    }),
+    ("--target-precision", "0.8", |o| {
+        o.threshold_target == Some(ThresholdTarget::Precision(0.8))
+    }),
+    ("--positive-class", "yes", |o| {
+        o.positive_class.as_deref() == Some("yes")
     }),
     ("--precision", "f32", |o| o.precision == Precision::F32),
     ("--arithmetic", "portable", |o| {
@@ -87,11 +99,15 @@ const TABLE: &[(&str, &str, Check)] = &[
 fn every_network_flag_sets_its_option() {
     let defaults = options(&[]).unwrap();
     for (flag, value, check) in TABLE {
-        let argv: Vec<&str> = if value.is_empty() {
+        let mut argv: Vec<&str> = if value.is_empty() {
             vec![flag]
         } else {
             vec![flag, value]
         };
+        // The positive class only means something with a threshold target.
+        if *flag == "--positive-class" {
+            argv.extend(["--target-recall", "0.9"]);
+        }
         let o = options(&argv).unwrap_or_else(|e| panic!("{flag} {value}: {e}"));
         assert!(check(&o), "{flag} {value} did not reach the options: {o:?}");
         // Without the flag, the option is not already so.
