@@ -636,7 +636,8 @@ fn early_stopping_restores_the_best_epochs_weights() {
     assert_eq!(report.best_validation_loss, Some(0.0078125));
     // Epochs 3 and 4 do not improve: patience 2 ends training after epoch 4.
     assert_eq!(report.epochs_run, 4);
-    assert_eq!(report.history.len(), 4);
+    let epochs: Vec<usize> = report.history.iter().map(|e| e.epoch).collect();
+    assert_eq!(epochs, vec![1, 2, 3, 4], "epochs are counted from 1");
     assert!(report.stopped_early);
     assert_eq!(report.final_training_loss, 0.35595703125);
     assert_eq!(
