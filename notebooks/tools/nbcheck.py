@@ -11,10 +11,14 @@ Run it through notebooks/tools/check.sh, which sets up the environment
       `expect-svg` / `expect-html` / `expect-text` / `expect-png` /
       `expect-json` / `expect-markdown` / `expect-latex` that shows no output of
       that MIME type, and on a cell tagged `raises-exception` that does not
-      fail. Other stderr output is a warning (an Err that `?` returns from a
-      cell reaches only stderr), a failure with --strict-stderr unless the
-      cell is tagged `allow-stderr`. With --write, a notebook that passes is
-      saved back, normalised.
+      fail (with the message in the cell's metadata `expect_error`). Other
+      stderr output fails (an Err that `?` returns from a cell reaches only
+      stderr) unless the cell is tagged `allow-stderr`. Hidden errors fail
+      too: an Err(..) as a cell's value, error text on stdout, an empty SVG,
+      NaN or inf in an HTML table; so does a cell that shows nothing and
+      declares nothing (tag it `expect-nothing`), a code cell tagged
+      `skip-execution` and a raw cell holding code. With --write, a notebook
+      that passes is saved back, normalised.
 
   nbcheck.py reproduce NOTEBOOK...
       Run each notebook again in memory and compare every output with the
@@ -82,6 +86,21 @@ MIME_TAGS = {
 }
 ERROR_TAG = "raises-exception"  # nbclient's own name for "this cell fails"
 STDERR_TAG = "allow-stderr"
+NOTHING_TAG = "expect-nothing"
+EXPECT_ERROR_KEY = "expect_error"  # cell metadata: text the raised error must contain  # the cell is meant to show nothing
+SKIP_TAGS = ("skip-execution",)  # nbclient never runs such a cell
+# What a cell's shown value or printed text looks like when it holds an error
+# that nobody raised: an `Err(..)` as the cell's value, or an error message
+# printed to stdout.
+ERR_VALUE = re.compile(r"^\s*Err\(")
+STDOUT_ERROR = re.compile(r"^\s*(error|Error)(\[E\d+\])?:|panicked at")
+# A set-up cell: only evcxr commands (`:dep`, `:timing`), `use` lines and
+# comments. It cannot show a result, so it needs no tag.
+SETUP_LINE = re.compile(r"^\s*(:[a-z_]+\b.*|use\s[^;]*;|//.*)?\s*$")
+# A table cell that shows a number that is not one.
+HTML_NOT_A_NUMBER = re.compile(r"<t[dh][^>]*>\s*[-+]?(nan|inf|infinity)\s*%?\s*</t[dh]>", re.IGNORECASE)
+# Source that is code: a Rust statement or an evcxr command.
+LOOKS_LIKE_CODE = re.compile(r"^\s*(:dep|let |use |fn |println!|[A-Za-z_][A-Za-z0-9_:.]*\(.*\)\s*;?\s*$)", re.MULTILINE)
 PANIC = "panicked at"
 TIMING_LINE = re.compile(r"^Took \d+ms\s*$")
 TIMING_HTML = re.compile(r"^\s*(<span[^>]*>)?\s*Took \d+ms\s*(</span>)?\s*$")
@@ -275,10 +294,23 @@ def check_cell(cell, result: CellResult, reply_status: str | None, strict_stderr
         result.checks_passed += 1
 
     if ERROR_TAG in tags:
-        if errors or panics:
-            ok()
-        else:
+        expected = cell.metadata.get(EXPECT_ERROR_KEY)
+        said = "\n".join(
+            [plain(e.get("evalue", "")) for e in errors]
+            + [plain(l) for e in errors for l in e.get("traceback", [])]
+            + stderr_lines
+        )
+        if not (errors or panics):
             result.failures.append(f"tagged {ERROR_TAG} but raised no error and did not panic")
+        elif not isinstance(expected, str) or not expected.strip():
+            result.failures.append(
+                f"tagged {ERROR_TAG} without naming the message: set the cell's metadata "
+                f"{EXPECT_ERROR_KEY!r} to a piece of the expected error text"
+            )
+        elif expected not in said:
+            result.failures.append(f"raised an error, but not the expected one ({expected!r} not in its text)")
+        else:
+            ok()
     else:
         if errors:
             for e in errors:
@@ -299,23 +331,100 @@ def check_cell(cell, result: CellResult, reply_status: str | None, strict_stderr
         text = [l for l in stderr_lines if l.strip() and not TIMING_LINE.match(l)]
         if text and not panics and STDERR_TAG not in tags:
             what = f"stderr output (an Err from `?` shows only this way): {short(text[0].strip(), 120)!r}"
-            if strict_stderr:
-                result.failures.append(what + f"; tag the cell {STDERR_TAG} if it is meant")
-            else:
-                result.warnings.append(what)
-                ok()
+            # Strict always (issue 19): a warning let `--write` save a
+            # notebook whose cell failed. `--strict-stderr` is kept as a no-op.
+            result.failures.append(what + f"; tag the cell {STDERR_TAG} if it is meant")
         else:
             ok()
     for tag in sorted(tags):
-        if tag.startswith("expect-"):
+        if tag.startswith("expect-") and tag != NOTHING_TAG:
             mime = MIME_TAGS.get(tag)
             if mime is None:
-                result.failures.append(f"unknown tag {tag!r} (known: {', '.join(sorted(MIME_TAGS))})")
+                result.failures.append(f"unknown tag {tag!r} (known: {', '.join(sorted([*MIME_TAGS, NOTHING_TAG]))})")
             elif mime in mimes:
                 ok()
             else:
                 shown = ", ".join(sorted(mimes)) or "no rich output"
                 result.failures.append(f"tagged {tag} but produced no {mime} (got: {shown})")
+    check_shown_values(outputs, tags, mimes, result)
+
+
+def svg_is_empty(svg: str) -> bool:
+    """An SVG with no drawing in it: not XML, no <svg> root, or a root with no
+    child element other than metadata."""
+    import xml.etree.ElementTree as ET
+
+    try:
+        root = ET.fromstring(svg)
+    except ET.ParseError:
+        return True
+    if not root.tag.endswith("svg"):
+        return True
+    drawn = [c for c in root.iter() if c is not root and c.tag.split("}")[-1] not in ("title", "desc", "metadata", "defs", "style")]
+    return not drawn
+
+
+def is_setup_cell(source: str) -> bool:
+    return all(SETUP_LINE.match(line) for line in source.splitlines())
+
+
+def check_shown_values(outputs: list, tags: set, mimes: set, result: CellResult) -> None:
+    """What a cell shows must be what it declares, and hold no hidden error:
+    an Err(..) as the value, error text on stdout, an empty SVG, NaN or inf in
+    an HTML table; a cell declares its output with an expect-* tag (or
+    expect-nothing, or raises-exception)."""
+    stdout = plain("".join(
+        o.get("text", "") for o in outputs if o.get("output_type") == "stream" and o.get("name") == "stdout"
+    ))
+    rich = [o for o in outputs if o.get("output_type") in ("execute_result", "display_data") and not is_timing_output(o)]
+    if ERROR_TAG not in tags:
+        for o in rich:
+            text = o.get("data", {}).get("text/plain", "")
+            text = text if isinstance(text, str) else "".join(text)
+            if ERR_VALUE.match(plain(text)):
+                result.failures.append(f"the cell's value is an error: {short(plain(text).strip(), 120)!r}")
+        bad = [l for l in stdout.splitlines() if STDOUT_ERROR.search(l)]
+        if bad:
+            result.failures.append(f"error text on stdout: {short(bad[0].strip(), 120)!r}")
+    for o in rich:
+        data = o.get("data", {})
+        svg = data.get("image/svg+xml")
+        if svg is not None:
+            svg = svg if isinstance(svg, str) else "".join(svg)
+            if svg_is_empty(svg):
+                result.failures.append("an empty SVG (nothing drawn in it)")
+        html = data.get("text/html")
+        if html is not None:
+            html = html if isinstance(html, str) else "".join(html)
+            m = HTML_NOT_A_NUMBER.search(html)
+            if m:
+                result.failures.append(f"an HTML table shows a value that is not a number: {m.group(0)!r}")
+    declared = any(t.startswith("expect-") for t in tags) or ERROR_TAG in tags or is_setup_cell(result.source)
+    shown = bool(rich) or bool(stdout.strip())
+    if NOTHING_TAG in tags and rich:
+        result.failures.append(f"tagged {NOTHING_TAG} but shows {', '.join(sorted(mimes))}")
+    if not declared:
+        if shown:
+            result.warnings.append(f"declares no expected output: tag it expect-KIND or {NOTHING_TAG}")
+        else:
+            result.failures.append(
+                f"shows nothing and declares nothing: tag it {NOTHING_TAG} if that is meant, "
+                "or expect-KIND for what it should show"
+            )
+
+
+def check_notebook_cells(nb) -> list[str]:
+    """Failures of the notebook as written, before any cell runs: cells that
+    would never run (tagged to be skipped) and raw cells that hold code."""
+    problems = []
+    for index, cell in enumerate(nb.cells):
+        tags = set(cell.get("metadata", {}).get("tags", []))
+        skipped = sorted(tags.intersection(SKIP_TAGS))
+        if cell.get("cell_type") == "code" and skipped:
+            problems.append(f"cell {index}: tagged {skipped[0]}: it never runs, so nothing checks it")
+        if cell.get("cell_type") == "raw" and LOOKS_LIKE_CODE.search(cell.get("source", "")):
+            problems.append(f"cell {index}: a raw cell holds code ({short(first_line(cell.get('source', '')), 60)!r}): it never runs; make it a code cell")
+    return problems
 
 
 async def collect_late_streams(client, cell, msg_id, settle: float) -> None:
@@ -364,6 +473,11 @@ async def run_notebook(path: Path, args) -> Run:
     run.cold = prepare_build_dir(args.fresh)
     t_nb = time.monotonic()
     code_cells = [(i, c) for i, c in enumerate(nb.cells) if c.cell_type == "code" and c.source.strip()]
+    problems = check_notebook_cells(nb)
+    if problems:  # refused as written: no kernel is started
+        run.fatal = "; ".join(problems)
+        run.cells = [CellResult(index=i, source=c.source, failures=["not run"]) for i, c in code_cells]
+        return run
     for c in nb.cells:  # a cell that is not reached must not keep its old outputs
         if c.cell_type == "code":
             c.outputs = []

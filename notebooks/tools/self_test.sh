@@ -53,6 +53,15 @@ run() {
 
 bash "$NB_TOOLS/setup.sh" || { echo "self-test: setup failed"; echo "self-test: 0 passed, 1 failed"; exit 1; }
 
+# 0. Each kind of breakage, planted as cells with a kernel's outputs, fails
+# for its own reason (no kernel needed; notebooks/tools/planted.py) ---------
+planted_log="$work/planted.log"
+if "$ROOT/target/notebook-venv/bin/python" "$NB_TOOLS/planted.py" >"$planted_log" 2>&1; then
+  pass "planted breakages are caught ($(tail -1 "$planted_log"))"
+else
+  fail "planted breakages" "$planted_log"
+fi
+
 # 1. Broken notebooks fail, each for its own reason --------------------------
 run "compile error is an error output" 1 \
   "cell 1 \(.*\): error output: Error: mismatched types" -- execute "${fresh[@]}" "$T/compile_error.ipynb"
@@ -65,8 +74,8 @@ run "expect-svg without SVG fails" 1 \
   "cell 0 \(.*\): tagged expect-svg but produced no image/svg\+xml \(got: text/plain\)" -- execute "$T/missing_svg.ipynb"
 run "closing line counts a failed notebook" 1 \
   "^notebooks: 0 passed, 1 failed$" -- execute "$T/missing_svg.ipynb"
-run "Err from ? is a warning by default" 0 \
-  "warning: cell 0 \(.*\): stderr output \(an Err from \`\?\` shows only this way\): 'invalid digit" -- execute "$T/question_mark.ipynb"
+run "Err from ? fails without --strict-stderr" 1 \
+  "cell 0 \(.*\): stderr output \(an Err from \`\?\` shows only this way\): 'invalid digit" -- execute "$T/question_mark.ipynb"
 run "Err from ? fails with --strict-stderr" 1 \
   "cell 0 \(.*\): stderr output \(an Err from \`\?\` shows only this way\)" -- execute --strict-stderr "$T/question_mark.ipynb"
 

@@ -651,3 +651,7 @@ fn demo(a: DemoArgs) -> Result<DemoJob> {
         seed: a.seed,
     })
 }
+
+#[cfg(test)]
+#[path = "options_table_tests.rs"]
+mod options_table_tests;

@@ -14,6 +14,8 @@
 mod activation;
 mod forward;
 mod init;
+#[cfg(test)]
+mod kernel_value_tests;
 pub(crate) mod kernels;
 mod layer;
 mod perceptron;

@@ -12,6 +12,8 @@ mod engine;
 mod gradcheck;
 mod loss;
 mod options;
+#[cfg(test)]
+mod rules_tests;
 
 #[doc(hidden)]
 pub use gradcheck::check_gradients_in;
