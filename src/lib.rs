@@ -73,6 +73,7 @@ pub mod chart;
 mod cli;
 pub mod data;
 pub mod error;
+pub mod export;
 pub mod fit;
 pub mod model_file;
 pub mod network;
