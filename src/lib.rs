@@ -85,6 +85,7 @@ pub mod rng;
 pub mod train;
 pub mod validate;
 
+pub use cli::magic::{run, CommandError, CommandOutput};
 pub use error::{Error, ErrorKind, Result};
 pub use fit::{fit, FitOptions, Fitted, Model};
 pub use ndarray;
