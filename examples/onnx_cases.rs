@@ -58,7 +58,12 @@ fn inputs(data: &Dataset, seed: u64, missing: bool) -> ndarray::Array2<f64> {
     let mut out = ndarray::Array2::<f64>::zeros((n + RANDOM_ROWS, f));
     out.slice_mut(ndarray::s![..n, ..]).assign(&x);
     for j in 0..f {
-        let col: Vec<f64> = x.column(j).iter().copied().filter(|v| v.is_finite()).collect();
+        let col: Vec<f64> = x
+            .column(j)
+            .iter()
+            .copied()
+            .filter(|v| v.is_finite())
+            .collect();
         let lo = col.iter().copied().fold(f64::INFINITY, f64::min);
         let hi = col.iter().copied().fold(f64::NEG_INFINITY, f64::max);
         let pad = ((hi - lo) / 2.0).max(0.5);

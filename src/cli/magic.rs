@@ -131,6 +131,7 @@ impl CommandOutput {
                     if !rows.is_empty() {
                         h.push_str(&table(k, &["name", "value"], &rows));
                     }
+                    h.push_str(&nested_table(k, inner));
                 }
             }
         }
@@ -153,6 +154,38 @@ impl CommandOutput {
     pub fn evcxr_display(&self) {
         show("text/html", &self.to_html());
     }
+}
+
+/// A table of the entries of `map` that are objects themselves (one row per
+/// entry, one column per scalar field, in first-seen order): the metrics of
+/// a cross-validation, with their mean and interval. Empty when none is.
+fn nested_table(caption: &str, map: &serde_json::Map<String, Value>) -> String {
+    let mut columns: Vec<&str> = Vec::new();
+    for v in map.values() {
+        if let Value::Object(o) = v {
+            for (c, x) in o {
+                if scalar(x).is_some() && !columns.contains(&c.as_str()) {
+                    columns.push(c);
+                }
+            }
+        }
+    }
+    let rows: Vec<Vec<String>> = map
+        .iter()
+        .filter_map(|(name, v)| match v {
+            Value::Object(o) => Some(
+                std::iter::once(name.clone())
+                    .chain(columns.iter().map(|c| o.get(*c).and_then(scalar).unwrap_or_default()))
+                    .collect(),
+            ),
+            _ => None,
+        })
+        .collect();
+    if rows.is_empty() || columns.is_empty() {
+        return String::new();
+    }
+    let header: Vec<&str> = std::iter::once("name").chain(columns).collect();
+    table(caption, &header, &rows)
 }
 
 /// A JSON value as one table cell, when it is one (numbers in Rust's

@@ -2,9 +2,9 @@
 //! [`Job`] before any work starts (see the module docs of `cli`).
 
 use super::args::{
-    CheckArgs, Cli, Command, CvArgs, DemoArgs, DialectArgs, ExportOnnxArgs, FitArgs, FoldArgs, InspectArgs,
-    NestedArgs, NetArgs, PredictArgs, SearchArgs, SweepArgs, SweepMergeArgs, SweepStatusArgs,
-    SweepTrialArgs, TableArgs,
+    CheckArgs, Cli, Command, CvArgs, DemoArgs, DialectArgs, ExportOnnxArgs, FitArgs, FoldArgs,
+    InspectArgs, NestedArgs, NetArgs, PredictArgs, SearchArgs, SweepArgs, SweepMergeArgs,
+    SweepStatusArgs, SweepTrialArgs, TableArgs,
 };
 use super::charts;
 use super::paths::Outputs;

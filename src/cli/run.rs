@@ -8,8 +8,8 @@ use super::output::{
     summary_json, summary_text, table_json, table_text, Outcome,
 };
 use super::prepare::{
-    CheckJob, CvJob, DemoJob, ExportOnnxJob, FitJob, InspectJob, Job, MergeJob, NestedJob, PredictJob, StatusJob,
-    SweepJob, TrialJob, TrialOut, Trials,
+    CheckJob, CvJob, DemoJob, ExportOnnxJob, FitJob, InspectJob, Job, MergeJob, NestedJob,
+    PredictJob, StatusJob, SweepJob, TrialJob, TrialOut, Trials,
 };
 use super::progress::Progress;
 use crate::data::{Dataset, Target};

@@ -1069,8 +1069,8 @@ fn encode_model(model: &ExportModel, kind: Outputs, graph: &Graph) -> Message {
 
 #[cfg(test)]
 mod tests {
-    use crate::export::protobuf::decode::{fields, int, len_fields, strings, Value};
     use super::*;
+    use crate::export::protobuf::decode::{fields, int, len_fields, strings, Value};
 
     fn layer(inputs: usize, outputs: usize, seed: u64) -> Layer {
         // Exactly-f32 values (multiples of 1/64) so both precisions accept them.
@@ -1487,7 +1487,10 @@ mod tests {
 
         let mut m = regression_model();
         m.layers[1].biases[1] = 1e300;
-        refused(&m, "layer 2 bias 2 (counting from 1) is 1e300, beyond the f32 range");
+        refused(
+            &m,
+            "layer 2 bias 2 (counting from 1) is 1e300, beyond the f32 range",
+        );
     }
 
     #[test]

@@ -89,10 +89,10 @@ mod graph;
 mod protobuf;
 
 use crate::atomic;
+use crate::data::Scaling;
 use crate::error::{Error, Result};
 use crate::fit::Model;
 use crate::network::{Activation, Head, Precision};
-use crate::data::Scaling;
 use std::io::Write;
 use std::path::Path;
 
@@ -184,10 +184,7 @@ fn export_model(model: &Model) -> graph::ExportModel {
                 "table_fingerprint".into(),
                 provenance.table_fingerprint.clone(),
             ),
-            (
-                "library_version".into(),
-                provenance.library_version.clone(),
-            ),
+            ("library_version".into(), provenance.library_version.clone()),
         ],
         producer_version: env!("CARGO_PKG_VERSION").to_string(),
     }
