@@ -18,6 +18,9 @@ use std::fmt;
 use std::fmt::Write as _;
 use std::path::PathBuf;
 
+/// A chart a command wrote: its path and its SVG text.
+type Chart = (PathBuf, String);
+
 /// What one command line produced: the JSON object `--json` prints, the
 /// readable summary the binary prints, the SVG charts it wrote, and the
 /// model it saved (if it saved one), loaded back for further use.
@@ -175,7 +178,11 @@ fn nested_table(caption: &str, map: &serde_json::Map<String, Value>) -> String {
         .filter_map(|(name, v)| match v {
             Value::Object(o) => Some(
                 std::iter::once(name.clone())
-                    .chain(columns.iter().map(|c| o.get(*c).and_then(scalar).unwrap_or_default()))
+                    .chain(
+                        columns
+                            .iter()
+                            .map(|c| o.get(*c).and_then(scalar).unwrap_or_default()),
+                    )
                     .collect(),
             ),
             _ => None,
@@ -315,7 +322,7 @@ pub fn run(line: &str) -> std::result::Result<CommandOutput, CommandError> {
         progress: false,
     });
     let outcome = runner::run(job, &quiet).map_err(|e| fail(CliError::Failed(e).message()))?;
-    let read_back = || -> Result<(Option<Model>, Vec<(PathBuf, String)>)> {
+    let read_back = || -> Result<(Option<Model>, Vec<Chart>)> {
         let model = match &model_path {
             Some(p) if p.is_file() => Some(Model::load(p)?),
             _ => None,
