@@ -43,7 +43,7 @@
 //! | input scaling | `x' = (x - offset) / scale` in f64, column by column | `Sub`, `Div` (no node for `--scaling none`) |
 //! | f32 networks only | the scaled f64 value rounded to the nearest f32 | `Cast` to `float` |
 //! | each layer | `z = a W + b` | `MatMul`, `Add` |
-//! | hidden activation `sigmoid`, `tanh`, `relu` | as documented on [`Activation`](crate::network::Activation) | `Sigmoid`, `Tanh`, `Relu` |
+//! | hidden activation `sigmoid`, `tanh`, `relu` | as documented on [`Activation`] | `Sigmoid`, `Tanh`, `Relu` |
 //! | hidden activation `identity` | `f(z) = z` | none |
 //! | hidden activation `leaky_relu` (slope `s`) | `z` if `z > 0`, else `s z` | f32: `LeakyRelu` with `alpha = s` rounded to f32, as the f32 network rounds it; f64: `Greater`, `Mul`, `Where` (see below) |
 //! | head `softmax` | softmax over the outputs | `Softmax` (axis 1) |

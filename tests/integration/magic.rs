@@ -131,6 +131,9 @@ fn errors_are_the_binary_messages() {
     assert!(e.to_html().contains("--folds"));
     let e = stratanet::run("fit 'unclosed").unwrap_err();
     assert!(e.message().contains("not closed"), "{e}");
+    // An output is never an input (cli/paths.rs), for the export too.
+    let e = stratanet::run("export-onnx model.json --out ./model.json").unwrap_err();
+    assert!(e.message().contains("--out"), "{e}");
     let e = stratanet::run("fit --bogus").unwrap_err();
     assert!(e.message().contains("--bogus"), "{e}");
 }
