@@ -88,6 +88,7 @@ pub mod chart;
 mod cli;
 pub mod data;
 pub mod error;
+pub mod export;
 pub mod fit;
 pub mod model_file;
 pub mod network;
@@ -99,6 +100,7 @@ pub mod rng;
 pub mod train;
 pub mod validate;
 
+pub use cli::magic::{run, CommandError, CommandOutput};
 pub use error::{Error, ErrorKind, Result};
 pub use fit::{fit, FitOptions, Fitted, Model};
 pub use ndarray;

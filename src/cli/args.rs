@@ -79,6 +79,12 @@ pub(crate) enum Command {
         after_help = "Example:\n  stratanet sweep-status plan.jsonl trials/ --tasks 20"
     )]
     SweepStatus(SweepStatusArgs),
+    /// Write a saved model as an ONNX file (opset 13) for other runtimes: input scaling and fill values as operators, probabilities and the class as outputs.
+    #[command(
+        name = "export-onnx",
+        after_help = "Example:\n  stratanet export-onnx parts-model.json --out parts-model.onnx"
+    )]
+    ExportOnnx(ExportOnnxArgs),
     /// The whole job on the embedded demo data: fit, cross-validate, compare, chart.
     #[command(after_help = "Example:\n  stratanet demo --out stratanet-demo")]
     Demo(DemoArgs),
@@ -401,6 +407,18 @@ pub(crate) struct PredictArgs {
     pub output: OutputArgs,
 }
 
+/// `stratanet export-onnx`.
+#[derive(Debug, Args)]
+pub(crate) struct ExportOnnxArgs {
+    /// The saved model.
+    pub model: PathBuf,
+    /// Where to write the ONNX file.
+    #[arg(long, value_name = "PATH")]
+    pub out: PathBuf,
+    #[command(flatten)]
+    pub output: OutputArgs,
+}
+
 /// `stratanet inspect`.
 #[derive(Debug, Args)]
 pub(crate) struct InspectArgs {
@@ -675,6 +693,7 @@ impl Command {
             Command::SweepTrial(a) => &a.output,
             Command::SweepMerge(a) => &a.output,
             Command::SweepStatus(a) => &a.output,
+            Command::ExportOnnx(a) => &a.output,
             Command::Demo(a) => &a.output,
         }
     }

@@ -24,6 +24,7 @@ mod args;
 mod charts;
 mod demo;
 mod errors;
+pub(crate) mod magic;
 mod output;
 mod paths;
 mod prepare;

@@ -2,9 +2,9 @@
 //! [`Job`] before any work starts (see the module docs of `cli`).
 
 use super::args::{
-    CheckArgs, Cli, Command, CvArgs, DemoArgs, DialectArgs, FitArgs, FoldArgs, ImportanceArgs,
-    InspectArgs, NestedArgs, NetArgs, PredictArgs, SearchArgs, SweepArgs, SweepMergeArgs,
-    SweepStatusArgs, SweepTrialArgs, TableArgs,
+    CheckArgs, Cli, Command, CvArgs, DemoArgs, DialectArgs, ExportOnnxArgs, FitArgs, FoldArgs,
+    ImportanceArgs, InspectArgs, NestedArgs, NetArgs, PredictArgs, SearchArgs, SweepArgs,
+    SweepMergeArgs, SweepStatusArgs, SweepTrialArgs, TableArgs,
 };
 use super::charts;
 use super::paths::Outputs;
@@ -31,6 +31,7 @@ pub(crate) enum Job {
     SweepTrial(TrialJob),
     SweepMerge(MergeJob),
     SweepStatus(StatusJob),
+    ExportOnnx(ExportOnnxJob),
     Demo(DemoJob),
 }
 
@@ -55,6 +56,11 @@ pub(crate) struct PredictJob {
     pub model: PathBuf,
     pub data: PathBuf,
     pub rows: FeatureOptions,
+    pub out: PathBuf,
+}
+
+pub(crate) struct ExportOnnxJob {
+    pub model: PathBuf,
     pub out: PathBuf,
 }
 
@@ -174,6 +180,7 @@ pub(crate) fn prepare(cli: Cli) -> Result<Job> {
         Command::SweepTrial(a) => Job::SweepTrial(sweep_trial(a)?),
         Command::SweepMerge(a) => Job::SweepMerge(sweep_merge(a)?),
         Command::SweepStatus(a) => Job::SweepStatus(sweep_status(a)?),
+        Command::ExportOnnx(a) => Job::ExportOnnx(export_onnx(a)?),
         Command::Demo(a) => Job::Demo(demo(a)?),
     })
 }
@@ -395,6 +402,14 @@ fn predict(a: PredictArgs) -> Result<PredictJob> {
         rows: rows(a.ignore_extra, a.missing, a.dialect)?,
         model: a.model,
         data: a.data,
+        out: a.out,
+    })
+}
+
+fn export_onnx(a: ExportOnnxArgs) -> Result<ExportOnnxJob> {
+    Outputs::default().file("out", &a.out).check(&[&a.model])?;
+    Ok(ExportOnnxJob {
+        model: a.model,
         out: a.out,
     })
 }

@@ -9,8 +9,8 @@ use super::output::{
     table_text, Outcome,
 };
 use super::prepare::{
-    CheckJob, CvJob, DemoJob, FitJob, ImportanceJob, InspectJob, Job, MergeJob, NestedJob,
-    PredictJob, StatusJob, SweepJob, TrialJob, TrialOut, Trials,
+    CheckJob, CvJob, DemoJob, ExportOnnxJob, FitJob, ImportanceJob, InspectJob, Job, MergeJob,
+    NestedJob, PredictJob, StatusJob, SweepJob, TrialJob, TrialOut, Trials,
 };
 use super::progress::Progress;
 use crate::atomic::write_text;
@@ -48,6 +48,7 @@ pub(crate) fn run(job: Job, progress: &Progress) -> Result<Outcome> {
         Job::SweepTrial(j) => sweep_trial(j),
         Job::SweepMerge(j) => sweep_merge(j),
         Job::SweepStatus(j) => sweep_status(j),
+        Job::ExportOnnx(j) => export_onnx(j),
         Job::Demo(j) => demo(j, progress),
     }
 }
@@ -315,6 +316,40 @@ fn predict(j: PredictJob) -> Result<Outcome> {
         text,
         "wrote predictions for {rows} rows to {}\nCaution: {CAUTION}",
         j.out.display()
+    );
+    Ok(Outcome { json, text })
+}
+
+fn export_onnx(j: ExportOnnxJob) -> Result<Outcome> {
+    let model = crate::fit::Model::load(&j.model)?;
+    let bytes = crate::export::to_onnx(&model)?;
+    crate::atomic::write_file(&j.out, |w| {
+        std::io::Write::write_all(w, &bytes).map_err(|e| Error::io(&j.out, "writing", e))
+    })?;
+    let network = model.network();
+    let outputs = if model.is_classifier() {
+        "probabilities, label"
+    } else {
+        "values"
+    };
+    let json = json!({
+        "command": "export-onnx",
+        "model": j.model,
+        "out": j.out,
+        "bytes": bytes.len(),
+        "opset": crate::export::OPSET,
+        "ir_version": crate::export::IR_VERSION,
+        "inputs": model.feature_names().len(),
+        "outputs": outputs,
+        "precision": network.precision().to_string(),
+    });
+    let text = format!(
+        "wrote {} ({} bytes): ONNX opset {}, input `features` ({} columns, double), outputs {outputs}, {} network\nnot in the file: any temperature or cost-based decision (the model file holds neither)",
+        j.out.display(),
+        bytes.len(),
+        crate::export::OPSET,
+        model.feature_names().len(),
+        network.precision(),
     );
     Ok(Outcome { json, text })
 }

@@ -19,6 +19,7 @@ mod honest;
 mod hostile;
 mod iris;
 mod leak_free;
+mod magic;
 mod model_files;
 mod nothing_lost;
 mod portable;
