@@ -100,6 +100,7 @@ pub mod rng;
 pub mod train;
 pub mod validate;
 
+#[cfg(feature = "cli")]
 pub use cli::magic::{run, CommandError, CommandOutput};
 pub use error::{Error, ErrorKind, Result};
 pub use fit::{fit, FitOptions, Fitted, Model};

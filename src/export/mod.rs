@@ -73,10 +73,11 @@
 //! `table_fingerprint` and `library_version`.
 //!
 //! # What is not exported, and what is refused
-//! - The model file holds no temperature or cost matrix, so the exported
-//!   probabilities are the network's own and the class is the arg-max (or
-//!   `p >= 0.5`) rule; a calibration or a cost-based decision chosen by
-//!   cross-validation must be applied by the caller.
+//! - A model with a fitted temperature or a decision rule (costs or a
+//!   threshold) is refused: the graph does not yet carry them, and a graph
+//!   whose probabilities or decisions differ from the model's would be a
+//!   silent change. Export a model fitted without them and apply the
+//!   calibration or decision in the caller.
 //! - Without imputation a `NaN` input is not replaced: it travels through
 //!   the arithmetic (the model itself refuses such a row with an error; a
 //!   runtime cannot raise one), so do not pass `NaN` to such a graph.
@@ -112,6 +113,18 @@ pub const IR_VERSION: i64 = graph::IR_VERSION;
 /// cannot be expressed (see "What is not exported" in the module docs); the
 /// message says what and why.
 pub fn to_onnx(model: &Model) -> Result<Vec<u8>> {
+    if let Some(t) = model.temperature() {
+        return Err(Error::input(
+            "ONNX export",
+            format!("the model divides its output sums by a fitted temperature ({:.4}), which the graph does not carry yet; export a model fitted with calibration none and divide the sums in the caller", t.value),
+        ));
+    }
+    if let Some(rule) = model.decision_rule() {
+        return Err(Error::input(
+            "ONNX export",
+            format!("the model decides by {}, which the graph does not carry yet; export a model without a decision rule and apply it in the caller", rule.describe(model.target_names())),
+        ));
+    }
     graph::to_onnx_bytes(&export_model(model)).map_err(|e| Error::input("ONNX export", e))
 }
 
