@@ -449,6 +449,7 @@ fn write_out_of_fold(data: &Dataset, cv: &CrossValidation, path: &Path) -> Resul
     let mut lines = 0;
     for repeat in 0..cv.repeats() {
         let oof = cv.out_of_fold(repeat)?;
+        let predicted = crate::validate::metrics::most_probable_classes(oof.predictions.view());
         for row in 0..data.n_rows() {
             let mut rec = vec![(row + 1).to_string()];
             if let Some(ids) = &data.ids {
@@ -460,11 +461,7 @@ fn write_out_of_fold(data: &Dataset, cv: &CrossValidation, path: &Path) -> Resul
             match (data.labels(), &data.target) {
                 (Some(labels), _) => {
                     rec.push(names[labels[row]].clone());
-                    let best = p
-                        .iter()
-                        .enumerate()
-                        .fold(0, |b, (i, v)| if *v > p[b] { i } else { b });
-                    rec.push(names[best].clone());
+                    rec.push(names[predicted[row]].clone());
                     rec.extend(p.iter().map(|v| format!("{v}")));
                 }
                 (None, Target::Values { values, .. }) => {

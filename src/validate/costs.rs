@@ -12,7 +12,7 @@
 //! (Nadeau & Bengio 2003).
 
 use super::cv::CrossValidation;
-use super::stats::{corrected_resampled_t_test_named, Range, ResampledTTest, Summary};
+use super::stats::{Range, ResampledTTest, Summary};
 use crate::data::Dataset;
 use crate::error::{Error, Result};
 use crate::fit::CostMatrix;
@@ -105,21 +105,12 @@ impl CrossValidation {
         } else {
             Range::Unbounded
         };
-        let differences: Vec<f64> = fold_costs
-            .iter()
-            .zip(&baseline_costs)
-            .map(|(m, b)| m - b)
-            .collect();
-        let against_baseline = if differences.len() >= 2 {
-            Some(corrected_resampled_t_test_named(
-                &differences,
-                n_train.round().max(1.0) as usize,
-                n_test.round().max(1.0) as usize,
-                ("the model's decisions", "the baseline's"),
-            )?)
-        } else {
-            None
-        };
+        let against_baseline = super::cv::against_baseline(
+            &fold_costs,
+            &baseline_costs,
+            (n_train, n_test),
+            ("the model's decisions", "the baseline's"),
+        )?;
         Ok(CostSummary {
             summary: Summary::for_cross_validation(&fold_costs, n_train, n_test, range)?,
             baseline: Summary::for_cross_validation(&baseline_costs, n_train, n_test, range)?,

@@ -691,21 +691,12 @@ pub(crate) fn summarise_folds(folds: &[FoldResult]) -> Result<Vec<MetricSummary>
                 .iter()
                 .map(|f| f.baseline.scores.value(metric))
                 .collect::<Result<Vec<f64>>>()?;
-            let differences: Vec<f64> = values
-                .iter()
-                .zip(&baseline_values)
-                .map(|(m, b)| m - b)
-                .collect();
-            let against_baseline = if differences.len() >= 2 {
-                Some(corrected_resampled_t_test_named(
-                    &differences,
-                    n_train.round().max(1.0) as usize,
-                    n_test.round().max(1.0) as usize,
-                    ("the model", "the baseline"),
-                )?)
-            } else {
-                None
-            };
+            let against_baseline = against_baseline(
+                &values,
+                &baseline_values,
+                (n_train, n_test),
+                ("the model", "the baseline"),
+            )?;
             Ok(MetricSummary {
                 metric,
                 summary: Summary::for_cross_validation(&values, n_train, n_test, metric.range())?,
@@ -721,4 +712,25 @@ pub(crate) fn summarise_folds(folds: &[FoldResult]) -> Result<Vec<MetricSummary>
             })
         })
         .collect()
+}
+
+/// The corrected resampled t-test of per-fold `model` scores against the
+/// baseline's on the same folds (`None` with fewer than two folds);
+/// `rows` are the mean training and held-out rows of a fold.
+pub(crate) fn against_baseline(
+    model: &[f64],
+    baseline: &[f64],
+    rows: (f64, f64),
+    names: (&str, &str),
+) -> Result<Option<ResampledTTest>> {
+    let differences: Vec<f64> = model.iter().zip(baseline).map(|(m, b)| m - b).collect();
+    if differences.len() < 2 {
+        return Ok(None);
+    }
+    Ok(Some(corrected_resampled_t_test_named(
+        &differences,
+        rows.0.round().max(1.0) as usize,
+        rows.1.round().max(1.0) as usize,
+        names,
+    )?))
 }
