@@ -664,6 +664,14 @@ impl Model {
                 format!("{} ({})", p.epochs_run, p.best_epoch),
             ],
             vec!["library".into(), format!("stratanet {}", p.library_version)],
+            vec![
+                "arithmetic".into(),
+                match p.fused_multiply_add {
+                    None => "portable: the same bits on any CPU".into(),
+                    Some(true) => "fast, with fused multiply-add: the same bits only on CPUs that fuse".into(),
+                    Some(false) => "fast, without fused multiply-add on this CPU: the same bits only on CPUs that do not fuse".into(),
+                },
+            ],
         ];
         if let Some(v) = p.best_validation_loss {
             rows.push(vec!["best validation loss".into(), f(v)]);

@@ -466,6 +466,11 @@ pub(crate) fn fit_checked(
             baseline_training_loss: baseline.training_loss,
             baseline_validation_loss: baseline.validation_loss,
             warnings: warnings.iter().map(ToString::to_string).collect(),
+            fused_multiply_add: options
+                .training
+                .arithmetic
+                .is_fast()
+                .then(crate::network::fast_mode_fuses),
         },
         temperature,
         decision,

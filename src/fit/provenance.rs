@@ -34,4 +34,9 @@ pub struct Provenance {
     pub baseline_validation_loss: Option<f64>,
     /// What the fit flagged ([`Fitted::warnings`](super::Fitted::warnings)).
     pub warnings: Vec<String>,
+    /// In the fast arithmetic mode, whether the CPU that trained the model
+    /// fused its multiply-adds ([`fast_mode_fuses`](crate::network::fast_mode_fuses)):
+    /// a rerun gives the same bits only on a CPU that does the same. `None`
+    /// in the portable mode, whose bits depend on no property of the CPU.
+    pub fused_multiply_add: Option<bool>,
 }

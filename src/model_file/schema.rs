@@ -200,6 +200,9 @@ pub(super) struct ProvenanceV1 {
     pub baseline_validation_loss: Option<f64>,
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub warnings: Vec<String>,
+    /// Fast arithmetic only: whether the training CPU fused multiply-adds.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub fused_multiply_add: Option<bool>,
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
@@ -420,6 +423,7 @@ impl File<OptionsV2> {
                 baseline_training_loss: p.baseline_training_loss,
                 baseline_validation_loss: p.baseline_validation_loss,
                 warnings: p.warnings.clone(),
+                fused_multiply_add: p.fused_multiply_add,
             },
             network,
             temperature: model.temperature.as_ref().map(|t| TemperatureV2 {
@@ -1048,6 +1052,7 @@ impl<O: OptionsSchema> File<O> {
                 baseline_training_loss: p.baseline_training_loss,
                 baseline_validation_loss: p.baseline_validation_loss,
                 warnings: p.warnings,
+                fused_multiply_add: p.fused_multiply_add,
             },
         })
     }

@@ -234,3 +234,32 @@ fn files_over_the_size_limit_are_refused_before_reading() {
         )
     );
 }
+
+// The fast mode's bits depend on whether the CPU fuses multiply-adds
+// (IEEE 754-2008 fusedMultiplyAdd rounds once, a product and a sum twice),
+// so a fast model records it; a portable model records nothing about the
+// CPU, so that its file is the same on every machine.
+#[test]
+fn the_fast_mode_records_whether_the_cpu_fused() {
+    let portable = small_model(Precision::F64);
+    assert_eq!(portable.provenance().fused_multiply_add, None);
+    assert!(!portable.to_json().unwrap().contains("fused_multiply_add"));
+    let text = "a,colour,y\n0,red,n\n0,blue,y\n1,red,y\n1,blue,y\n0.1,red,n\n0,red,n\n0.9,blue,y\n1,red,y\n";
+    let data = CsvOptions::new("y").read_str(text, "or.csv").unwrap();
+    let mut options = FitOptions::default()
+        .hidden(&[3])
+        .early_stopping(None)
+        .epochs(5);
+    options.training.arithmetic = crate::network::Arithmetic::Fast;
+    let fast = fit(&data, &options, &mut seeded_rng(3))
+        .unwrap()
+        .into_model();
+    let fused = crate::network::fast_mode_fuses();
+    assert_eq!(fast.provenance().fused_multiply_add, Some(fused));
+    let json = fast.to_json().unwrap();
+    assert!(
+        json.contains(&format!("\"fused_multiply_add\": {fused}")),
+        "{json}"
+    );
+    assert_eq!(Model::from_json(&json, "m.json").unwrap(), fast);
+}

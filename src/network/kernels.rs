@@ -238,6 +238,13 @@ pub(crate) fn available() -> Vec<Isa> {
     out
 }
 
+/// Does the fast mode fuse multiply-adds on this CPU? The fast mode's bits
+/// depend on this alone (see [`Arithmetic`]); the portable mode's on nothing
+/// about the CPU.
+pub fn fast_mode_fuses() -> bool {
+    isa().has_fma()
+}
+
 /// The instruction set the kernels run on with this CPU (`avx512`,
 /// `avx2+fma`, `avx2` or `sse2`), for benchmarks and the cross-CPU check.
 /// The portable mode gives the same bits on each; the fast mode fuses

@@ -26,7 +26,7 @@ pub(crate) use activation::sigmoid;
 pub use activation::{Activation, Head};
 pub(crate) use forward::{Forward, Params, EVAL_CHUNK};
 pub use init::Init;
-pub use kernels::{kernel_name, Arithmetic};
+pub use kernels::{fast_mode_fuses, kernel_name, Arithmetic};
 #[doc(hidden)]
 pub use kernels::{matrix_product_f32, matrix_product_f64};
 pub use layer::Layer;
