@@ -94,7 +94,9 @@ pub enum Scores {
 }
 
 impl Scores {
-    /// Scores a model on a labelled table.
+    /// Scores a model on a labelled table. A classifier with a decision rule
+    /// that chooses among its classes is scored on the classes it chooses
+    /// ([`Model::decide`]); otherwise on the most probable class.
     ///
     /// # Errors
     /// When the table's features or target do not fit the model.
@@ -104,7 +106,29 @@ impl Scores {
             Target::Classes { .. } => model.predict_probabilities(data.x())?,
             Target::Values { .. } => model.predict(data.x())?,
         };
-        let scores = Scores::from_predictions(&data.target, predictions.view())?;
+        // A model whose decision rule chooses among its classes (a
+        // threshold, or costs whose decisions are the classes) is scored on
+        // the classes it would choose, not the most probable ones. Costs
+        // with other decisions (say "inspect") leave the class metrics on
+        // the most probable class; their cost is reported on its own.
+        let decided = match (&data.target, model.decision_rule()) {
+            (Target::Classes { .. }, Some(_)) => {
+                let d = model.decide(data.x())?;
+                (d.names == model.target_names()).then_some(d.chosen)
+            }
+            _ => None,
+        };
+        let scores = match (&data.target, decided) {
+            (Target::Classes { labels, names }, Some(chosen)) => Scores::Classification(
+                ClassificationMetrics::from_probabilities_and_decisions(
+                    labels,
+                    predictions.view(),
+                    &chosen,
+                )?
+                .with_class_names(names)?,
+            ),
+            _ => Scores::from_predictions(&data.target, predictions.view())?,
+        };
         Ok((scores, predictions))
     }
 

@@ -23,6 +23,8 @@ pub use stats::{
 mod compare;
 pub mod costs;
 pub(crate) mod cv;
+#[cfg(test)]
+mod decision_scores_tests;
 mod holdout;
 pub mod importance;
 pub(crate) mod nested;

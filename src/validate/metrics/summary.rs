@@ -115,9 +115,25 @@ impl ClassificationMetrics {
     /// # Errors
     /// As [`log_loss`](super::log_loss).
     pub fn from_probabilities(truth: &[usize], probabilities: ArrayView2<f64>) -> Result<Self> {
-        let n_classes = check_probabilities("classification metrics", truth, probabilities)?;
         let predicted = most_probable_classes(probabilities);
-        let mut summary = ClassificationMetrics::from_labels(truth, &predicted, n_classes)?;
+        ClassificationMetrics::from_probabilities_and_decisions(truth, probabilities, &predicted)
+    }
+
+    /// All headline metrics, when the predicted classes come from a decision
+    /// rule (a probability threshold or a cost matrix) rather than the most
+    /// probable class: the confusion matrix and the metrics read from it use
+    /// `predicted`; log loss, Brier score and AUC use the probabilities.
+    ///
+    /// # Errors
+    /// As [`log_loss`](super::log_loss); `predicted` of another length than
+    /// `truth`, or naming a class the probabilities do not have.
+    pub fn from_probabilities_and_decisions(
+        truth: &[usize],
+        probabilities: ArrayView2<f64>,
+        predicted: &[usize],
+    ) -> Result<Self> {
+        let n_classes = check_probabilities("classification metrics", truth, probabilities)?;
+        let mut summary = ClassificationMetrics::from_labels(truth, predicted, n_classes)?;
         summary.log_loss = Some(log_loss(truth, probabilities)?);
         summary.brier = Some(brier_score(truth, probabilities)?);
         let auc = if n_classes == 2 {
