@@ -56,6 +56,10 @@
 //! ```
 //!
 //! `"hidden_activation": "leaky_relu"` comes with `"leaky_relu_slope"`.
+//! A model trained in the fast arithmetic mode adds
+//! `"fused_multiply_add": true` (or `false`) to its provenance: whether the
+//! training CPU fused its multiply-adds, on which the fast mode's bits depend
+//! (see [`Arithmetic`](crate::network::Arithmetic)).
 //! A regression model has `"is_classifier": false` and `"outputs"` (output
 //! names) instead of `"classes"`. `training_options` holds every
 //! [`FitOptions`](crate::FitOptions) field flat, each in the text form its
