@@ -306,6 +306,7 @@ pub(crate) fn fit_checked(
     let table_fingerprint = data.fingerprint();
     let table_rows = data.n_rows();
     let table_source = data.source.clone();
+    let table_part = data.part();
     let ids = data
         .ids
         .as_ref()
@@ -466,6 +467,7 @@ pub(crate) fn fit_checked(
             baseline_training_loss: baseline.training_loss,
             baseline_validation_loss: baseline.validation_loss,
             warnings: warnings.iter().map(ToString::to_string).collect(),
+            table_part,
         },
         temperature,
         decision,

@@ -24,7 +24,9 @@ mod compare;
 pub mod costs;
 pub(crate) mod cv;
 mod holdout;
+pub mod holdout_ledger;
 pub mod importance;
+pub mod key_results;
 pub(crate) mod nested;
 pub mod out_of_fold;
 mod search;
@@ -38,6 +40,7 @@ pub use cv::{
     FoldResult, MetricSummary, Scores, MAX_FOLD_FITS,
 };
 pub use holdout::{HoldOut, HoldOutScore};
+pub use key_results::{Compared, KeyResult, KeyResults, KeyValue, Reproduction};
 pub use nested::{nested_cross_validate, NestedChoice, NestedCrossValidation};
 pub use out_of_fold::OutOfFold;
 pub use search::{Candidates, Grid, Halving, RandomSearch, Search, MAX_CONFIGURATIONS};
