@@ -12,8 +12,8 @@ use crate::fit::{Fitted, Model};
 use crate::network::Network;
 use crate::train::TrainingReport;
 use crate::validate::{
-    ClassificationMetrics, Comparison, CrossValidation, HoldOutScore, RegressionMetrics, Scores,
-    Sweep, SweepTable,
+    ClassificationMetrics, Comparison, CrossValidation, HoldOutScore, KeyResults,
+    RegressionMetrics, Reproduction, Scores, Sweep, SweepTable,
 };
 use std::fmt::Write as _;
 
@@ -202,7 +202,7 @@ impl Dataset {
     pub fn to_html(&self) -> String {
         let mut rows = vec![
             vec!["source".into(), self.source.clone()],
-            vec!["rows".into(), self.n_rows().to_string()],
+            vec!["rows".into(), self.rows_described()],
             vec!["features".into(), self.feature_names.join(", ")],
             vec!["target".into(), self.target_name.clone()],
         ];
@@ -452,6 +452,89 @@ impl HoldOutScore {
     }
 }
 
+impl KeyResults {
+    /// An HTML table of the entries, with the checksum a saved file carries.
+    pub fn to_html(&self) -> String {
+        let rows: Vec<Vec<String>> = self
+            .results
+            .iter()
+            .map(|r| vec![r.name.clone(), r.value.to_string()])
+            .collect();
+        let mut h = table(
+            &format!("Key results of {}", self.analysis),
+            &["result", "value"],
+            &rows,
+        );
+        h.push_str(&notes(&[match self.checksum() {
+            Ok(c) => format!("Checksum of these results (SHA-256): {c}."),
+            Err(e) => format!("These results cannot be saved: {e}."),
+        }]));
+        h
+    }
+
+    /// Shows the table in a notebook.
+    pub fn evcxr_display(&self) {
+        show("text/html", &self.to_html());
+    }
+}
+
+impl Reproduction {
+    /// The verdict as a headline ("reproduced: same" or "reproduced:
+    /// differs", in words and colour), then every entry side by side.
+    pub fn to_html(&self) -> String {
+        let (colour, border) = if self.is_same() {
+            ("#1b5e20", "#2e7d32")
+        } else {
+            ("#8a1c00", "#c62828")
+        };
+        let mut h = format!(
+            "<p style=\"font-family:sans-serif;font-size:15px;color:{colour};border-left:5px solid {border};padding:4px 10px;margin:4px 0 8px 0\"><b>{}</b></p>",
+            escape(&self.verdict())
+        );
+        let rows: Vec<Vec<String>> = self
+            .rows
+            .iter()
+            .map(|r| {
+                let side = |v: &Option<crate::validate::KeyValue>| {
+                    v.as_ref().map_or("(none)".to_string(), ToString::to_string)
+                };
+                vec![
+                    r.name.clone(),
+                    side(&r.expected),
+                    side(&r.got),
+                    if r.is_same() {
+                        "same".to_string()
+                    } else {
+                        "DIFFERS".to_string()
+                    },
+                ]
+            })
+            .collect();
+        h.push_str(&table(
+            &format!(
+                "{} against the author's results of {}",
+                self.rerun, self.analysis
+            ),
+            &["result", "author's", "rerun's", ""],
+            &rows,
+        ));
+        let mut n = vec![
+            "Compared exactly: fingerprints character for character, numbers bit for bit (numbers are shown in their shortest exact form)."
+                .to_string(),
+        ];
+        if let Some(c) = &self.results_checksum {
+            n.push(format!("The author's results checksum (SHA-256): {c}."));
+        }
+        h.push_str(&notes(&n));
+        h
+    }
+
+    /// Shows the verdict in a notebook.
+    pub fn evcxr_display(&self) {
+        show("text/html", &self.to_html());
+    }
+}
+
 impl CrossValidation {
     /// An HTML table: each metric's mean, spread, interval and fold values.
     pub fn to_html(&self) -> String {
@@ -473,14 +556,17 @@ impl CrossValidation {
             })
             .collect();
         let caption = format!(
-            "{}-fold cross-validation{} on {} rows",
+            "{}-fold cross-validation{} on {}",
             self.cv.folds,
             if self.cv.repeats > 1 {
                 format!(", {} repeats", self.cv.repeats)
             } else {
                 String::new()
             },
-            self.n_rows
+            match self.table_part {
+                Some(part) => part.describe(self.n_rows),
+                None => format!("{} rows", self.n_rows),
+            }
         );
         let mut h = table(
             &caption,
@@ -649,7 +735,7 @@ impl Model {
             vec!["seed".into(), self.seed.to_string()],
             vec![
                 "table".into(),
-                format!("{} ({} rows)", p.table_source, p.table_rows),
+                format!("{} ({})", p.table_source, p.table_rows_described()),
             ],
             vec![
                 "table fingerprint (SHA-256)".into(),
@@ -664,6 +750,11 @@ impl Model {
                 format!("{} ({})", p.epochs_run, p.best_epoch),
             ],
             vec!["library".into(), format!("stratanet {}", p.library_version)],
+            vec![
+                "model file (SHA-256)".into(),
+                self.fingerprint()
+                    .unwrap_or_else(|e| format!("none: the model cannot be stored ({e})")),
+            ],
             vec![
                 "arithmetic".into(),
                 match p.fused_multiply_add {

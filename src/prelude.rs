@@ -11,4 +11,6 @@ pub use crate::fit::{fit, FitOptions, Model};
 pub use crate::network::Activation;
 pub use crate::report::fit_csv;
 pub use crate::rng::seeded_rng;
-pub use crate::validate::{compare_configurations, cross_validate, CvOptions, HoldOut, Metric};
+pub use crate::validate::{
+    compare_configurations, cross_validate, CvOptions, HoldOut, KeyResults, Metric,
+};

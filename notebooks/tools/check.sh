@@ -2,9 +2,14 @@
 # Runs nbcheck.py (the headless notebook checker) with the project's own
 # Jupyter environment; runs setup.sh first when that is missing or stale.
 #
-#   bash notebooks/tools/check.sh execute notebooks/ [--write]
-#   bash notebooks/tools/check.sh reproduce notebooks/
+#   bash notebooks/tools/check.sh execute notebooks/ [--write] [--save-to DIR]
+#   bash notebooks/tools/check.sh reproduce notebooks/ [--save-to DIR]
 #   bash notebooks/tools/check.sh normalise --check notebooks/
+#
+# execute and reproduce run the notebooks in an empty target/notebook-scratch,
+# compare every file they write there with its committed counterpart byte for
+# byte, and fail when the run changed the working tree (git status); see
+# notebooks/tools/README.md. --save-to keeps the executed notebooks.
 #
 # Works from any folder; relative notebook paths are taken from the caller's.
 set -euo pipefail

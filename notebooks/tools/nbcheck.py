@@ -20,10 +20,22 @@ Run it through notebooks/tools/check.sh, which sets up the environment
       `skip-execution` and a raw cell holding code. With --write, a notebook
       that passes is saved back, normalised.
 
-  nbcheck.py reproduce NOTEBOOK...
+  nbcheck.py reproduce NOTEBOOK... [--save-to DIR]
       Run each notebook again in memory and compare every output with the
       committed one (text, HTML and SVG byte for byte); print the cells that
       differ and exit non-zero on any difference or failed check.
+
+  Both commands run the notebooks in an empty scratch folder
+  (target/notebook-scratch; a folder already there is parked in
+  target/nbcheck and put back afterwards), compare every file the notebooks
+  wrote there with its committed counterpart (NAME written under
+  target/notebook-scratch/STEM/ against NAME beside STEM.ipynb, when git
+  tracks it), byte for byte, and fail when the run changed the working tree
+  (`git status --porcelain` and the content of every file it lists, before
+  and after; with --write, the notebooks written are expected to change).
+  The files a check's notebooks wrote stay in target/nbcheck/scratch.
+  --save-to DIR saves each executed notebook (normalised) in DIR, and the
+  files they wrote in DIR/written, for a reviewer to open.
 
   nbcheck.py normalise NOTEBOOK... [--check]
       Rewrite notebooks in the normalised form without running them (or, with
@@ -53,6 +65,7 @@ import json
 import os
 import re
 import shutil
+import subprocess
 import sys
 import tempfile
 import time
@@ -74,6 +87,15 @@ BUILD_DIR = Path(
 ).resolve()
 LOCK_FILE = BUILD_DIR.with_name(BUILD_DIR.name + ".lock")
 KERNEL_LOG = ROOT / "target" / "nbcheck" / "kernel.log"
+# Where notebooks write (`../target/notebook-scratch/STEM/...` from
+# notebooks/). A check runs them in an empty one, so a rerun starts where a
+# reviewer's fresh clone starts (no hold-out ledger with earlier looks, no
+# file of an earlier run); the folder a person's own runs left is parked
+# meanwhile and put back.
+SCRATCH = ROOT / "target" / "notebook-scratch"
+PARKED_SCRATCH = ROOT / "target" / "nbcheck" / "scratch-parked"
+LAST_SCRATCH = ROOT / "target" / "nbcheck" / "scratch"
+INTERRUPTED_SCRATCH = ROOT / "target" / "nbcheck" / "scratch-interrupted"
 
 MIME_TAGS = {
     "expect-svg": "image/svg+xml",
@@ -662,6 +684,199 @@ def compare(committed, executed) -> list[str]:
     return diffs
 
 
+
+# --------------------------------------------------------------------------
+# The scratch folder, written files and the working tree
+# --------------------------------------------------------------------------
+
+
+class FreshScratch:
+    """Runs the notebooks of one check in an empty SCRATCH: a folder already
+    there (a person's own runs) is parked and put back at the end; what the
+    check's notebooks wrote is kept in LAST_SCRATCH. A check that was killed
+    left its parked folder behind: it is put back first, and said so."""
+
+    def __init__(self, scratch: Path = SCRATCH, parked: Path = PARKED_SCRATCH,
+                 last: Path = LAST_SCRATCH, interrupted: Path = INTERRUPTED_SCRATCH):
+        self.scratch, self.parked, self.last, self.interrupted = scratch, parked, last, interrupted
+
+    def __enter__(self):
+        self.parked.parent.mkdir(parents=True, exist_ok=True)
+        if self.parked.exists():
+            if self.scratch.exists():
+                shutil.rmtree(self.interrupted, ignore_errors=True)
+                os.replace(self.scratch, self.interrupted)
+            os.replace(self.parked, self.scratch)
+            out(f"nbcheck: an interrupted check had parked {rel(self.scratch)} in {rel(self.parked)}; put it back"
+                + (f" (that check's own files: {rel(self.interrupted)})" if self.interrupted.exists() else ""))
+        if self.scratch.exists():
+            os.replace(self.scratch, self.parked)
+            out(f"nbcheck: {rel(self.scratch)} parked in {rel(self.parked)} while the notebooks run "
+                "in an empty one; it is put back at the end")
+        self.scratch.mkdir(parents=True)
+        return self
+
+    def __exit__(self, *exc):
+        shutil.rmtree(self.last, ignore_errors=True)
+        if self.scratch.exists():
+            os.replace(self.scratch, self.last)
+        if self.parked.exists():
+            os.replace(self.parked, self.scratch)
+        return False
+
+
+def git(*args: str, cwd: Path = ROOT) -> subprocess.CompletedProcess:
+    return subprocess.run(["git", *args], cwd=cwd, capture_output=True)
+
+
+def in_git_work_tree(path: Path) -> bool:
+    folder = path if path.is_dir() else path.parent
+    try:
+        r = git("rev-parse", "--is-inside-work-tree", cwd=folder)
+    except (FileNotFoundError, NotADirectoryError):
+        return False
+    return r.returncode == 0 and r.stdout.strip() == b"true"
+
+
+def is_committed(path: Path) -> bool:
+    """Tracked by git (in a git work tree); elsewhere, present."""
+    if not path.is_file():
+        return False
+    if in_git_work_tree(path):
+        return git("ls-files", "--error-unmatch", "--", path.name, cwd=path.parent).returncode == 0
+    return True
+
+
+def first_byte_difference(a: bytes, b: bytes) -> str:
+    n = next((i for i, (x, y) in enumerate(zip(a, b)) if x != y), min(len(a), len(b)))
+    line = a[:n].count(b"\n") + 1
+    return f"first difference at byte {n + 1} (line {line}); committed {len(a)} bytes, written {len(b)} bytes"
+
+
+def compare_written(scratch: Path, notebooks: list[Path]) -> tuple[list[str], list[str], int]:
+    """Every file under scratch/STEM/ against its committed counterpart beside
+    STEM.ipynb (same relative path), byte for byte. Returns (lines that
+    report a match, lines that report a difference, files without a
+    counterpart)."""
+    folders = {nb.stem: nb.parent for nb in notebooks}
+    same, differ, alone = [], [], 0
+    if not scratch.is_dir():
+        return same, differ, alone
+    for f in sorted(p for p in scratch.rglob("*") if p.is_file()):
+        parts = f.relative_to(scratch).parts
+        if len(parts) < 2 or parts[0] not in folders:
+            alone += 1
+            continue
+        counterpart = folders[parts[0]].joinpath(*parts[1:])
+        if not is_committed(counterpart):
+            alone += 1
+            continue
+        written, committed = f.read_bytes(), counterpart.read_bytes()
+        shown = f"{'/'.join(parts)} against the committed {rel(counterpart)}"
+        if written == committed:
+            same.append(f"  same:    {shown}")
+        else:
+            differ.append(f"  DIFFERS: {shown}: {first_byte_difference(committed, written)}")
+    return same, differ, alone
+
+
+def worktree_state(root: Path = ROOT) -> dict[str, str] | None:
+    """What `git status --porcelain` lists, each path with the SHA-256 of its
+    content now (so a file changed again while already modified counts too).
+    None outside a git work tree."""
+    if not in_git_work_tree(root):
+        return None
+    r = git("status", "--porcelain=v1", "-z", "--untracked-files=all", cwd=root)
+    if r.returncode != 0:
+        return None
+    state: dict[str, str] = {}
+    entries = r.stdout.split(b"\0")
+    i = 0
+    while i < len(entries):
+        entry = entries[i].decode("utf-8", "replace")
+        i += 1
+        if len(entry) < 4:
+            continue
+        code, path = entry[:2], entry[3:]
+        if code[0] in "RC":  # a rename or copy: the source path follows
+            i += 1
+        file = root / path
+        digest = hashlib.sha256(file.read_bytes()).hexdigest() if file.is_file() else "absent"
+        state[path] = f"{code.strip()} {digest}"
+    return state
+
+
+def worktree_changes(before: dict[str, str] | None, after: dict[str, str] | None,
+                     expected: set[str] = frozenset()) -> list[str]:
+    """The paths whose status or content changed between two states, except
+    `expected` (notebooks that --write saved)."""
+    if before is None or after is None:
+        return []
+    changed = []
+    for path in sorted(set(before) | set(after)):
+        if path in expected or before.get(path) == after.get(path):
+            continue
+        status = (after.get(path) or "clean").split(" ")[0] or "?"
+        was = (before.get(path) or "clean").split(" ")[0] or "?"
+        changed.append(f"  {path}: {was} before the run, {status} after" if was != status
+                       else f"  {path}: {status}, and its content changed during the run")
+    return changed
+
+
+def check_save_dir(path: Path) -> Path:
+    """--save-to must not write over the repository's tracked files: a folder
+    outside the repository, or one git ignores inside it."""
+    path = path.resolve()
+    try:
+        inside = path.relative_to(ROOT)
+    except ValueError:
+        return path
+    if in_git_work_tree(ROOT) and git("check-ignore", "-q", "--", str(inside) + "/x").returncode != 0:
+        sys.exit(f"nbcheck: --save-to {path}: a folder git does not ignore, inside the repository; "
+                 "saved notebooks would show as changes or replace tracked ones: choose a folder "
+                 "outside the repository or under target/")
+    return path
+
+
+def finish_check(args, notebooks: list[Path], before, expected: set[str]) -> int:
+    """After the notebooks ran (inside FreshScratch): the written files, the
+    working tree, and --save-to. Returns the number of failures."""
+    bad = 0
+    same, differ, alone = compare_written(SCRATCH, notebooks)
+    total = len(same) + len(differ) + alone
+    out(f"written files: {total} in {rel(SCRATCH)} (kept in {rel(LAST_SCRATCH)}); "
+        f"{len(same) + len(differ)} with a committed counterpart, compared byte for byte; {alone} without one")
+    for line in same + differ:
+        out(line)
+    if differ:
+        bad += len(differ)
+        out(f"FAIL written files: {len(differ)} differ from the committed ones (if the change is meant, "
+            f"copy them from {rel(LAST_SCRATCH)} over the committed files and rerun)")
+    changes = worktree_changes(before, worktree_state(), expected)
+    if before is None:
+        out("working tree: not a git work tree; not checked")
+    elif changes:
+        bad += len(changes)
+        out(f"FAIL working tree: the run changed {len(changes)} path(s) (`git status --porcelain`); "
+            "notebooks must write only under target/notebook-scratch:")
+        for line in changes:
+            out(line)
+    else:
+        out("working tree: unchanged by the run" + (" (apart from the notebooks written)" if expected else ""))
+    if args.save_to is not None and SCRATCH.exists():
+        dest = args.save_to / "written"
+        shutil.rmtree(dest, ignore_errors=True)
+        shutil.copytree(SCRATCH, dest)
+        out(f"saved: the executed notebooks in {args.save_to}, the files they wrote in {dest}")
+    return bad
+
+
+def save_executed(args, path: Path, nb) -> None:
+    if args.save_to is not None:
+        args.save_to.mkdir(parents=True, exist_ok=True)
+        write_atomically(args.save_to / path.name, notebook_text(nb))
+
+
 # --------------------------------------------------------------------------
 # Commands
 # --------------------------------------------------------------------------
@@ -695,57 +910,69 @@ def take_lock():
 
 def cmd_execute(args) -> int:
     notebooks = expand(args.notebooks)
+    args.save_to = check_save_dir(args.save_to) if args.save_to else None
     _lock = take_lock()
     passed = failed = 0
     timings = []
-    for path in notebooks:
-        out(f"== execute {rel(path)}")
-        run = asyncio.run(run_notebook(path, args))
-        report_run(run)
-        if run.first_cell_seconds is not None:
-            timings.append((rel(path), run.first_cell_seconds, run.cold))
-        if run.passed:
-            passed += 1
-            if args.write:
-                write_atomically(path, notebook_text(run.nb))
-                out(f"  wrote {rel(path)} (normalised)")
-        else:
-            failed += 1
-            if args.write:
-                out(f"  not written: it failed")
-    summary(timings)
-    out(f"notebooks: {passed} passed, {failed} failed")
-    return 0 if failed == 0 else 1
+    written: set[str] = set()
+    before = worktree_state()
+    with FreshScratch():
+        for path in notebooks:
+            out(f"== execute {rel(path)}")
+            run = asyncio.run(run_notebook(path, args))
+            report_run(run)
+            save_executed(args, path, run.nb)
+            if run.first_cell_seconds is not None:
+                timings.append((rel(path), run.first_cell_seconds, run.cold))
+            if run.passed:
+                passed += 1
+                if args.write:
+                    write_atomically(path, notebook_text(run.nb))
+                    written.add(rel(path))
+                    out(f"  wrote {rel(path)} (normalised)")
+            else:
+                failed += 1
+                if args.write:
+                    out(f"  not written: it failed")
+        summary(timings)
+        bad = finish_check(args, notebooks, before, written)
+    out(f"notebooks: {passed} passed, {failed} failed" + (f"; {bad} failure(s) of the whole run above" if bad else ""))
+    return 0 if failed == 0 and not bad else 1
 
 
 def cmd_reproduce(args) -> int:
     notebooks = expand(args.notebooks)
+    args.save_to = check_save_dir(args.save_to) if args.save_to else None
     _lock = take_lock()
     passed = failed = 0
     timings = []
-    for path in notebooks:
-        out(f"== reproduce {rel(path)}")
-        committed = nbformat.read(path, as_version=4)
-        normalise_notebook(committed)
-        run = asyncio.run(run_notebook(path, args))
-        diffs = compare(committed, run.nb)
-        n_diff = sum(1 for d in diffs if d.startswith("  ") and not d.startswith("      "))
-        report_run(run, extra_failures=n_diff)
-        if run.first_cell_seconds is not None:
-            timings.append((rel(path), run.first_cell_seconds, run.cold))
-        if diffs:
-            out(f"  {n_diff} output(s) differ from the committed notebook:")
-            for d in diffs:
-                out(d)
-        else:
-            out("  every output matches the committed notebook")
-        if run.passed and not diffs:
-            passed += 1
-        else:
-            failed += 1
-    summary(timings)
-    out(f"notebooks: {passed} passed, {failed} failed")
-    return 0 if failed == 0 else 1
+    before = worktree_state()
+    with FreshScratch():
+        for path in notebooks:
+            out(f"== reproduce {rel(path)}")
+            committed = nbformat.read(path, as_version=4)
+            normalise_notebook(committed)
+            run = asyncio.run(run_notebook(path, args))
+            save_executed(args, path, run.nb)
+            diffs = compare(committed, run.nb)
+            n_diff = sum(1 for d in diffs if d.startswith("  ") and not d.startswith("      "))
+            report_run(run, extra_failures=n_diff)
+            if run.first_cell_seconds is not None:
+                timings.append((rel(path), run.first_cell_seconds, run.cold))
+            if diffs:
+                out(f"  {n_diff} output(s) differ from the committed notebook:")
+                for d in diffs:
+                    out(d)
+            else:
+                out("  every output matches the committed notebook")
+            if run.passed and not diffs:
+                passed += 1
+            else:
+                failed += 1
+        summary(timings)
+        bad = finish_check(args, notebooks, before, set())
+    out(f"notebooks: {passed} passed, {failed} failed" + (f"; {bad} failure(s) of the whole run above" if bad else ""))
+    return 0 if failed == 0 and not bad else 1
 
 
 def cmd_normalise(args) -> int:
@@ -791,6 +1018,9 @@ def main(argv=None) -> int:
                             "(or set NBCHECK_STRICT_STDERR=1)")
         p.add_argument("--fresh", action="store_true",
                        help=f"delete evcxr's build folder ({BUILD_DIR}, or $NBCHECK_BUILD_DIR) first: a cold :dep compile")
+        p.add_argument("--save-to", type=Path, metavar="DIR",
+                       help="save each executed notebook (normalised) in DIR, and the files the notebooks wrote "
+                            "in DIR/written, for a reviewer to open (DIR outside the repository, or under target/)")
 
     p = sub.add_parser("execute", help="run notebooks and check their outputs")
     common(p)

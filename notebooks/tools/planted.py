@@ -9,7 +9,10 @@ breakage passes.
 
 from __future__ import annotations
 
+import shutil
+import subprocess
 import sys
+import tempfile
 from pathlib import Path
 
 import nbformat
@@ -100,6 +103,78 @@ def notebook_cases():
     ]
 
 
+def run_level_cases():
+    """The checks of a whole run, without a kernel: a tracked file changed
+    during the run, and a written file that differs from its committed
+    counterpart. Each case: (name, failures found, a piece of the expected
+    failure or None: must pass)."""
+    cases = []
+    tracked = {"notebooks/parts-model.json": "M 1111"}
+    cases.append(("good: an unchanged working tree",
+                  nbcheck.worktree_changes(tracked, dict(tracked)), None))
+    cases.append(("a tracked file changed by the run",
+                  nbcheck.worktree_changes({}, {"notebooks/parts-model.json": "M 2222"}),
+                  "notebooks/parts-model.json: clean before the run, M after"))
+    cases.append(("a modified file changed again during the run",
+                  nbcheck.worktree_changes(tracked, {"notebooks/parts-model.json": "M 3333"}),
+                  "its content changed during the run"))
+    cases.append(("an untracked file left by the run",
+                  nbcheck.worktree_changes({}, {"notebooks/stray.txt": "?? 4444"}),
+                  "notebooks/stray.txt: clean before the run, ?? after"))
+    cases.append(("good: a notebook that --write saved",
+                  nbcheck.worktree_changes({}, {"notebooks/a.ipynb": "M 5555"}, {"notebooks/a.ipynb"}), None))
+    work = Path(tempfile.mkdtemp(prefix="nbcheck-planted-"))
+    try:
+        notebooks, scratch = work / "notebooks", work / "scratch"
+        (scratch / "a").mkdir(parents=True)
+        notebooks.mkdir()
+        (notebooks / "a.ipynb").write_text("{}")
+        (notebooks / "model.json").write_text('{"w": 1}\n')
+        (notebooks / "results.json").write_text('{"r": 1}\n')
+        (scratch / "a" / "model.json").write_text('{"w": 2}\n')
+        (scratch / "a" / "results.json").write_text('{"r": 1}\n')
+        (scratch / "a" / "chart.svg").write_text("<svg/>")
+        same, differ, alone = nbcheck.compare_written(scratch, [notebooks / "a.ipynb"])
+        cases.append(("a written file that differs from the committed one", differ,
+                      "DIFFERS: a/model.json against the committed"))
+        cases.append(("good: a written file equal to the committed one", [] if (len(same), alone) == (1, 1)
+                      else [f"expected 1 same and 1 without a counterpart, got {len(same)} and {alone}"], None))
+        # The scratch folder of a check: a person's folder is parked and put
+        # back; the notebooks see an empty one; what they wrote is kept.
+        own, parked, last, interrupted = (work / n for n in ("own", "parked", "last", "interrupted"))
+        own.mkdir()
+        (own / "ledger.json").write_text("earlier looks")
+        seen = []
+        with nbcheck.FreshScratch(own, parked, last, interrupted):
+            seen = sorted(p.name for p in own.iterdir())
+            (own / "written.txt").write_text("by the check")
+        problems = []
+        if seen:
+            problems.append(f"the notebooks saw {seen} in their scratch folder")
+        if not (own / "ledger.json").is_file() or (own / "written.txt").exists():
+            problems.append("the person's scratch folder was not put back as it was")
+        if not (last / "written.txt").is_file():
+            problems.append("the check's written files were not kept")
+        cases.append(("good: a check parks the scratch folder and puts it back", problems, None))
+        # A real git work tree: a tracked file rewritten between two states.
+        if shutil.which("git"):
+            repo = work / "repo"
+            repo.mkdir()
+            g = ["git", "-c", "user.name=planted", "-c", "user.email=planted@example.invalid"]
+            subprocess.run(g + ["init", "-q"], cwd=repo, check=True)
+            (repo / "tracked.txt").write_text("committed\n")
+            subprocess.run(g + ["add", "tracked.txt"], cwd=repo, check=True)
+            subprocess.run(g + ["commit", "-q", "-m", "x"], cwd=repo, check=True)
+            before = nbcheck.worktree_state(repo)
+            (repo / "tracked.txt").write_text("rewritten by a notebook\n")
+            cases.append(("a tracked file rewritten in a real git work tree",
+                          nbcheck.worktree_changes(before, nbcheck.worktree_state(repo)),
+                          "tracked.txt: clean before the run, M after"))
+    finally:
+        shutil.rmtree(work, ignore_errors=True)
+    return cases
+
+
 def main() -> int:
     bad = 0
 
@@ -115,7 +190,10 @@ def main() -> int:
         report(name, verdict(c).failures, want)
     for name, nb, want in notebook_cases():
         report(name, nbcheck.check_notebook_cells(nb), want)
-    total = len(CASES) + len(notebook_cases())
+    run_cases = run_level_cases()
+    for name, failures, want in run_cases:
+        report(name, failures, want)
+    total = len(CASES) + len(notebook_cases()) + len(run_cases)
     print(f"planted: {total - bad} passed, {bad} failed")
     return 1 if bad else 0
 

@@ -27,7 +27,7 @@ done
 work=$(mktemp -d "${TMPDIR:-/tmp}/nbcheck-self-test.XXXXXX")
 cleanup() {
   rm -rf "$work"
-  rm -f "$ROOT/notebooks/.nbcheck-self-test-smoke.ipynb"
+  rm -f "$ROOT/notebooks/.nbcheck-self-test-smoke.ipynb" "$T/stray-output.txt"
 }
 trap cleanup EXIT
 
@@ -101,6 +101,27 @@ if cmp -s "$T/good.ipynb" "$work/tampered/good.ipynb"; then
   fail "tampered SVG is caught" "$work/tamper.log"
 else
   run "tampered SVG is caught" 1 "cell 1 \(.*\) image/svg\+xml differs" -- reproduce "$work/tampered/good.ipynb"
+fi
+
+# 3b. A run that changes the working tree fails, though every notebook passes
+# and reproduces: writes_beside.ipynb writes a file beside itself (removed
+# afterwards). And --save-to keeps the executed notebooks for a reviewer.
+rm -f "$T/stray-output.txt"
+run "a file written beside a notebook fails the run" 1 \
+  "^FAIL working tree: the run changed 1 path\(s\)" -- reproduce "$T/writes_beside.ipynb"
+if grep -q "stray-output.txt: clean before the run, ?? after" "$work"/a_file_written_beside*.log; then
+  pass "the changed path is named"
+else
+  fail "the changed path is not named" "$(ls "$work"/a_file_written_beside*.log | head -1)"
+fi
+rm -f "$T/stray-output.txt"
+run "reproduce --save-to keeps the executed notebook" 0 "^saved: the executed notebooks in " \
+  -- reproduce --save-to "$work/saved" "$T/good.ipynb"
+if [ -f "$work/saved/good.ipynb" ]; then
+  pass "the saved notebook is there ($work/saved/good.ipynb)"
+else
+  echo "no $work/saved/good.ipynb" >"$work/saved.log"
+  fail "the saved notebook is missing" "$work/saved.log"
 fi
 
 # 4. The smoke notebook uses the crate: passes, reproduces, rewrites identically.

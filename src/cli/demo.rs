@@ -26,7 +26,12 @@ const DEMO_CAUTION: &str = "A model fitted here supports, and never replaces, qu
 
 /// The files the demo writes directly into its folder (charts go into
 /// `charts/`).
-const DEMO_FILES: [&str; 3] = ["parts.csv", "parts-model.json", "summary.html"];
+const DEMO_FILES: [&str; 4] = [
+    "parts.csv",
+    "parts-model.json",
+    "summary.html",
+    "holdout-ledger.json",
+];
 
 /// Refuses a folder the demo would spoil: it must be absent, empty, or
 /// hold an earlier demo's output (a `summary.html`), so that the table it
@@ -78,6 +83,10 @@ pub(crate) fn demo(out: &Path, seed: u64, progress: &Progress) -> Result<Outcome
         .read_str(DEMO_PARTS_CSV, "demo-data/parts.csv")?;
     let mut rng = seeded_rng(seed);
     let (development, held_out) = HoldOut::split(&data, 0.2, &mut rng)?;
+    // The looks at the held-out rows are counted in a file beside the
+    // model, so a rerun into this folder says it is not the first look.
+    let ledger_path = out.join("holdout-ledger.json");
+    let held_out = held_out.with_ledger(&ledger_path)?;
     let say = |s: &str| progress.say(s);
     let observed = |mut o: FitOptions| {
         o.training.observer = progress.observer();
@@ -187,6 +196,7 @@ pub(crate) fn demo(out: &Path, seed: u64, progress: &Progress) -> Result<Outcome
             "summary": summary,
             "model": model_path,
             "data": data_path,
+            "ledger": ledger_path,
             "charts": files,
         },
         "cv": {
@@ -204,6 +214,7 @@ pub(crate) fn demo(out: &Path, seed: u64, progress: &Progress) -> Result<Outcome
         "test": {
             "rows": score.rows,
             "times_scored": score.times_scored,
+            "ledger": ledger_path,
             "accuracy": test_metrics.accuracy,
             "balanced_accuracy": test_metrics.balanced_accuracy,
             "macro_f1": test_metrics.macro_f1,
@@ -239,8 +250,9 @@ pub(crate) fn demo(out: &Path, seed: u64, progress: &Progress) -> Result<Outcome
     );
     let _ = writeln!(
         text,
-        "chosen: {chosen_name}; held-out accuracy {:.3} (scored once)",
-        test_metrics.accuracy
+        "chosen: {chosen_name}; held-out accuracy {:.3} ({})",
+        test_metrics.accuracy,
+        score.caution()
     );
     for w in &warnings {
         let _ = writeln!(text, "warning: {w}");
@@ -252,6 +264,11 @@ pub(crate) fn demo(out: &Path, seed: u64, progress: &Progress) -> Result<Outcome
         summary.display()
     );
     let _ = writeln!(text, "  {}", model_path.display());
+    let _ = writeln!(
+        text,
+        "  {}  (counts the looks at the held-out rows)",
+        ledger_path.display()
+    );
     let _ = writeln!(text, "  {} charts in {}", files.len(), charts_dir.display());
     let _ = writeln!(
         text,

@@ -1394,6 +1394,7 @@ fn build_dataset(raw: RawTable, opts: &CsvOptions) -> Result<Dataset> {
         missing_cells,
         ids,
         report: Some(Arc::new(report)),
+        part: None,
     })
 }
 

@@ -2,6 +2,7 @@
 //! encoding and its [`Target`].
 
 use super::rows::{DecimalMark, Delimiter};
+use super::split::TablePart;
 use crate::error::{Error, Message, Result};
 use ndarray::{Array2, ArrayView2, Axis};
 use std::sync::Arc;
@@ -319,6 +320,10 @@ pub struct Dataset {
     pub(crate) ids: Option<RowIds>,
     /// How the table was read (CSV tables only).
     pub(crate) report: Option<Arc<ReadReport>>,
+    /// Which part of a larger table this is, when a hold-out split made it
+    /// (never carried over by [`Dataset::select`]: a selection of a part is
+    /// another set of rows).
+    pub(crate) part: Option<TablePart>,
 }
 
 impl std::fmt::Debug for Dataset {
@@ -451,6 +456,7 @@ impl Dataset {
             missing_cells: 0,
             ids: None,
             report: None,
+            part: None,
         })
     }
 
@@ -546,6 +552,22 @@ impl Dataset {
         self.report.as_deref().map_or(&[], |r| &r.warnings[..])
     }
 
+    /// Which part of a larger table this is: the development subset or the
+    /// held-out set of a [`HoldOut::split`](crate::validate::HoldOut::split);
+    /// `None` for a whole table (or any other selection of rows).
+    pub fn part(&self) -> Option<TablePart> {
+        self.part
+    }
+
+    /// The rows in words: "600 rows", or for a part of a hold-out split
+    /// "480 of 600 rows: development subset; 120 held out".
+    pub fn rows_described(&self) -> String {
+        match self.part {
+            Some(part) => part.describe(self.n_rows()),
+            None => format!("{} rows", self.n_rows()),
+        }
+    }
+
     /// Number of rows (samples).
     pub fn n_rows(&self) -> usize {
         self.features.nrows()
@@ -607,6 +629,7 @@ impl Dataset {
             missing_cells,
             ids: self.ids.as_ref().map(|i| i.select(rows)),
             report: self.report.clone(),
+            part: None,
         }
     }
 

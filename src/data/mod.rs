@@ -32,6 +32,7 @@ pub use rows::{
 pub use scale::{Scaler, Scaling};
 pub use scored_rows::ScoredRows;
 pub use split::{
-    kfold, random_split, repeated_stratified_folds, stratified_folds, stratified_split, Fold, Split,
+    kfold, random_split, repeated_stratified_folds, stratified_folds, stratified_split, Fold,
+    Split, TablePart,
 };
 pub use summary::{ColumnSummary, TableSummary};

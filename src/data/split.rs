@@ -33,6 +33,48 @@ pub struct Fold {
     pub test: Vec<usize>,
 }
 
+/// Which part of a larger table a table is, when it is one: the
+/// development subset or the held-out set that
+/// [`HoldOut::split`](crate::validate::HoldOut::split) made. A count of rows
+/// on its own ("480 rows") would hide that the file had more; this says how
+/// many more and where they went.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum TablePart {
+    /// The rows left for fitting and every choice after a hold-out split.
+    Development {
+        /// Rows in the whole table the split was made from.
+        of_rows: usize,
+    },
+    /// The rows set aside for one final score.
+    HeldOut {
+        /// Rows in the whole table the split was made from.
+        of_rows: usize,
+    },
+}
+
+impl TablePart {
+    /// Rows in the whole table the part was taken from.
+    pub fn of_rows(&self) -> usize {
+        match *self {
+            TablePart::Development { of_rows } | TablePart::HeldOut { of_rows } => of_rows,
+        }
+    }
+
+    /// One line for a part of `rows` rows, for example "480 of 600 rows:
+    /// development subset; 120 held out".
+    pub fn describe(&self, rows: usize) -> String {
+        let rest = self.of_rows().saturating_sub(rows);
+        match self {
+            TablePart::Development { of_rows } => {
+                format!("{rows} of {of_rows} rows: development subset; {rest} held out")
+            }
+            TablePart::HeldOut { of_rows } => {
+                format!("{rows} of {of_rows} rows: held-out set; the other {rest} are the development subset")
+            }
+        }
+    }
+}
+
 fn check_share(name: &str, f: f64) -> Result<()> {
     if !(0.0..1.0).contains(&f) || !f.is_finite() {
         return Err(Error::option(name, f, "must be at least 0 and below 1"));

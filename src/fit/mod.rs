@@ -306,6 +306,7 @@ pub(crate) fn fit_checked(
     let table_fingerprint = data.fingerprint();
     let table_rows = data.n_rows();
     let table_source = data.source.clone();
+    let table_part = data.part();
     let ids = data
         .ids
         .as_ref()
@@ -471,6 +472,7 @@ pub(crate) fn fit_checked(
                 .arithmetic
                 .is_fast()
                 .then(crate::network::fast_mode_fuses),
+            table_part,
         },
         temperature,
         decision,

@@ -1,5 +1,7 @@
 //! Where a model came from: [`Provenance`].
 
+use crate::data::TablePart;
+
 /// Where a model came from: the library, the table and a summary of training.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Provenance {
@@ -39,4 +41,19 @@ pub struct Provenance {
     /// a rerun gives the same bits only on a CPU that does the same. `None`
     /// in the portable mode, whose bits depend on no property of the CPU.
     pub fused_multiply_add: Option<bool>,
+    /// Which part of a larger table the training table was (the
+    /// development subset of a [`HoldOut::split`](crate::validate::HoldOut::split)),
+    /// so that [`Provenance::table_rows`] is never read as the whole file.
+    pub table_part: Option<TablePart>,
+}
+
+impl Provenance {
+    /// The training table's rows in words: "600 rows", or "480 of 600 rows:
+    /// development subset; 120 held out".
+    pub fn table_rows_described(&self) -> String {
+        match self.table_part {
+            Some(part) => part.describe(self.table_rows),
+            None => format!("{} rows", self.table_rows),
+        }
+    }
 }

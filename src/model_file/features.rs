@@ -154,6 +154,7 @@ impl FeatureTable {
             missing_cells: self.missing_cells,
             ids: self.ids,
             report: None,
+            part: None,
         })
     }
 }

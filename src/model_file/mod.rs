@@ -55,6 +55,14 @@
 //! }
 //! ```
 //!
+//! A model fitted on one part of a table (the development subset of a
+//! [`HoldOut::split`](crate::validate::HoldOut::split)) has
+//! `"table_part": {"role": "development", "of_rows": 600}` in its
+//! provenance (`"held_out"` for the other part), so `"table_rows"` is
+//! never read as the whole file; like the other optional parts of version
+//! 2, it is absent when it does not apply, and a version-1 file holding it
+//! is refused.
+//!
 //! `"hidden_activation": "leaky_relu"` comes with `"leaky_relu_slope"`.
 //! A model trained in the fast arithmetic mode adds
 //! `"fused_multiply_add": true` (or `false`) to its provenance: whether the
@@ -177,6 +185,25 @@ impl Model {
     pub fn to_json(&self) -> Result<String> {
         let bytes = to_bytes(self, "serialising a model")?;
         Ok(String::from_utf8(bytes).expect("serde_json writes UTF-8"))
+    }
+
+    /// The model's fingerprint: the SHA-256 (FIPS 180-4) of its model-file
+    /// text, in hex. It is the SHA-256 of the bytes [`Model::save`] writes,
+    /// so `sha256sum model.json` gives the same value for a file this
+    /// library saved; any change to a weight, the scaler, the options or
+    /// the provenance changes it. Two models with one fingerprint predict
+    /// the same, bit for bit.
+    ///
+    /// # Errors
+    /// As [`Model::save`], without the writing (a model that cannot be
+    /// stored has no file text to fingerprint).
+    pub fn fingerprint(&self) -> Result<String> {
+        use sha2::{Digest, Sha256};
+        let bytes = to_bytes(self, "fingerprinting a model")?;
+        Ok(Sha256::digest(&bytes)
+            .iter()
+            .map(|b| format!("{b:02x}"))
+            .collect())
     }
 
     /// A model from model-file text; `name` stands for the file in messages.

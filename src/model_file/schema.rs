@@ -6,7 +6,7 @@
 
 use super::options_schema::{OptionsV1, OptionsV2};
 use crate::data::rows::CellRules;
-use crate::data::{ColumnEncoding, DecimalMark, Imputer, Scaler, Scaling};
+use crate::data::{ColumnEncoding, DecimalMark, Imputer, Scaler, Scaling, TablePart};
 use crate::fit::{
     ChosenThreshold, CostMatrix, DecisionRule, FitOptions, Model, Provenance, Temperature,
     ThresholdTarget,
@@ -203,6 +203,26 @@ pub(super) struct ProvenanceV1 {
     /// Fast arithmetic only: whether the training CPU fused multiply-adds.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub fused_multiply_add: Option<bool>,
+    /// Version 2: which part of a larger table the training table was
+    /// (a hold-out split's development subset); absent for a whole table.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub table_part: Option<TablePartV2>,
+}
+
+/// Which part of a larger table the training table was, as files hold it.
+#[derive(Debug, Clone, Copy, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub(super) struct TablePartV2 {
+    pub role: TablePartRoleV2,
+    /// Rows in the whole table the part was taken from.
+    pub of_rows: usize,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub(super) enum TablePartRoleV2 {
+    Development,
+    HeldOut,
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
@@ -424,6 +444,13 @@ impl File<OptionsV2> {
                 baseline_validation_loss: p.baseline_validation_loss,
                 warnings: p.warnings.clone(),
                 fused_multiply_add: p.fused_multiply_add,
+                table_part: p.table_part.map(|part| TablePartV2 {
+                    role: match part {
+                        TablePart::Development { .. } => TablePartRoleV2::Development,
+                        TablePart::HeldOut { .. } => TablePartRoleV2::HeldOut,
+                    },
+                    of_rows: part.of_rows(),
+                }),
             },
             network,
             temperature: model.temperature.as_ref().map(|t| TemperatureV2 {
@@ -508,12 +535,13 @@ impl<O: OptionsSchema> File<O> {
                 || self.table.is_some()
                 || self.temperature.is_some()
                 || self.decision.is_some()
+                || self.provenance.table_part.is_some()
                 || self
                     .columns
                     .iter()
                     .any(|c| matches!(c, ColumnV1::MissingIndicator { .. })))
         {
-            return Err("the file is version 1 but holds parts of version 2 (\"imputer\", \"target_scaler\", \"table\", \"temperature\", \"decision\" or a missing_indicator column)".into());
+            return Err("the file is version 1 but holds parts of version 2 (\"imputer\", \"target_scaler\", \"table\", \"temperature\", \"decision\", \"table_part\" or a missing_indicator column)".into());
         }
         let n = self.feature_names.len();
         if let Some(i) = &self.imputer {
@@ -853,6 +881,14 @@ impl<O: OptionsSchema> File<O> {
                 "\"provenance\": \"best_validation_loss\" is {v}, which JSON cannot hold (it has no NaN or infinity)"
             ));
         }
+        if let Some(part) = &p.table_part {
+            if part.of_rows <= p.table_rows {
+                return Err(format!(
+                    "\"provenance\": \"table_part\" says the training table's {} rows were part of a table of {} rows; a part must be smaller than the whole",
+                    p.table_rows, part.of_rows
+                ));
+            }
+        }
         Ok(())
     }
 
@@ -1053,6 +1089,14 @@ impl<O: OptionsSchema> File<O> {
                 baseline_validation_loss: p.baseline_validation_loss,
                 warnings: p.warnings,
                 fused_multiply_add: p.fused_multiply_add,
+                table_part: p.table_part.map(|part| match part.role {
+                    TablePartRoleV2::Development => TablePart::Development {
+                        of_rows: part.of_rows,
+                    },
+                    TablePartRoleV2::HeldOut => TablePart::HeldOut {
+                        of_rows: part.of_rows,
+                    },
+                }),
             },
         })
     }

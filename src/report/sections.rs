@@ -415,8 +415,10 @@ pub(crate) fn holdout_section(
     if let Scores::Classification(m) = &score.scores {
         exhibits.push(Exhibit {
             file: "confusion-matrix-test",
-            caption: "True against predicted class on the held-out test rows, scored once."
-                .to_string(),
+            caption: format!(
+                "True against predicted class on the held-out test rows ({}).",
+                score.caution()
+            ),
             chart: m.confusion_chart_with(&options),
         });
         exhibits.push(Exhibit {

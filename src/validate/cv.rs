@@ -21,7 +21,7 @@
 use super::metrics::{ClassificationMetrics, Metric, RegressionMetrics};
 use super::stats::{corrected_resampled_t_test_named, ResampledTTest, Summary};
 use crate::data::{
-    kfold, repeated_stratified_folds, Dataset, Fold, Imputer, Scaler, ScoredRows, Target,
+    kfold, repeated_stratified_folds, Dataset, Fold, Imputer, Scaler, ScoredRows, TablePart, Target,
 };
 use crate::error::{Error, Message, Result};
 use crate::fit::{FitOptions, Model};
@@ -302,6 +302,9 @@ pub struct CrossValidation {
     pub cv: CvOptions,
     /// Rows in the table.
     pub n_rows: usize,
+    /// Which part of a larger table it was (the development subset of a
+    /// hold-out split), so `n_rows` is never read as the whole file.
+    pub table_part: Option<TablePart>,
     /// Class names (empty for regression).
     pub class_names: Vec<String>,
     /// Every fold's result, in plan order.
@@ -611,6 +614,7 @@ pub(crate) fn run_plan(
         options: options.without_observer(),
         cv: cv.clone(),
         n_rows: data.n_rows(),
+        table_part: data.part(),
         class_names: data
             .class_names()
             .map(<[String]>::to_vec)

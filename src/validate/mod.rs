@@ -26,7 +26,9 @@ pub(crate) mod cv;
 #[cfg(test)]
 mod decision_scores_tests;
 mod holdout;
+pub mod holdout_ledger;
 pub mod importance;
+pub mod key_results;
 pub(crate) mod nested;
 pub mod out_of_fold;
 mod search;
@@ -40,6 +42,7 @@ pub use cv::{
     FoldResult, MetricSummary, Scores, MAX_FOLD_FITS,
 };
 pub use holdout::{HoldOut, HoldOutScore};
+pub use key_results::{Compared, KeyResult, KeyResults, KeyValue, Reproduction};
 pub use nested::{nested_cross_validate, NestedChoice, NestedCrossValidation};
 pub use out_of_fold::OutOfFold;
 pub use search::{Candidates, Grid, Halving, RandomSearch, Search, MAX_CONFIGURATIONS};

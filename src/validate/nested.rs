@@ -203,6 +203,7 @@ pub(crate) fn nested_cross_validate_checked<R: RngCore + ?Sized>(
             options: quiet,
             cv: outer.clone(),
             n_rows: data.n_rows(),
+            table_part: data.part(),
             class_names: data
                 .class_names()
                 .map(<[String]>::to_vec)

@@ -369,6 +369,7 @@ impl SweepPlan {
                 options: options.clone(),
                 cv: self.cv.clone(),
                 n_rows: data_rows,
+                table_part: None,
                 class_names: class_names.to_vec(),
                 folds,
                 summary,

@@ -368,6 +368,18 @@ fn demo_writes_the_charts_and_summary() {
             "{f} differs between two demo runs"
         );
     }
+    // The looks at the held-out rows are counted in a ledger beside the
+    // model: a fresh folder's run is the first look, a rerun into the same
+    // folder (another process) the second.
+    assert_eq!(v["test"]["times_scored"], 1);
+    assert!(Path::new(&out_dir).join("holdout-ledger.json").is_file());
+    let rerun = json(&stratanet(&["demo", "--out", &out_dir, "--json"]));
+    assert_eq!(rerun["test"]["times_scored"], 2);
+    let summary = std::fs::read_to_string(Path::new(&out_dir).join("summary.html")).unwrap();
+    assert!(
+        summary.contains("the held-out set has now been scored 2 times (counted in the ledger holdout-ledger.json, all of the same model)"),
+        "the summary says the look is the second"
+    );
 }
 
 /// The usage check builds every option without touching a file: the

@@ -25,6 +25,7 @@ mod nothing_lost;
 mod portable;
 mod properties;
 mod report_page;
+mod rerun;
 mod restarts;
 mod support;
 mod sweeps;

@@ -1,0 +1,309 @@
+//! The hold-out ledger: how many times a held-out set has been scored, kept
+//! in a small JSON file so that the count outlives the process.
+//!
+//! A held-out set gives an honest estimate only on its first look: once a
+//! score has steered a choice, the set has become part of model selection
+//! and its score is optimistic (Cawley & Talbot, "On over-fitting in model
+//! selection and subsequent selection bias in performance evaluation",
+//! JMLR 11, 2010). A counter in memory forgets every earlier run, so each
+//! rerun would call its look the first. The ledger remembers them.
+//!
+//! The file (written atomically; one ledger may count several held-out
+//! sets):
+//!
+//! ```json
+//! {
+//!   "format": "stratanet-holdout-ledger",
+//!   "format_version": 1,
+//!   "held_out_sets": [
+//!     {
+//!       "held_out": "5e0c...",
+//!       "rows": 120,
+//!       "table_source": "demo-data/parts.csv",
+//!       "looks": [ { "look": 1, "model": "a41f..." } ]
+//!     }
+//!   ]
+//! }
+//! ```
+//!
+//! `held_out` identifies the rows: the SHA-256 (FIPS 180-4) of their
+//! indices in the table and of their content
+//! ([`Dataset::fingerprint`](crate::data::Dataset::fingerprint)), so another
+//! split, or the same indices of another table, starts its own count at 1.
+//! Each look records the scored model's
+//! [`Model::fingerprint`](crate::fit::Model::fingerprint), so a reader can
+//! tell one model scored twice from several models compared on the set.
+//! Nothing depends on the clock: the same looks write the same bytes.
+//!
+//! A ledger that cannot be read, or that contradicts itself, is an error
+//! naming the file and the way out; it is never reset silently, since a
+//! reset would turn later looks into "first" ones.
+//!
+//! Two processes scoring one set at the same instant may record one look
+//! between them (each reads, adds its look and replaces the file); the
+//! ledger counts looks by people, which do not come that close together.
+
+use crate::atomic::write_text;
+use crate::error::{Error, Result};
+use serde::{Deserialize, Serialize};
+use std::path::Path;
+
+const LEDGER_FORMAT: &str = "stratanet-holdout-ledger";
+/// The version of ledger files this library writes and reads.
+pub const LEDGER_VERSION: u32 = 1;
+/// The largest ledger read: 16 MiB (a look takes about 100 bytes).
+const MAX_LEDGER_BYTES: u64 = 16 << 20;
+
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct LedgerFile {
+    format: String,
+    format_version: u32,
+    held_out_sets: Vec<SetEntry>,
+}
+
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct SetEntry {
+    held_out: String,
+    rows: usize,
+    table_source: String,
+    looks: Vec<Look>,
+}
+
+#[derive(Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+struct Look {
+    look: usize,
+    model: String,
+}
+
+/// Which held-out set a ledger entry counts.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub(crate) struct SetIdentity {
+    /// SHA-256 of the row indices and the rows' content (hex).
+    pub held_out: String,
+    pub rows: usize,
+    pub table_source: String,
+}
+
+impl SetIdentity {
+    /// The identity of the rows at `indices` whose content has the
+    /// fingerprint `content`.
+    pub(crate) fn new(indices: &[usize], content: &str, table_source: &str) -> SetIdentity {
+        use sha2::{Digest, Sha256};
+        let mut h = Sha256::new();
+        h.update(b"stratanet held-out rows\n");
+        h.update((content.len() as u64).to_le_bytes());
+        h.update(content.as_bytes());
+        h.update((indices.len() as u64).to_le_bytes());
+        for &i in indices {
+            h.update((i as u64).to_le_bytes());
+        }
+        SetIdentity {
+            held_out: h.finalize().iter().map(|b| format!("{b:02x}")).collect(),
+            rows: indices.len(),
+            table_source: table_source.to_string(),
+        }
+    }
+}
+
+/// What the ledger says after a look was recorded.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub(crate) struct Recorded {
+    /// Looks at this set, this one included.
+    pub times_scored: usize,
+    /// Different models among them.
+    pub models: usize,
+}
+
+/// The way out of a bad ledger, said in every refusal.
+const FIX: &str = "a ledger is never reset silently, because a reset would make the next look count as the first: restore the file from where you keep it (a backup, version control), or, accepting that the earlier looks are forgotten, move it away and record the fact in your notes before scoring again";
+
+fn refuse(path: &Path, reason: impl std::fmt::Display) -> Error {
+    Error::input(
+        format!("{} (hold-out ledger)", path.display()),
+        format!("{reason}; {FIX}"),
+    )
+}
+
+/// Reads and checks the ledger at `path`; `None` when there is no file yet.
+fn read(path: &Path) -> Result<Option<LedgerFile>> {
+    let meta = match std::fs::metadata(path) {
+        Ok(m) => m,
+        Err(e) if e.kind() == std::io::ErrorKind::NotFound => return Ok(None),
+        Err(e) => return Err(Error::io(path, "reading", e)),
+    };
+    if meta.is_dir() {
+        return Err(refuse(path, "it is a folder, not a ledger file"));
+    }
+    if meta.len() > MAX_LEDGER_BYTES {
+        return Err(refuse(
+            path,
+            format!(
+                "it holds {} bytes, more than a ledger's limit of {MAX_LEDGER_BYTES}; it is not a ledger, or is damaged",
+                meta.len()
+            ),
+        ));
+    }
+    let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, "reading", e))?;
+    if text.trim().is_empty() {
+        return Err(refuse(path, "the file is empty"));
+    }
+    let probe: serde_json::Value = serde_json::from_str(&text)
+        .map_err(|e| Error::json(path, "a stratanet hold-out ledger", e, FIX))?;
+    if probe.get("format").and_then(|f| f.as_str()) != Some(LEDGER_FORMAT) {
+        return Err(refuse(
+            path,
+            format!("this JSON is not a hold-out ledger (no \"format\": \"{LEDGER_FORMAT}\")"),
+        ));
+    }
+    if probe.get("format_version").and_then(|v| v.as_u64()) != Some(u64::from(LEDGER_VERSION)) {
+        return Err(refuse(
+            path,
+            format!(
+                "\"format_version\" is {}, but this library reads version {LEDGER_VERSION}",
+                probe
+                    .get("format_version")
+                    .unwrap_or(&serde_json::Value::Null)
+            ),
+        ));
+    }
+    let file: LedgerFile = serde_json::from_str(&text)
+        .map_err(|e| Error::json(path, "a stratanet hold-out ledger", e, FIX))?;
+    check(&file).map_err(|reason| refuse(path, reason))?;
+    Ok(Some(file))
+}
+
+/// The ledger's own rules: one entry per set, looks numbered 1, 2, ...
+fn check(file: &LedgerFile) -> std::result::Result<(), String> {
+    let hex = |s: &str| s.len() == 64 && s.bytes().all(|b| b.is_ascii_hexdigit());
+    let mut seen = std::collections::HashSet::new();
+    for (n, set) in file.held_out_sets.iter().enumerate() {
+        if !hex(&set.held_out) {
+            return Err(format!(
+                "held-out set {}: \"held_out\" is not a SHA-256 in hex",
+                n + 1
+            ));
+        }
+        if !seen.insert(set.held_out.as_str()) {
+            return Err(format!(
+                "held-out set {} is listed twice ({})",
+                n + 1,
+                set.held_out
+            ));
+        }
+        if set.looks.is_empty() {
+            return Err(format!("held-out set {} lists no look", n + 1));
+        }
+        for (k, look) in set.looks.iter().enumerate() {
+            if look.look != k + 1 {
+                return Err(format!(
+                    "held-out set {}: look {} is numbered {}; looks are numbered 1, 2, ... in order",
+                    n + 1,
+                    k + 1,
+                    look.look
+                ));
+            }
+            if !hex(&look.model) {
+                return Err(format!(
+                    "held-out set {}, look {}: \"model\" is not a SHA-256 in hex",
+                    n + 1,
+                    k + 1
+                ));
+            }
+        }
+    }
+    Ok(())
+}
+
+/// Checks the ledger at `path` (an absent file is a new ledger) and that
+/// its entry for `set`, if any, is about the same rows; says whether the
+/// file is there.
+pub(crate) fn check_ledger(path: &Path, set: &SetIdentity) -> Result<bool> {
+    match read(path)? {
+        Some(file) => {
+            entry_for(path, &file, set)?;
+            Ok(true)
+        }
+        None => Ok(false),
+    }
+}
+
+fn entry_for(path: &Path, file: &LedgerFile, set: &SetIdentity) -> Result<Option<usize>> {
+    let Some(index) = file
+        .held_out_sets
+        .iter()
+        .position(|e| e.held_out == set.held_out)
+    else {
+        return Ok(None);
+    };
+    let entry = &file.held_out_sets[index];
+    if entry.rows != set.rows {
+        return Err(refuse(
+            path,
+            format!(
+                "its entry for this held-out set ({}) says {} rows, but the set has {}",
+                set.held_out, entry.rows, set.rows
+            ),
+        ));
+    }
+    Ok(Some(index))
+}
+
+/// Records one look at `set` by the model with fingerprint `model` in the
+/// ledger at `path`, atomically, and returns the counts. An absent file is
+/// a new ledger, unless `must_exist` (it was there before): then it is
+/// refused, since starting afresh would forget the earlier looks.
+pub(crate) fn record(
+    path: &Path,
+    set: &SetIdentity,
+    model: &str,
+    must_exist: bool,
+) -> Result<Recorded> {
+    let mut file = match read(path)? {
+        Some(file) => file,
+        None if must_exist => {
+            return Err(refuse(
+                path,
+                "the ledger was there when this hold-out set was opened (or has recorded a look since) and is gone now",
+            ))
+        }
+        None => LedgerFile {
+            format: LEDGER_FORMAT.to_string(),
+            format_version: LEDGER_VERSION,
+            held_out_sets: Vec::new(),
+        },
+    };
+    let index = match entry_for(path, &file, set)? {
+        Some(i) => i,
+        None => {
+            file.held_out_sets.push(SetEntry {
+                held_out: set.held_out.clone(),
+                rows: set.rows,
+                table_source: set.table_source.clone(),
+                looks: Vec::new(),
+            });
+            file.held_out_sets.len() - 1
+        }
+    };
+    let entry = &mut file.held_out_sets[index];
+    entry.looks.push(Look {
+        look: entry.looks.len() + 1,
+        model: model.to_string(),
+    });
+    let recorded = Recorded {
+        times_scored: entry.looks.len(),
+        models: entry
+            .looks
+            .iter()
+            .map(|l| l.model.as_str())
+            .collect::<std::collections::HashSet<_>>()
+            .len(),
+    };
+    let mut text = serde_json::to_string_pretty(&file)
+        .map_err(|e| Error::input(format!("writing {}", path.display()), e.to_string()))?;
+    text.push('\n');
+    write_text(path, &text)?;
+    Ok(recorded)
+}
