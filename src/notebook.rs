@@ -755,14 +755,6 @@ impl Model {
                 self.fingerprint()
                     .unwrap_or_else(|e| format!("none: the model cannot be stored ({e})")),
             ],
-            vec![
-                "arithmetic".into(),
-                match p.fused_multiply_add {
-                    None => "portable: the same bits on any CPU".into(),
-                    Some(true) => "fast, with fused multiply-add: the same bits only on CPUs that fuse".into(),
-                    Some(false) => "fast, without fused multiply-add on this CPU: the same bits only on CPUs that do not fuse".into(),
-                },
-            ],
         ];
         if let Some(v) = p.best_validation_loss {
             rows.push(vec!["best validation loss".into(), f(v)]);
