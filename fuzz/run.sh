@@ -19,7 +19,7 @@ seconds="${1:-600}"
 shift || true
 targets=("$@")
 if [ ${#targets[@]} -eq 0 ]; then
-  targets=(csv_table feature_table model_file sweep_files cli_args)
+  targets=(csv_table feature_table model_file sweep_files cli_args record_files)
 fi
 if ! command -v cargo-fuzz >/dev/null; then
   cargo install cargo-fuzz --version 0.13.2 --locked

@@ -406,6 +406,46 @@ pub fn cli_args(data: &[u8]) {
     }
 }
 
+/// `record_files`: 1 mode byte + a hold-out ledger (even) or a key-results
+/// file (odd), the records a reviewer's rerun reads. A ledger accepted
+/// counts at least one look per set and no more models than looks; key
+/// results accepted write back to text that reads as the same results, and
+/// compare with themselves as "same" (when they hold an entry).
+pub fn record_files(data: &[u8]) {
+    let Some((&mode, body)) = data.split_first() else {
+        return;
+    };
+    let Ok(text) = std::str::from_utf8(body) else {
+        return;
+    };
+    if mode & 1 == 0 {
+        match stratanet::validate::holdout_ledger::parse_ledger(text, "fuzz.ledger") {
+            Ok(sets) => {
+                for set in &sets {
+                    assert!(set.looks >= 1, "a set with no look was accepted");
+                    assert!((1..=set.looks).contains(&set.models));
+                    assert_eq!(set.held_out.len(), 64);
+                }
+            }
+            Err(e) => check_error(&e, "fuzz.ledger"),
+        }
+    } else {
+        match stratanet::validate::KeyResults::from_json(text, "fuzz.results") {
+            Ok(results) => {
+                let again = results.to_json().expect("accepted results write back");
+                let back = stratanet::validate::KeyResults::from_json(&again, "written")
+                    .expect("written results read back");
+                assert_eq!(back, results);
+                assert_eq!(
+                    results.compare(&back).is_same(),
+                    !results.results.is_empty()
+                );
+            }
+            Err(e) => check_error(&e, "fuzz.results"),
+        }
+    }
+}
+
 /// How the fixed plan's table is read.
 pub fn fixed_plan_table() -> CsvOptions {
     CsvOptions::new("class")

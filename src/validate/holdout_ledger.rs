@@ -127,6 +127,65 @@ fn refuse(path: &Path, reason: impl std::fmt::Display) -> Error {
     )
 }
 
+/// One held-out set as a ledger counts it ([`read_ledger`]).
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct LedgerEntry {
+    /// The held-out rows' fingerprint
+    /// ([`HoldOut::fingerprint`](super::HoldOut::fingerprint)).
+    pub held_out: String,
+    /// Rows in the set.
+    pub rows: usize,
+    /// Where the table came from.
+    pub table_source: String,
+    /// Looks recorded.
+    pub looks: usize,
+    /// Different models among them (by fingerprint).
+    pub models: usize,
+}
+
+impl From<&SetEntry> for LedgerEntry {
+    fn from(e: &SetEntry) -> LedgerEntry {
+        LedgerEntry {
+            held_out: e.held_out.clone(),
+            rows: e.rows,
+            table_source: e.table_source.clone(),
+            looks: e.looks.len(),
+            models: e
+                .looks
+                .iter()
+                .map(|l| l.model.as_str())
+                .collect::<std::collections::HashSet<_>>()
+                .len(),
+        }
+    }
+}
+
+/// What the ledger file at `path` counts, one entry per held-out set.
+///
+/// # Errors
+/// A file that cannot be read, is not a ledger, or contradicts itself (the
+/// message names the file and the way out).
+pub fn read_ledger(path: impl AsRef<Path>) -> Result<Vec<LedgerEntry>> {
+    let path = path.as_ref();
+    match read(path)? {
+        Some(file) => Ok(file.held_out_sets.iter().map(LedgerEntry::from).collect()),
+        None => Err(Error::io(
+            path,
+            "reading",
+            std::io::Error::from(std::io::ErrorKind::NotFound),
+        )),
+    }
+}
+
+/// What ledger text counts; `name` stands for the file in messages.
+///
+/// # Errors
+/// As [`read_ledger`], except for reading the file.
+pub fn parse_ledger(text: &str, name: impl AsRef<Path>) -> Result<Vec<LedgerEntry>> {
+    let file = parse(text, name.as_ref())?;
+    Ok(file.held_out_sets.iter().map(LedgerEntry::from).collect())
+}
+
 /// Reads and checks the ledger at `path`; `None` when there is no file yet.
 fn read(path: &Path) -> Result<Option<LedgerFile>> {
     let meta = match std::fs::metadata(path) {
@@ -147,10 +206,15 @@ fn read(path: &Path) -> Result<Option<LedgerFile>> {
         ));
     }
     let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, "reading", e))?;
+    parse(&text, path).map(Some)
+}
+
+/// Parses and checks ledger text; `path` names the file in messages.
+fn parse(text: &str, path: &Path) -> Result<LedgerFile> {
     if text.trim().is_empty() {
         return Err(refuse(path, "the file is empty"));
     }
-    let probe: serde_json::Value = serde_json::from_str(&text)
+    let probe: serde_json::Value = serde_json::from_str(text)
         .map_err(|e| Error::json(path, "a stratanet hold-out ledger", e, FIX))?;
     if probe.get("format").and_then(|f| f.as_str()) != Some(LEDGER_FORMAT) {
         return Err(refuse(
@@ -169,10 +233,10 @@ fn read(path: &Path) -> Result<Option<LedgerFile>> {
             ),
         ));
     }
-    let file: LedgerFile = serde_json::from_str(&text)
+    let file: LedgerFile = serde_json::from_str(text)
         .map_err(|e| Error::json(path, "a stratanet hold-out ledger", e, FIX))?;
     check(&file).map_err(|reason| refuse(path, reason))?;
-    Ok(Some(file))
+    Ok(file)
 }
 
 /// The ledger's own rules: one entry per set, looks numbered 1, 2, ...
@@ -292,14 +356,10 @@ pub(crate) fn record(
         look: entry.looks.len() + 1,
         model: model.to_string(),
     });
+    let summary = LedgerEntry::from(&*entry);
     let recorded = Recorded {
-        times_scored: entry.looks.len(),
-        models: entry
-            .looks
-            .iter()
-            .map(|l| l.model.as_str())
-            .collect::<std::collections::HashSet<_>>()
-            .len(),
+        times_scored: summary.looks,
+        models: summary.models,
     };
     let mut text = serde_json::to_string_pretty(&file)
         .map_err(|e| Error::input(format!("writing {}", path.display()), e.to_string()))?;

@@ -160,6 +160,16 @@ struct ResultsFile {
     results: Vec<EntryV1>,
 }
 
+/// How to get a good key-results file, said in every refusal.
+const FIX: &str = "write the results again by running the analysis that records them";
+
+fn refuse(path: &Path, reason: impl std::fmt::Display) -> Error {
+    Error::input(
+        format!("{} (key results)", path.display()),
+        format!("{reason}; {FIX}"),
+    )
+}
+
 fn sha256_hex(bytes: &[u8]) -> String {
     use sha2::{Digest, Sha256};
     Sha256::digest(bytes)
@@ -246,16 +256,13 @@ impl KeyResults {
         Ok(sha256_hex(&body))
     }
 
-    /// Writes the results to `path` (JSON, with their checksum), atomically.
+    /// The results as key-results file text (what [`KeyResults::save`]
+    /// writes), with their checksum.
     ///
     /// # Errors
-    /// An empty or repeated name, a number that is not finite, or a failure
-    /// to write.
-    pub fn save(&self, path: impl AsRef<Path>) -> Result<()> {
-        let path = path.as_ref();
-        let checksum = self
-            .checksum()
-            .map_err(|e| e.context(format!("writing {}", path.display())))?;
+    /// An empty or repeated name, or a number that is not finite.
+    pub fn to_json(&self) -> Result<String> {
+        let checksum = self.checksum()?;
         let file = ResultsFile {
             format: RESULTS_FORMAT.to_string(),
             format_version: RESULTS_VERSION,
@@ -264,8 +271,21 @@ impl KeyResults {
             results: self.results.iter().map(EntryV1::from_result).collect(),
         };
         let mut text = serde_json::to_string_pretty(&file)
-            .map_err(|e| Error::input(format!("writing {}", path.display()), e.to_string()))?;
+            .map_err(|e| Error::input("key results", e.to_string()))?;
         text.push('\n');
+        Ok(text)
+    }
+
+    /// Writes the results to `path` (JSON, with their checksum), atomically.
+    ///
+    /// # Errors
+    /// An empty or repeated name, a number that is not finite, or a failure
+    /// to write.
+    pub fn save(&self, path: impl AsRef<Path>) -> Result<()> {
+        let path = path.as_ref();
+        let text = self
+            .to_json()
+            .map_err(|e| e.context(format!("writing {}", path.display())))?;
         write_text(path, &text)
     }
 
@@ -278,42 +298,54 @@ impl KeyResults {
     /// written); each message names the file and how to get a good one.
     pub fn load(path: impl AsRef<Path>) -> Result<KeyResults> {
         let path = path.as_ref();
-        let fix = "write the results again by running the analysis that records them";
-        let refuse = |reason: String| {
-            Error::input(
-                format!("{} (key results)", path.display()),
-                format!("{reason}; {fix}"),
-            )
-        };
         let meta = std::fs::metadata(path).map_err(|e| Error::io(path, "reading", e))?;
         if meta.is_dir() {
-            return Err(refuse("it is a folder, not a file".into()));
+            return Err(refuse(path, "it is a folder, not a file"));
         }
         if meta.len() > MAX_RESULTS_BYTES {
-            return Err(refuse(format!(
-                "it holds {} bytes, more than the limit of {MAX_RESULTS_BYTES} for key results",
-                meta.len()
-            )));
+            return Err(refuse(
+                path,
+                format!(
+                    "it holds {} bytes, more than the limit of {MAX_RESULTS_BYTES} for key results",
+                    meta.len()
+                ),
+            ));
         }
         let text = std::fs::read_to_string(path).map_err(|e| Error::io(path, "reading", e))?;
-        let probe: serde_json::Value = serde_json::from_str(&text)
-            .map_err(|e| Error::json(path, "a stratanet key-results file", e, fix))?;
+        KeyResults::from_json(&text, path)
+    }
+
+    /// Results from key-results file text; `name` stands for the file in
+    /// messages.
+    ///
+    /// # Errors
+    /// As [`KeyResults::load`], except for reading the file.
+    pub fn from_json(text: &str, name: impl AsRef<Path>) -> Result<KeyResults> {
+        let path = name.as_ref();
+        let probe: serde_json::Value = serde_json::from_str(text)
+            .map_err(|e| Error::json(path, "a stratanet key-results file", e, FIX))?;
         if probe.get("format").and_then(|f| f.as_str()) != Some(RESULTS_FORMAT) {
-            return Err(refuse(format!(
-                "this JSON is not a key-results file (no \"format\": \"{RESULTS_FORMAT}\")"
-            )));
+            return Err(refuse(
+                path,
+                format!(
+                    "this JSON is not a key-results file (no \"format\": \"{RESULTS_FORMAT}\")"
+                ),
+            ));
         }
         if probe.get("format_version").and_then(|v| v.as_u64()) != Some(u64::from(RESULTS_VERSION))
         {
-            return Err(refuse(format!(
-                "\"format_version\" is {}, but this library reads version {RESULTS_VERSION}",
-                probe
-                    .get("format_version")
-                    .unwrap_or(&serde_json::Value::Null)
-            )));
+            return Err(refuse(
+                path,
+                format!(
+                    "\"format_version\" is {}, but this library reads version {RESULTS_VERSION}",
+                    probe
+                        .get("format_version")
+                        .unwrap_or(&serde_json::Value::Null)
+                ),
+            ));
         }
-        let file: ResultsFile = serde_json::from_str(&text)
-            .map_err(|e| Error::json(path, "a stratanet key-results file", e, fix))?;
+        let file: ResultsFile = serde_json::from_str(text)
+            .map_err(|e| Error::json(path, "a stratanet key-results file", e, FIX))?;
         let results = KeyResults {
             analysis: file.analysis,
             results: file
@@ -322,15 +354,18 @@ impl KeyResults {
                 .enumerate()
                 .map(|(i, e)| e.into_result(i))
                 .collect::<std::result::Result<_, _>>()
-                .map_err(refuse)?,
+                .map_err(|reason| refuse(path, reason))?,
         };
-        results.check().map_err(refuse)?;
+        results.check().map_err(|reason| refuse(path, reason))?;
         let checksum = results.checksum()?;
         if checksum != file.checksum {
-            return Err(refuse(format!(
-                "the entries do not match the file's checksum (it says {}, they give {checksum}): they were changed after they were written",
-                file.checksum
-            )));
+            return Err(refuse(
+                path,
+                format!(
+                    "the entries do not match the file's checksum (it says {}, they give {checksum}): they were changed after they were written",
+                    file.checksum
+                ),
+            ));
         }
         Ok(results)
     }

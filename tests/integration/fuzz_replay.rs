@@ -14,12 +14,13 @@ use std::path::{Path, PathBuf};
 /// A target's name and its check.
 type Target = (&'static str, fn(&[u8]));
 
-const TARGETS: [Target; 5] = [
+const TARGETS: [Target; 6] = [
     ("csv_table", harness::csv_table),
     ("feature_table", harness::feature_table),
     ("model_file", harness::model_file),
     ("sweep_files", harness::sweep_files),
     ("cli_args", harness::cli_args),
+    ("record_files", harness::record_files),
 ];
 
 fn root() -> PathBuf {
@@ -192,6 +193,32 @@ fn write_seeds() {
         let mut bytes = vec![1u8];
         bytes.extend(fs::read(&path).unwrap());
         fs::write(sf.join(format!("trial-{trial}")), bytes).unwrap();
+    }
+    // Records of a reviewer's rerun: a hold-out ledger with two looks (the
+    // committed model scored twice on the notebooks' held-out rows) and the
+    // committed key results; mode byte 0 for a ledger, 1 for key results.
+    let rf = seeds.join("record_files");
+    {
+        let data = stratanet::data::CsvOptions::new("verdict")
+            .drop(&["part_id"])
+            .read(root().join("demo-data/parts.csv"))
+            .unwrap();
+        let (_, held) =
+            stratanet::validate::HoldOut::split(&data, 0.2, &mut stratanet::rng::seeded_rng(2026))
+                .unwrap();
+        let ledger = scratch.join("holdout-ledger.json");
+        let held = held.with_ledger(&ledger).unwrap();
+        let model = stratanet::fit::Model::load(root().join("notebooks/parts-model.json")).unwrap();
+        held.score(&model).unwrap();
+        held.score(&model).unwrap();
+        let mut bytes = vec![0u8];
+        bytes.extend(fs::read(&ledger).unwrap());
+        fs::write(rf.join("ledger"), bytes).unwrap();
+        let mut bytes = vec![1u8];
+        bytes.extend(fs::read(root().join("notebooks/parts-results.json")).unwrap());
+        fs::write(rf.join("key-results"), bytes).unwrap();
+        fs::write(rf.join("empty-object-ledger"), b"\x00{}").unwrap();
+        fs::write(rf.join("empty-object-results"), b"\x01{}").unwrap();
     }
     // Command lines from the README, NUL-separated.
     let cli = seeds.join("cli_args");
