@@ -152,13 +152,7 @@ mod tests {
     use super::*;
 
     fn scratch(name: &str) -> PathBuf {
-        let dir = Path::new(env!("CARGO_MANIFEST_DIR"))
-            .join("target")
-            .join("test-scratch")
-            .join(format!("atomic-{name}"));
-        let _ = fs::remove_dir_all(&dir);
-        fs::create_dir_all(&dir).expect("scratch folder");
-        dir
+        crate::test_dirs::fresh_dir(&format!("atomic-{name}"))
     }
 
     fn entries(dir: &Path) -> Vec<String> {

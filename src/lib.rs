@@ -97,6 +97,8 @@ pub mod observe;
 pub mod prelude;
 mod report;
 pub mod rng;
+#[cfg(test)]
+mod test_dirs;
 pub mod train;
 pub mod validate;
 

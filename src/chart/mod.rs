@@ -194,17 +194,20 @@ mod tests {
 
     #[test]
     fn save_is_atomic_and_names_the_path_on_failure() {
-        let dir = testing::preview_dir();
+        let dir = crate::test_dirs::fresh_dir("chart-save");
         let path = dir.join("save-test.svg");
         let chart = Chart::from_parts("<svg/>".into(), 240, 180, "t", Default::default());
         chart.save(&path).unwrap();
         assert_eq!(fs::read_to_string(&path).unwrap(), "<svg/>");
-        let leftovers: Vec<_> = fs::read_dir(&dir)
+        // Saving again replaces the file. The folder is fresh, so it holds
+        // the chart and nothing else: no temporary file of the atomic
+        // writer (`.save-test.svg.tmp-PID-N`) is left beside it.
+        chart.save(&path).unwrap();
+        let names: Vec<String> = fs::read_dir(&dir)
             .unwrap()
-            .filter_map(|e| e.ok())
-            .filter(|e| e.file_name().to_string_lossy().ends_with(".tmp"))
+            .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
             .collect();
-        assert!(leftovers.is_empty());
+        assert_eq!(names, ["save-test.svg"]);
         let missing = dir.join("no-such-folder").join("chart.svg");
         let err = chart.save(&missing).unwrap_err();
         assert!(err.is_io());

@@ -221,7 +221,11 @@ mod tests {
 
     #[test]
     fn matches_a_known_two_by_two() {
-        // Covariance [[2, 1], [1, 2]] has eigenvalues 3 and 1.
+        // By hand: the six rows have mean (0, 0); the sums of squares are
+        // 12 in each column and the sum of products is 8, so the covariance
+        // (divisor n - 1 = 5) is [[2.4, 1.6], [1.6, 2.4]]. A symmetric 2x2
+        // [[a, b], [b, a]] has eigenvalues a + b and a - b with vectors
+        // (1, 1) / sqrt 2 and (1, -1) / sqrt 2: here 4.0 and 0.8.
         let data = array![
             [1.0, 1.0],
             [-1.0, -1.0],
@@ -231,10 +235,21 @@ mod tests {
             [-2.0, -2.0]
         ];
         let pca = principal_components_2(data.view()).unwrap();
-        let cov = data.t().dot(&data) / 5.0;
-        let expected = (cov[[0, 0]] + cov[[0, 1]], cov[[0, 0]] - cov[[0, 1]]);
-        assert!((pca.variances[0] - expected.0).abs() < 1e-12);
-        assert!((pca.variances[1] - expected.1).abs() < 1e-12);
+        assert!(
+            (pca.variances[0] - 4.0).abs() < 1e-12,
+            "{:?}",
+            pca.variances
+        );
+        assert!(
+            (pca.variances[1] - 0.8).abs() < 1e-12,
+            "{:?}",
+            pca.variances
+        );
+        assert!((pca.total_variance - 4.8).abs() < 1e-12);
+        let c = std::f64::consts::FRAC_1_SQRT_2;
+        assert!((pca.components[[0, 0]].abs() - c).abs() < 1e-12);
+        assert!((pca.components[[0, 0]] - pca.components[[0, 1]]).abs() < 1e-12);
+        assert!((pca.components[[1, 0]] + pca.components[[1, 1]]).abs() < 1e-12);
     }
 
     #[test]

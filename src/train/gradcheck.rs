@@ -87,6 +87,21 @@ pub fn check_gradients_in(
     h: f64,
     arithmetic: Arithmetic,
 ) -> Result<GradientCheck> {
+    check_altered(network, x, y, loss, h, arithmetic, |_| {})
+}
+
+/// The check, with `alter` applied to the backpropagated gradient before it
+/// is compared (the identity but in tests, which corrupt it to show that
+/// the check fails).
+fn check_altered(
+    network: &Network,
+    x: ArrayView2<'_, f64>,
+    y: ArrayView2<'_, f64>,
+    loss: Loss,
+    h: f64,
+    arithmetic: Arithmetic,
+    alter: impl FnOnce(&mut [f64]),
+) -> Result<GradientCheck> {
     if !(h > 0.0 && h.is_finite()) {
         return Err(Error::option(
             "h",
@@ -120,7 +135,8 @@ pub fn check_gradients_in(
     let yf: Vec<f64> = y.iter().copied().collect();
     bp.gather(&xf, &yf, None, &rows);
     bp.pass(&params, m, act, head, loss);
-    let analytic = bp.grad.clone();
+    let mut analytic = bp.grad.clone();
+    alter(&mut analytic);
     let bp_widths: Vec<usize> = params.shapes.iter().map(|&(_, o)| o).collect();
     let rectifier = matches!(act, Activation::Relu | Activation::LeakyRelu(_));
     // Which rectifier units are on, over all rows: a perturbation that
@@ -190,4 +206,72 @@ pub fn check_gradients_in(
         parameters: params.data.len(),
         at_kinks: kinks,
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::network::Init;
+    use crate::rng::{below, seeded_rng, uniform};
+    use ndarray::Array2;
+
+    /// A 2-3-1 tanh network with a logistic output and five random rows.
+    fn case() -> (Network, Array2<f64>, Array2<f64>) {
+        let mut rng = seeded_rng(4);
+        let net = Network::new(
+            &[2, 3, 1],
+            Activation::Tanh,
+            Head::Logistic,
+            Init::Auto,
+            &mut rng,
+        )
+        .unwrap();
+        let x = Array2::from_shape_fn((5, 2), |_| uniform(&mut rng, -1.0, 1.0));
+        let y = Array2::from_shape_fn((5, 1), |_| below(&mut rng, 2) as f64);
+        (net, x, y)
+    }
+
+    // The check must be able to fail: a backpropagated gradient corrupted
+    // on purpose is caught, at the parameter corrupted, with the relative
+    // error the corruption implies (|a (1 + e) - a| / |a (1 + e)| =
+    // e / (1 + e) when the differences agree with a to far better than e).
+    #[test]
+    fn a_corrupted_gradient_is_caught_where_it_was_corrupted() {
+        let (net, x, y) = case();
+        let run = |alter: &dyn Fn(&mut [f64])| {
+            check_altered(
+                &net,
+                x.view(),
+                y.view(),
+                Loss::CrossEntropy,
+                1e-3,
+                Arithmetic::Portable,
+                alter,
+            )
+            .unwrap()
+        };
+        let params = Params::<f64>::from_network(&net);
+        let (hidden_weights, _) = params.ranges(0);
+        let (_, output_bias) = params.ranges(1);
+        let honest = run(&|_| {});
+        assert!(honest.max_relative_error < 1e-7, "{honest:?}");
+        // One hidden weight off by one part in 10^4.
+        let i = hidden_weights.start + 4;
+        let e = 1e-4;
+        let scaled = run(&|g| g[i] *= 1.0 + e);
+        assert_eq!(scaled.worst, (1, false, 4));
+        let expected = e / (1.0 + e);
+        assert!(
+            (scaled.max_relative_error - expected).abs() < 1e-3 * expected,
+            "{scaled:?}"
+        );
+        // The output bias's gradient with its sign flipped: |-a - a| / |a| = 2.
+        let b = output_bias.start;
+        let flipped = run(&|g| g[b] = -g[b]);
+        assert_eq!(flipped.worst, (2, true, 0));
+        assert!(
+            (flipped.max_relative_error - 2.0).abs() < 1e-6,
+            "{flipped:?}"
+        );
+    }
 }

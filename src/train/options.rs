@@ -572,6 +572,28 @@ impl TrainingOptions {
 mod tests {
     use super::*;
 
+    // What a model records has nobody listening, and every other option as
+    // it was.
+    #[test]
+    fn without_observer_drops_only_the_observer() {
+        let listening = TrainingOptions {
+            epochs: 7,
+            observer: Observer::new(|_| {}),
+            ..Default::default()
+        };
+        assert!(listening.observer.is_listening());
+        let recorded = listening.without_observer();
+        assert!(!recorded.observer.is_listening());
+        assert_eq!(recorded.epochs, 7);
+        assert_eq!(
+            TrainingOptions {
+                observer: Observer::none(),
+                ..listening
+            },
+            recorded
+        );
+    }
+
     #[test]
     fn refusals_name_the_option() {
         let o = TrainingOptions {

@@ -1017,3 +1017,78 @@ fn the_validation_loss_is_the_mean_over_rows() {
         "{err:?}"
     );
 }
+
+// The validation accuracy is the share of validation rows whose class is
+// right, and the observer hears each epoch numbered from 1 with the
+// history's losses. A logistic unit with weight 1 and bias 0 on training
+// rows x = 0 with targets 1 and 0 (mean gradient zero: nothing moves);
+// validation rows x = 1, 2, -1, 3 with targets 1, 0, 0, 1 are classed
+// 1, 1, 0, 1 (output at least 0.5 when x >= 0): 3 of 4 right, 0.75 (by
+// hand).
+#[test]
+fn validation_accuracy_and_the_observer_by_hand() {
+    use crate::observe::{Event, Observer};
+    use std::sync::{Arc, Mutex};
+    let mut net = Network::from_layers(
+        vec![Layer {
+            weights: array![[1.0]],
+            biases: Array1::zeros(1),
+        }],
+        Activation::Identity,
+        Head::Logistic,
+    )
+    .unwrap();
+    let heard = Arc::new(Mutex::new(Vec::new()));
+    let sink = heard.clone();
+    let options = TrainingOptions {
+        observer: Observer::new(move |e| {
+            if let Event::Epoch { .. } = e {
+                sink.lock().unwrap().push(e.clone());
+            }
+        }),
+        ..plain(Optimiser::Sgd, 0.5, 3)
+    };
+    let (x, y) = (array![[0.0], [0.0]], array![[1.0], [0.0]]);
+    let (vx, vy) = (
+        array![[1.0], [2.0], [-1.0], [3.0]],
+        array![[1.0], [0.0], [0.0], [1.0]],
+    );
+    let report = train_arrays(
+        &mut net,
+        x.view(),
+        y.view(),
+        Some((vx.view(), vy.view())),
+        &options,
+        &mut crate::seeded_rng(1),
+    )
+    .unwrap();
+    assert_eq!(weights_of(&net), [1.0]);
+    let accuracy: Vec<Option<f64>> = report
+        .history
+        .iter()
+        .map(|e| e.validation_accuracy)
+        .collect();
+    assert_eq!(accuracy, [Some(0.75); 3]);
+    let heard = heard.lock().unwrap();
+    let expected: Vec<Event> = report
+        .history
+        .iter()
+        .map(|e| Event::Epoch {
+            fold: None,
+            restart: 0,
+            epoch: e.epoch,
+            epochs: 3,
+            training_loss: e.training_loss,
+            validation_loss: e.validation_loss,
+        })
+        .collect();
+    assert_eq!(*heard, expected);
+    let epochs: Vec<usize> = heard
+        .iter()
+        .map(|e| match e {
+            Event::Epoch { epoch, .. } => *epoch,
+            _ => unreachable!(),
+        })
+        .collect();
+    assert_eq!(epochs, [1, 2, 3]);
+}

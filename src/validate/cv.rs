@@ -762,3 +762,184 @@ pub(crate) fn against_baseline(
         names,
     )?))
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::train::Loss;
+    use crate::validate::stats::{IntervalMethod, Range};
+    use ndarray::Array2;
+
+    /// A regression fold: `train` fitted rows, `test` held-out rows with
+    /// truth 0, 1, 2, ... and predictions off by `model` (the model) and
+    /// `baseline` (the baseline), so that each's mean absolute error is
+    /// that offset.
+    fn fold(index: usize, train: usize, test: usize, model: f64, baseline: f64) -> FoldResult {
+        let truth = Array2::from_shape_fn((test, 1), |(i, _)| i as f64);
+        let scores = |offset: f64| {
+            let predicted = truth.mapv(|t| t + offset);
+            Scores::Regression(
+                RegressionMetrics::from_arrays(truth.view(), predicted.view()).unwrap(),
+            )
+        };
+        FoldResult {
+            index,
+            seed: 0,
+            train_rows: train,
+            test_rows: (0..test).collect(),
+            scores: scores(model),
+            predictions: truth.mapv(|t| t + model),
+            baseline: FoldBaseline {
+                prediction: vec![0.0],
+                scores: scores(baseline),
+            },
+            report: TrainingReport {
+                history: Vec::new(),
+                epochs_run: 0,
+                best_epoch: 0,
+                best_validation_loss: None,
+                stopped_early: false,
+                loss: Loss::SquaredError,
+                final_training_loss: 0.0,
+            },
+            model: None,
+            imputer: None,
+            target_scaler: None,
+            notes: Vec::new(),
+            warnings: Vec::new(),
+        }
+    }
+
+    // Fold summaries by hand. Three folds fitted on 8, 9 and 10 rows and
+    // holding out 4, 3 and 2: means 9 and 3, so n_test / n_train = 1/3.
+    // Mean absolute errors 0.5, 1.0, 1.5 (model) and 1.0, 1.25, 2.0
+    // (baseline). The interval (the corrected resampled variance of
+    // C. Nadeau & Y. Bengio, "Inference for the generalization error",
+    // Machine Learning 52, 2003; on the log scale for an error, as in
+    // `Summary`'s docs): model mean 1, s = 0.5, se = sqrt((1/3 + 1/3) 0.25);
+    // t_{0.975,2} = 4.302653 (printed 4.303 in standard t tables, e.g.
+    // R. A. Fisher & F. Yates, "Statistical Tables for Biological,
+    // Agricultural and Medical Research", 1963; with 2 degrees of freedom
+    // the t distribution function is 1/2 + t / (2 sqrt(2 + t^2)), so the
+    // quantile has the closed form (2p - 1) sqrt(2 / (4 p (1 - p)))). The
+    // test of model against baseline: differences -0.5, -0.25, -0.5, mean
+    // -5/12, variance 1/48, t = -3.5355339 (= -5 / sqrt 2), two-sided
+    // p = 1 - |t| / sqrt(2 + t^2) = 0.0715233. The ends were computed from
+    // these formulas outside this crate (double precision).
+    #[test]
+    fn fold_summaries_by_hand() {
+        let folds = [
+            fold(0, 8, 4, 0.5, 1.0),
+            fold(1, 9, 3, 1.0, 1.25),
+            fold(2, 10, 2, 1.5, 2.0),
+        ];
+        let summaries = summarise_folds(&folds).unwrap();
+        let names: Vec<Metric> = summaries.iter().map(|s| s.metric).collect();
+        assert_eq!(names, folds[0].scores.metrics());
+        let mae = summaries
+            .iter()
+            .find(|s| s.metric == Metric::MeanAbsoluteError)
+            .unwrap();
+        assert_eq!(mae.values, [0.5, 1.0, 1.5]);
+        assert_eq!(mae.baseline_values, [1.0, 1.25, 2.0]);
+        let close = |a: f64, b: f64, what: &str| {
+            assert!(
+                (a - b).abs() <= 1e-12 * b.abs().max(1.0),
+                "{what}: {a} vs {b}"
+            );
+        };
+        let s = &mae.summary;
+        close(s.mean, 1.0, "mean");
+        close(s.std_dev, 0.5, "sd");
+        close(s.ci_low, 0.172_639_336_389_071_03, "low");
+        close(s.ci_high, 5.792_422_636_208_101_5, "high");
+        assert!(matches!(
+            s.method,
+            IntervalMethod::CorrectedResampled { test_train_ratio, range: Range::NonNegative }
+                if (test_train_ratio - 1.0 / 3.0).abs() < 1e-15
+        ));
+        let b = &mae.baseline;
+        close(b.mean, 1.416_666_666_666_666_7, "baseline mean");
+        close(b.ci_low, 0.389_753_431_674_585_8, "baseline low");
+        close(b.ci_high, 5.149_266_898_873_873, "baseline high");
+        let t = mae.against_baseline.as_ref().unwrap();
+        close(t.mean_difference, -5.0 / 12.0, "difference");
+        close(t.t, -3.535_533_905_932_737_8, "t");
+        close(t.p_value, 0.071_523_309_114_740_7, "p");
+        close(t.naive_t, -5.0, "naive t");
+        assert_eq!(t.degrees_of_freedom, 2.0);
+        // One fold: no test against the baseline. Two folds: a test with
+        // 1 degree of freedom.
+        assert!(against_baseline(&[0.5], &[1.0], (9.0, 3.0), ("a", "b"))
+            .unwrap()
+            .is_none());
+        let two = against_baseline(&[0.5, 1.0], &[1.0, 1.0], (9.0, 3.0), ("a", "b"))
+            .unwrap()
+            .unwrap();
+        assert_eq!((two.n_folds, two.degrees_of_freedom), (2, 1.0));
+        assert!(summarise_folds(&[]).is_err());
+    }
+
+    /// A plan of two folds over 6 rows that keeps every rule.
+    fn good_plan() -> FoldPlan {
+        FoldPlan {
+            folds: vec![
+                Fold {
+                    train: vec![0, 1, 2],
+                    test: vec![3, 4, 5],
+                },
+                Fold {
+                    train: vec![3, 4, 5],
+                    test: vec![0, 1, 2],
+                },
+            ],
+            seeds: vec![1, 2],
+        }
+    }
+
+    // Each rule of a plan read from a file, broken in turn, is refused by
+    // name; the rows' bounds are checked exactly (row 5 of 6 is the last).
+    #[test]
+    fn fold_plan_rules_are_each_refused() {
+        good_plan().check(6).unwrap();
+        let refused = |edit: &dyn Fn(&mut FoldPlan), rows: usize| {
+            let mut plan = good_plan();
+            edit(&mut plan);
+            plan.check(rows).unwrap_err().to_string()
+        };
+        assert_eq!(
+            refused(
+                &|p| {
+                    p.seeds.pop();
+                },
+                6
+            ),
+            "fold plan: has 2 folds but 1 seeds; write the plan again"
+        );
+        let tail = "; write the plan again from the same table";
+        assert_eq!(
+            refused(&|p| p.folds[1].train.clear(), 6),
+            format!("fold plan, fold 1: the fitting rows are empty{tail}")
+        );
+        assert_eq!(
+            refused(&|p| p.folds[0].test = vec![3, 3, 5], 6),
+            format!("fold plan, fold 0: the held-out rows are not sorted and distinct{tail}")
+        );
+        assert_eq!(
+            refused(&|p| p.folds[0].train = vec![2, 1], 6),
+            format!("fold plan, fold 0: the fitting rows are not sorted and distinct{tail}")
+        );
+        assert_eq!(
+            refused(&|_| {}, 5),
+            format!("fold plan, fold 0: a held-out row is beyond the table's 5 rows{tail}")
+        );
+        assert_eq!(
+            refused(&|p| p.folds[1].train = vec![3, 4, 6], 6),
+            format!("fold plan, fold 1: a fitting row is beyond the table's 6 rows{tail}")
+        );
+        assert_eq!(
+            refused(&|p| p.folds[0].train = vec![0, 1, 4], 6),
+            format!("fold plan, fold 0: row 4 is both fitted on and held out{tail}")
+        );
+    }
+}

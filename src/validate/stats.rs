@@ -1206,9 +1206,15 @@ mod tests {
 
     #[test]
     fn mcnemar_published_example() {
-        // REFERENCES.md: discordant counts b = 121, c = 59: chi-square 21.355556 (p 3.815e-6),
-        // corrected 20.672222 (p 5.450e-6), exact binomial p 4.434e-6
-        // (McNemar 1947; Dietterich, Neural Computation 10, 1998).
+        // An illustrative table, not from a paper: discordant counts b = 121,
+        // c = 59; its values recomputed in double precision: chi-square
+        // 21.355556 (p 3.815e-6), corrected 20.672222 (p 5.450e-6), exact
+        // binomial p 4.434e-6. The formulas: Q. McNemar, "Note on the
+        // sampling error of the difference between correlated proportions or
+        // percentages", Psychometrika 12, 1947; the corrected form as
+        // recommended by T. G. Dietterich, "Approximate statistical tests for
+        // comparing supervised classification learning algorithms", Neural
+        // Computation 10, 1998.
         let test = McNemar::from_counts(121, 59);
         assert!(close(test.chi_square, 21.355556, 5e-7));
         assert!(close(test.chi_square_corrected, 20.672222, 5e-7));
@@ -1257,9 +1263,11 @@ mod tests {
 
     #[test]
     fn corrected_resampled_t_published_example() {
-        // REFERENCES.md (Nadeau & Bengio, Machine Learning 52, 2003): d as below,
-        // n_train 135, n_test 15: naive t 2.953147 (p 0.016138), corrected t 2.032495
-        // (p 0.072641, 9 df).
+        // Made-up differences d (an illustration, not from the paper), n_train
+        // 135, n_test 15; values recomputed in double precision from the
+        // formula of C. Nadeau & Y. Bengio, "Inference for the
+        // generalization error", Machine Learning 52, 2003: naive t 2.953147
+        // (p 0.016138), corrected t 2.032495 (p 0.072641, 9 df).
         let d = [
             0.02, 0.0, 0.0667, -0.0133, 0.04, 0.0267, 0.0, 0.0533, 0.0133, 0.0267,
         ];
@@ -1306,8 +1314,13 @@ mod tests {
             0.02, 0.0, 0.0667, -0.0133, 0.04, 0.0267, 0.0, 0.0533, 0.0133, 0.0267,
         ];
         let s = Summary::from_values(&d).unwrap();
-        // Mean and sd by hand: mean 0.02334; variance 0.000624642667 (recomputed, REFERENCES
-        // example data). Half-width with the standard table value t_{0.975,9} = 2.262157.
+        // Mean and sd by hand: mean 0.02334; variance 0.000624642667 (the made-up
+        // differences of the corrected resampled t test below, recomputed in
+        // double precision). Half-width with
+        // t_{0.975,9} = 2.262157 (printed 2.262 in standard t tables, e.g.
+        // Fisher & Yates, "Statistical Tables for Biological, Agricultural
+        // and Medical Research", 1963; the digits recomputed by integrating
+        // the t density).
         assert!(close(s.mean, 0.02334, 1e-15));
         assert!(close(
             s.std_dev,
@@ -1325,6 +1338,160 @@ mod tests {
         assert!(Summary::from_values(&[]).is_err());
         assert!(Summary::from_values(&[1.0, f64::INFINITY]).is_err());
         assert!(Summary::with_confidence(&[1.0, 2.0], 1.0).is_err());
+    }
+
+    // The cross-validation interval by hand (the formulas in `Summary`'s
+    // docs: C. Nadeau & Y. Bengio, "Inference for the generalization
+    // error", Machine Learning 52, 2003, for the variance; the delta method
+    // on each range's scale). Made-up fold scores 0.9, 0.95, 0.85, 0.92,
+    // 0.88 (an illustration, not from a paper): mean 0.9, s^2 = 0.00145;
+    // folds of 20 test and 80 training rows, so se = sqrt((1/5 + 20/80)
+    // 0.00145) = 0.0255440795; t_{0.975,4} = 2.776445 (printed 2.776 in
+    // standard t tables, e.g. R. A. Fisher & F. Yates, "Statistical Tables
+    // for Biological, Agricultural and Medical Research", 1963; the digits
+    // recomputed by integrating the t density). The ends below were
+    // computed from these numbers outside this crate (double precision).
+    #[test]
+    fn cross_validation_interval_by_hand() {
+        let v = [0.9, 0.95, 0.85, 0.92, 0.88];
+        let cases = [
+            (
+                Range::Unbounded,
+                0.829_078_265_369_702_2,
+                0.970_921_734_630_297_9,
+            ),
+            (
+                Range::Unit,
+                0.803_640_568_901_353_2,
+                0.951_903_023_682_362_2,
+            ),
+            (
+                Range::NonNegative,
+                0.831_800_672_634_095_9,
+                0.973_790_989_414_496_7,
+            ),
+            (
+                Range::Signed,
+                0.800_120_536_519_459_8,
+                0.951_319_547_688_346_3,
+            ),
+            (
+                Range::AtMostOne,
+                0.796_760_002_933_659_9,
+                0.950_797_086_477_344,
+            ),
+        ];
+        for (range, low, high) in cases {
+            let s = Summary::for_cross_validation(&v, 80.0, 20.0, range).unwrap();
+            assert!(close(s.mean, 0.9, 1e-15), "{range:?}: {s:?}");
+            assert!(
+                close(s.std_dev, 0.00145f64.sqrt(), 1e-15),
+                "{range:?}: {s:?}"
+            );
+            assert!(
+                close(s.ci_low, low, 1e-12),
+                "{range:?}: {} vs {low}",
+                s.ci_low
+            );
+            assert!(
+                close(s.ci_high, high, 1e-12),
+                "{range:?}: {} vs {high}",
+                s.ci_high
+            );
+            assert_eq!(
+                s.method,
+                IntervalMethod::CorrectedResampled {
+                    test_train_ratio: 0.25,
+                    range
+                }
+            );
+            assert!(s.undefined.is_none());
+        }
+        // A mean on the bound of the range: no interval, with a note.
+        let all = Summary::for_cross_validation(&[1.0, 1.0, 1.0], 80.0, 20.0, Range::Unit).unwrap();
+        assert_eq!((all.ci_low, all.ci_high), (1.0, 1.0));
+        assert!(all.undefined.unwrap().contains("lies on the bound"));
+        let err = Summary::for_cross_validation(&v, 0.0, 20.0, Range::Unit).unwrap_err();
+        assert_eq!(
+            err.to_string(),
+            "summary of fold scores: the folds held out 20 and fitted on 0 rows; both must be above 0"
+        );
+    }
+
+    // A mean on a bound of its metric's range has no interval on that
+    // range's scale (the scale is infinite there): the interval is the mean,
+    // with a note, and never NaN. Just inside each bound an interval exists.
+    #[test]
+    fn a_mean_on_a_bound_of_the_range_has_no_interval() {
+        let bounds = [
+            (Range::Unit, 0.0, 0.1),
+            (Range::Unit, 1.0, 0.9),
+            (Range::Signed, -1.0, -0.9),
+            (Range::Signed, 1.0, 0.9),
+            (Range::AtMostOne, 1.0, 0.9),
+            (Range::NonNegative, 0.0, 0.1),
+        ];
+        for (range, bound, inside) in bounds {
+            let s = Summary::for_cross_validation(&[bound; 3], 80.0, 20.0, range).unwrap();
+            assert_eq!(
+                (s.mean, s.ci_low, s.ci_high),
+                (bound, bound, bound),
+                "{range:?}"
+            );
+            assert!(
+                s.undefined
+                    .as_deref()
+                    .unwrap_or("")
+                    .contains("lies on the bound"),
+                "{range:?} at {bound}: {s:?}"
+            );
+            let near = [inside - 0.01, inside, inside + 0.01];
+            let s = Summary::for_cross_validation(&near, 80.0, 20.0, range).unwrap();
+            assert!(s.undefined.is_none(), "{range:?} at {inside}: {s:?}");
+            assert!(s.ci_low < inside && inside < s.ci_high, "{range:?}: {s:?}");
+        }
+    }
+
+    // Refusals name what is wrong, each by its own check (another check
+    // failing later would give another message).
+    #[test]
+    fn summary_refusals_name_the_value() {
+        for confidence in [0.0, 1.0, -0.5, 1.5, f64::NAN] {
+            let err = Summary::with_confidence(&[1.0, 2.0], confidence).unwrap_err();
+            assert_eq!(
+                err.to_string(),
+                format!(
+                    "option confidence = {confidence}: must be strictly between 0 and 1, e.g. 0.95"
+                )
+            );
+        }
+        for (n_train, n_test) in [(0.0, 20.0), (80.0, 0.0), (-1.0, 20.0), (80.0, f64::NAN)] {
+            let err = Summary::for_cross_validation(&[0.5, 0.6], n_train, n_test, Range::Unit)
+                .unwrap_err();
+            assert_eq!(
+                err.to_string(),
+                format!("summary of fold scores: the folds held out {n_test} and fitted on {n_train} rows; both must be above 0")
+            );
+        }
+    }
+
+    // The standard deviation is computed from deviations from the mean (two
+    // passes), which keeps its accuracy when the mean is large against the
+    // spread; forms that expand the square cancel catastrophically there
+    // (T. F. Chan, G. H. Golub & R. J. LeVeque, "Algorithms for computing the
+    // sample variance: analysis and recommendations", The American
+    // Statistician 37, 1983). By hand: 1e9 + 1, 1e9 + 2, 1e9 + 4 have mean
+    // 1e9 + 7/3 (not exact in binary64), deviations -4/3, -1/3, 5/3 and
+    // sample variance (16 + 1 + 25) / 9 / 2 = 7/3.
+    #[test]
+    fn the_standard_deviation_survives_a_large_mean() {
+        let s = Summary::from_values(&[1e9 + 1.0, 1e9 + 2.0, 1e9 + 4.0]).unwrap();
+        assert!(close(s.mean, 1e9 + 7.0 / 3.0, 1e-6), "{}", s.mean);
+        assert!(
+            close(s.std_dev, (7.0f64 / 3.0).sqrt(), 1e-12),
+            "{}",
+            s.std_dev
+        );
     }
 
     #[test]

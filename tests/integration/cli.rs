@@ -4,6 +4,7 @@ use crate::support::{data_dir, scratch};
 use serde_json::Value;
 use std::path::Path;
 use std::process::{Command, Output};
+use stratanet::model_file::FeatureOptions;
 
 fn stratanet(args: &[&str]) -> Output {
     Command::new(env!("CARGO_BIN_EXE_stratanet"))
@@ -674,4 +675,234 @@ fn importance_shows_the_library_result_ranked() {
         assert_eq!(row["clearly_used"], c.clearly_used());
     }
     assert_eq!(shown.len(), 4);
+}
+
+/// Reads a CSV written by the binary: the header and the rows as text.
+fn csv_rows(path: &Path) -> (Vec<String>, Vec<Vec<String>>) {
+    let text = std::fs::read_to_string(path).unwrap();
+    let mut lines = text.lines();
+    let header = lines
+        .next()
+        .unwrap()
+        .split(',')
+        .map(str::to_string)
+        .collect();
+    let rows = lines
+        .map(|l| l.split(',').map(str::to_string).collect())
+        .collect();
+    (header, rows)
+}
+
+/// Asserts that a cell the binary printed reads back as exactly `expected`
+/// (Rust's `str::parse::<f64>` rounds correctly, so equal bits mean the
+/// printed digits identify the library's double).
+#[track_caller]
+fn same_bits(cell: &str, expected: f64, what: &str) {
+    let read: f64 = cell
+        .parse()
+        .unwrap_or_else(|e| panic!("{what}: {cell:?}: {e}"));
+    assert_eq!(
+        read.to_bits(),
+        expected.to_bits(),
+        "{what}: printed {cell}, the library has {expected:e}"
+    );
+}
+
+/// `predict` writes the library's probabilities, every digit: each cell of
+/// its output reads back to the very double `Model::predict_probabilities`
+/// gives for the same rows, and its class is `Model::predict_classes`'.
+#[test]
+fn predict_writes_the_librarys_probabilities_bit_for_bit() {
+    let dir = scratch("cli-predict-bits");
+    let model_path = dir.join("model.json");
+    let model = model_path.display().to_string();
+    json(&stratanet(&[
+        "fit",
+        &parts(),
+        "--target",
+        "verdict",
+        "--drop",
+        "part_id",
+        "--hidden",
+        "5",
+        "--epochs",
+        "40",
+        "--seed",
+        "11",
+        "--out",
+        &model,
+        "--json",
+    ]));
+    let out = dir.join("predictions.csv");
+    json(&stratanet(&[
+        "predict",
+        &model,
+        &parts(),
+        "--ignore-extra",
+        "--out",
+        out.to_str().unwrap(),
+        "--json",
+    ]));
+    let library = stratanet::Model::load(&model_path).unwrap();
+    let rows = FeatureOptions::default()
+        .ignore_extra(true)
+        .read(&library, parts())
+        .unwrap();
+    let p = library.predict_probabilities(rows.x()).unwrap();
+    let classes = library.predict_classes(rows.x()).unwrap();
+    let names = library.class_names().unwrap();
+    let (header, cells) = csv_rows(&out);
+    assert_eq!(
+        header,
+        ["line", "predicted", "p_accept", "p_rework", "p_scrap"]
+    );
+    assert_eq!(cells.len(), 600);
+    assert_eq!(p.dim(), (600, 3));
+    let mut digits = 0;
+    for (i, row) in cells.iter().enumerate() {
+        assert_eq!(row[0], rows.lines[i].to_string(), "row {i}: line");
+        assert_eq!(row[1], names[classes[i]], "row {i}: class");
+        for k in 0..3 {
+            same_bits(&row[2 + k], p[[i, k]], &format!("row {i}, class {k}"));
+            digits = digits.max(row[2 + k].len());
+        }
+    }
+    // Shortest round-trip digits, not a fixed short format: some cell needs
+    // more than 15 significant digits.
+    assert!(digits >= 17, "longest cell {digits} characters");
+}
+
+/// Regression from end to end on the demo's sensor table: fit, predict
+/// (every value the library's, bit for bit), check and cross-validate with
+/// per-fold scores whose summary is their mean.
+#[test]
+fn regression_from_fit_to_predict_and_cv() {
+    let dir = scratch("cli-regression");
+    let sensors = concat!(env!("CARGO_MANIFEST_DIR"), "/demo-data/sensors.csv");
+    let model_path = dir.join("torque.json");
+    let model = model_path.display().to_string();
+    let common = [
+        "--target",
+        "torque_nm",
+        "--task",
+        "regression",
+        "--id",
+        "run_id",
+        "--hidden",
+        "4",
+        "--epochs",
+        "30",
+        "--seed",
+        "5",
+    ];
+    let fit = json(&stratanet(
+        &[&["fit", sensors][..], &common, &["--out", &model, "--json"]].concat(),
+    ));
+    assert_eq!(fit["rows"], 1500);
+    assert_eq!(fit["target"], "torque_nm");
+    let out = dir.join("torque.csv");
+    json(&stratanet(&[
+        "predict",
+        &model,
+        sensors,
+        "--ignore-extra",
+        "--out",
+        out.to_str().unwrap(),
+        "--json",
+    ]));
+    let library = stratanet::Model::load(&model_path).unwrap();
+    assert!(library.class_names().is_none());
+    let rows = FeatureOptions::default()
+        .ignore_extra(true)
+        .read(&library, sensors)
+        .unwrap();
+    let values = library.predict(rows.x()).unwrap();
+    let (header, cells) = csv_rows(&out);
+    assert_eq!(header, ["line", "run_id", "predicted_torque_nm"]);
+    assert_eq!(cells.len(), 1500);
+    assert_eq!(cells[0][1], "R00001");
+    for (i, row) in cells.iter().enumerate() {
+        same_bits(&row[2], values[[i, 0]], &format!("row {i}"));
+    }
+    let check = json(&stratanet(&[
+        "check",
+        &model,
+        sensors,
+        "--ignore-extra",
+        "--json",
+    ]));
+    assert!(
+        check["metrics"]["r_squared"].as_f64().unwrap() > 0.5,
+        "{check}"
+    );
+    let cv = json(&stratanet(
+        &[&["cv", sensors][..], &common, &["--folds", "3", "--json"]].concat(),
+    ));
+    for name in [
+        "root_mean_squared_error",
+        "mean_absolute_error",
+        "r_squared",
+    ] {
+        let m = &cv["metrics"][name];
+        let folds: Vec<f64> = m["folds"]
+            .as_array()
+            .unwrap_or_else(|| panic!("{name}: {cv}"))
+            .iter()
+            .map(|v| v.as_f64().unwrap())
+            .collect();
+        assert_eq!(folds.len(), 3, "{name}");
+        let mean = folds.iter().sum::<f64>() / 3.0;
+        crate::support::close(m["mean"].as_f64().unwrap(), mean, 1e-12, name);
+    }
+    assert!(cv["metrics"].get("accuracy").is_none());
+}
+
+/// `cv --charts DIR` writes its charts: each listed in the JSON, each a
+/// well-formed SVG in the folder, and nothing else there.
+#[test]
+fn cv_charts_are_written_and_listed() {
+    let dir = scratch("cli-cv-charts");
+    let charts = dir.join("charts");
+    let v = json(&stratanet(&[
+        "cv",
+        &parts(),
+        "--target",
+        "verdict",
+        "--drop",
+        "part_id",
+        "--folds",
+        "3",
+        "--hidden",
+        "4",
+        "--epochs",
+        "20",
+        "--charts",
+        charts.to_str().unwrap(),
+        "--json",
+    ]));
+    let listed: Vec<String> = v["charts"]
+        .as_array()
+        .unwrap_or_else(|| panic!("{v}"))
+        .iter()
+        .map(|c| c.as_str().unwrap().to_string())
+        .collect();
+    assert!(!listed.is_empty(), "{v}");
+    let mut written: Vec<String> = std::fs::read_dir(&charts)
+        .unwrap()
+        .map(|e| e.unwrap().path().display().to_string())
+        .collect();
+    written.sort();
+    let mut expected = listed.clone();
+    expected.sort();
+    assert_eq!(written, expected);
+    for path in &written {
+        assert!(path.ends_with(".svg"), "{path}");
+        let svg = std::fs::read_to_string(path).unwrap();
+        let doc = roxmltree::Document::parse(&svg).unwrap_or_else(|e| panic!("{path}: {e}"));
+        assert_eq!(doc.root_element().tag_name().name(), "svg", "{path}");
+        assert!(
+            doc.descendants().filter(|n| n.has_tag_name("text")).count() > 3,
+            "{path}: a chart with no words"
+        );
+    }
 }

@@ -163,9 +163,7 @@ fn write_seeds() {
     // Sweep files: a plan of the harness's fixed table, and a trial result
     // made for the harness's fixed plan (so its fingerprint matches).
     let sf = seeds.join("sweep_files");
-    let scratch = root().join("target/test-scratch/fuzz-seeds");
-    let _ = fs::remove_dir_all(&scratch);
-    fs::create_dir_all(&scratch).unwrap();
+    let scratch = crate::support::scratch("fuzz-seeds");
     let (data, plan) = fixed_plan_for_seeds();
     let table = stratanet::data::CsvOptions::new("class");
     stratanet::validate::sweep_files::write_plan(&plan, &table, &scratch.join("plan.jsonl"))

@@ -86,10 +86,13 @@ fn every_activation_head_and_loss() {
     );
 }
 
-// The check itself must be able to fail: a network whose gradient we
-// corrupt (by comparing against the wrong loss) is caught.
+// The check reports a disagreement when the differences are poor: a huge
+// step makes the central difference a bad estimate of the derivative. (That
+// the check fails on a corrupted backpropagated gradient, at the parameter
+// corrupted, is tested beside it: src/train/gradcheck.rs,
+// `a_corrupted_gradient_is_caught_where_it_was_corrupted`.)
 #[test]
-fn a_wrong_gradient_is_caught() {
+fn a_step_too_large_for_the_differences_is_reported() {
     let mut rng = seeded_rng(4);
     let net = Network::new(
         &[2, 3, 1],

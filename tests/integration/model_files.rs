@@ -8,7 +8,7 @@
 //! `float_roundtrip` feature, documented to make "f64 -> JSON -> f64 produce
 //! output identical to the input" (serde_json 1.0.54 release notes).
 
-use crate::support::{close, data_dir, scratch};
+use crate::support::{data_dir, scratch};
 use std::fs;
 use std::path::{Path, PathBuf};
 use stratanet::data::{CsvOptions, Dataset, Missing, Target};
@@ -223,12 +223,20 @@ fn the_version_1_file_loads_and_predicts_its_pinned_values() {
         ]
     );
     let p = model.predict_probabilities(rows.x()).unwrap();
-    // Pinned when the file was written (see write_model_v1_fixture); a
-    // tolerance, not bits, because tanh and exp come from the platform's libm.
+    // Pinned when the file was written (see write_model_v1_fixture), bit for
+    // bit: tanh, exp and the logistic function are the engine's own fixed
+    // sequences of IEEE 754 operations (src/network/vecmath.rs) and the
+    // logarithms come from the pure-Rust `libm` crate, so the same bits come
+    // out on every machine.
     let pinned = PINNED_PROBABILITIES;
     for (i, row) in pinned.iter().enumerate() {
         for (k, &expected) in row.iter().enumerate() {
-            close(p[[i, k]], expected, 1e-12, &format!("row {i}, class {k}"));
+            assert_eq!(
+                p[[i, k]].to_bits(),
+                expected.to_bits(),
+                "row {i}, class {k}: {:e} vs {expected:e}",
+                p[[i, k]]
+            );
         }
     }
     assert_eq!(model.predict_classes(rows.x()).unwrap(), PINNED_CLASSES);

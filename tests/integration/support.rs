@@ -2,6 +2,7 @@
 #![allow(dead_code)]
 
 use std::path::{Path, PathBuf};
+use std::sync::atomic::{AtomicU64, Ordering};
 
 /// Asserts |a - b| <= tol with a readable message.
 #[track_caller]
@@ -20,12 +21,17 @@ pub fn data_dir() -> PathBuf {
         .join("data")
 }
 
-/// A fresh scratch folder under the target directory.
+/// A fresh, empty scratch folder for one test: `NAME-PID-N` under the
+/// folder Cargo gives integration tests for temporary files
+/// (`CARGO_TARGET_TMPDIR`), unique to this call, so that tests running at
+/// once, or two runs of the suite, never share or clear each other's files.
 pub fn scratch(name: &str) -> PathBuf {
-    let dir = Path::new(env!("CARGO_MANIFEST_DIR"))
-        .join("target")
-        .join("test-scratch")
-        .join(name);
+    static NEXT: AtomicU64 = AtomicU64::new(0);
+    let dir = Path::new(env!("CARGO_TARGET_TMPDIR")).join(format!(
+        "{name}-{}-{}",
+        std::process::id(),
+        NEXT.fetch_add(1, Ordering::Relaxed)
+    ));
     let _ = std::fs::remove_dir_all(&dir);
     std::fs::create_dir_all(&dir).expect("scratch folder");
     dir

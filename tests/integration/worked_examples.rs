@@ -96,7 +96,8 @@ fn mazur_one_step() {
 
 // Mazur (2015) output deltas 0.138498562, -0.038098237: with biases trained,
 // each output bias moves by -0.5 * delta. E after one step with (per-unit)
-// biases updated: 0.2804714468 (shared/REFERENCES.md, recomputed).
+// biases updated: 0.2804714468 (not in the post: recomputed in double
+// precision from its setup, outside this crate).
 #[test]
 fn mazur_one_step_with_biases() {
     let mut net = mazur_network();

@@ -38,8 +38,9 @@ fn brute_force_u(scores: &[f64], labels: &[bool]) -> f64 {
 
 #[test]
 fn fawcett_2006_auc_is_0_68_and_equals_u_over_n1_n0() {
-    // Source: Fawcett, "An introduction to ROC analysis", PRL 27 (2006), Fig. 3: AUC 0.68,
-    // U = 68 (REFERENCES.md, "Ranking and classification metrics").
+    // Source: T. Fawcett, "An introduction to ROC analysis", Pattern Recognition
+    // Letters 27 (2006), Fig. 3 (20 instances): AUC 0.68; the Mann-Whitney U
+    // statistic of the same scores is 68 = 0.68 n1 n0 (counted by hand below).
     let labels = fawcett_labels();
     let curve = roc_curve(&FAWCETT_SCORES, &labels).unwrap();
     assert!(close(curve.auc, 0.68, 1e-12), "{}", curve.auc);
@@ -157,9 +158,12 @@ fn precision_recall_small_example_by_hand() {
 }
 
 #[test]
-fn kappa_of_the_published_two_by_two_table() {
-    // REFERENCES.md: table [[20, 5], [10, 15]]: observed 0.7, expected 0.5, kappa 0.4
-    // (Cohen, Educ. Psych. Meas. 20, 1960, formula).
+fn kappa_of_a_two_by_two_table_by_hand() {
+    // An illustrative table (common textbook usage, not from a paper),
+    // [[20, 5], [10, 15]], by hand: observed agreement 35/50 = 0.7, expected
+    // (25 * 30 + 25 * 20) / 50^2 = 0.5, kappa (0.7 - 0.5) / (1 - 0.5) = 0.4.
+    // The formula: J. Cohen, "A coefficient of agreement for nominal scales",
+    // Educational and Psychological Measurement 20, 1960.
     let m = ConfusionMatrix::from_counts(vec![vec![20, 5], vec![10, 15]]).unwrap();
     assert_eq!(m.accuracy(), 0.7);
     let kappa = m.cohen_kappa();
@@ -167,9 +171,13 @@ fn kappa_of_the_published_two_by_two_table() {
 }
 
 #[test]
-fn matthews_f1_accuracy_of_the_published_counts() {
-    // REFERENCES.md: TP 90, FN 5, FP 4, TN 1 -> MCC 0.135242, F1 0.952381, accuracy 0.91
-    // (Matthews 1975; the phi coefficient of the 2 x 2 table).
+fn matthews_f1_accuracy_of_counts_by_hand() {
+    // Illustrative counts (not from a paper): TP 90, FN 5, FP 4, TN 1, by hand:
+    // MCC (90 * 1 - 4 * 5) / sqrt(94 * 95 * 5 * 6) = 70 / 517.59 = 0.135242,
+    // F1 180 / 189 = 0.952381, accuracy 0.91. The formula: B. W. Matthews,
+    // "Comparison of the predicted and observed secondary structure of T4
+    // phage lysozyme", Biochimica et Biophysica Acta 405, 1975 (the phi
+    // coefficient of the 2 x 2 table).
     let counts = BinaryCounts {
         true_positives: 90,
         false_positives: 4,
