@@ -197,9 +197,12 @@ fn write_seeds() {
     // committed key results; mode byte 0 for a ledger, 1 for key results.
     let rf = seeds.join("record_files");
     {
+        // Read from text under its path in the repository, so that the seed
+        // names no folder of the machine that wrote it.
+        let text = fs::read_to_string(root().join("demo-data/parts.csv")).unwrap();
         let data = stratanet::data::CsvOptions::new("verdict")
             .drop(&["part_id"])
-            .read(root().join("demo-data/parts.csv"))
+            .read_str(&text, "demo-data/parts.csv")
             .unwrap();
         let (_, held) =
             stratanet::validate::HoldOut::split(&data, 0.2, &mut stratanet::rng::seeded_rng(2026))
