@@ -111,9 +111,11 @@ impl Scores {
         // the classes it would choose, not the most probable ones. Costs
         // with other decisions (say "inspect") leave the class metrics on
         // the most probable class; their cost is reported on its own.
+        // The rule decides from the probabilities already computed (what
+        // `Model::decide` would compute again).
         let decided = match (&data.target, model.decision_rule()) {
-            (Target::Classes { .. }, Some(_)) => {
-                let d = model.decide(data.x())?;
+            (Target::Classes { .. }, Some(rule)) => {
+                let d = rule.decide(predictions.view(), model.target_names())?;
                 (d.names == model.target_names()).then_some(d.chosen)
             }
             _ => None,
