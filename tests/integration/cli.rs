@@ -200,6 +200,30 @@ fn cv_json_has_per_fold_values_and_intervals() {
         acc["ci_high"].as_f64().unwrap(),
     );
     assert!(lo <= mean && mean <= hi);
+    // By hand from the printed fold scores: 3 stratified folds of the 600
+    // rows hold out 200 and fit on 400 (n_test / n_train = 1/2); the
+    // corrected resampled variance (C. Nadeau & Y. Bengio, "Inference for
+    // the generalization error", Machine Learning 52, 2003) on the logit
+    // scale; t_{0.975,2} = 4.302653, the closed form (2p - 1) sqrt(2 / (4p
+    // (1 - p))) of the t quantile with 2 degrees of freedom (printed 4.303
+    // in standard t tables, e.g. R. A. Fisher & F. Yates, "Statistical
+    // Tables for Biological, Agricultural and Medical Research", 1963).
+    let folds: Vec<f64> = acc["folds"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|v| v.as_f64().unwrap())
+        .collect();
+    let m = folds.iter().sum::<f64>() / 3.0;
+    let var = folds.iter().map(|x| (x - m).powi(2)).sum::<f64>() / 2.0;
+    let t = 0.95 * (2.0 / (4.0 * 0.975 * 0.025f64)).sqrt();
+    let half = t * ((1.0 / 3.0 + 0.5) * var).sqrt() / (m * (1.0 - m));
+    let logit = (m / (1.0 - m)).ln();
+    let back = |g: f64| 1.0 / (1.0 + (-g).exp());
+    crate::support::close(mean, m, 1e-12, "mean");
+    crate::support::close(acc["std_dev"].as_f64().unwrap(), var.sqrt(), 1e-12, "sd");
+    crate::support::close(lo, back(logit - half), 1e-9, "interval low");
+    crate::support::close(hi, back(logit + half), 1e-9, "interval high");
 }
 
 #[test]
