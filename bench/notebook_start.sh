@@ -1,16 +1,16 @@
 #!/usr/bin/env bash
 # Times the first `:dep stratanet` cell of fresh evcxr kernels started the way
-# Jupyter starts them (see bench/notebook_start.py). Runs the notebook set-up
+# Jupyter starts them (see notebooks/tools/first_cell.py). Runs the notebook set-up
 # first (idempotent), then the driver with the notebook environment.
 #
 #   bash bench/notebook_start.sh --kernels 2
 #   COLD=1 bash bench/notebook_start.sh   # empty evcxr's cache and the build folders first
 set -euo pipefail
 NB_TOOLS=$(cd "$(dirname "${BASH_SOURCE[0]}")/../notebooks/tools" && pwd)
-bash "$NB_TOOLS/setup.sh" >/dev/null
+NB_WARM=0 bash "$NB_TOOLS/setup.sh" >/dev/null
 # shellcheck source=../notebooks/tools/env.sh
 . "$NB_TOOLS/env.sh"
 if [ -n "${COLD:-}" ]; then
   rm -rf "$NB_EVCXR_CACHE" "$NB_BUILD_SLOTS"
 fi
-exec "$NB_PY" "$NB_ROOT/bench/notebook_start.py" "$@"
+exec "$NB_PY" "$NB_TOOLS/first_cell.py" "$@"

@@ -19,6 +19,6 @@ HOME=${HOME:-}
 . "$NB_TOOLS/env.sh"
 if [ ! -x "$NB_PY" ] || [ ! -f "$JUPYTER_PATH/kernels/$NB_KERNEL/kernel.json" ] \
    || [ "$(cat "$NB_VENV/.nbcheck-requirements" 2>/dev/null)" != "$(cat "$NB_TOOLS/requirements.txt"; "${PYTHON:-python3}" -c 'import sys; print(sys.version)')" ]; then
-  bash "$NB_TOOLS/setup.sh" >&2
+  NB_WARM=0 bash "$NB_TOOLS/setup.sh" >&2
 fi
 exec "$NB_PY" "$NB_TOOLS/nbcheck.py" "$@"

@@ -51,7 +51,7 @@ run() {
   fi
 }
 
-bash "$NB_TOOLS/setup.sh" || { echo "self-test: setup failed"; echo "self-test: 0 passed, 1 failed"; exit 1; }
+NB_WARM=0 bash "$NB_TOOLS/setup.sh" || { echo "self-test: setup failed"; echo "self-test: 0 passed, 1 failed"; exit 1; }
 
 # 0. Each kind of breakage, planted as cells with a kernel's outputs, fails
 # for its own reason (no kernel needed; notebooks/tools/planted.py) ---------

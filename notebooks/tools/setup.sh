@@ -13,6 +13,9 @@
 # `cargo install evcxr_jupyter --locked --version 0.22.0` when it is missing,
 # and `rustup component add rust-src` when that is missing.
 #
+# It then warms the kernel's first build folder (step 6), so that the first
+# notebook a user opens starts in seconds.
+#
 # Idempotent: a second run checks and prints "ok" for each step. Run it from
 # any folder:  bash notebooks/tools/setup.sh
 # Environment: PYTHON (default python3, needs >= 3.9), HOME or CARGO_HOME.
@@ -163,5 +166,27 @@ case "$found" in
   "$JUPYTER_PATH/kernels/$NB_KERNEL") say "ok: jupyter_client resolves kernel '$NB_KERNEL' to $found" ;;
   *) echo "setup: jupyter_client resolves kernel '$NB_KERNEL' to $found, not $JUPYTER_PATH/kernels/$NB_KERNEL" >&2; exit 1 ;;
 esac
+
+# 6. Warm the first build folder ------------------------------------------------
+# A user's first kernel would otherwise compile the crate and its
+# dependencies from nothing in its first cell (minutes on 2 cores; README,
+# "Notebook start-up"). Here, once, a kernel started exactly as Jupyter
+# starts one runs each `:dep` line the notebooks use (without default
+# features, as the README documents, and with them, as one-line-steps.ipynb
+# needs), so the first free build folder and evcxr's cache hold every
+# compiled crate. When they are already warm this takes about 10 s a line.
+# NB_WARM=0 skips it (the checker's self-test and the start-up benchmark,
+# which measure their own cases).
+if [ "${NB_WARM:-1}" != 0 ]; then
+  for features in none default; do
+    t0=$(date +%s)
+    if ! out=$("$NB_PY" "$NB_TOOLS/first_cell.py" --features "$features" 2>&1); then
+      echo "setup: warming the kernel's build folder failed (:dep features: $features):" >&2
+      printf '%s\n' "$out" | tail -20 >&2
+      exit 1
+    fi
+    say "ok: first kernel warm (:dep line with features '$features': $(( $(date +%s) - t0 )) s)"
+  done
+fi
 
 say "done in $(( $(date +%s) - start )) s"

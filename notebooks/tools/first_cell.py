@@ -9,6 +9,11 @@ down. Run it twice to see a later kernel's start.
 
     bash bench/notebook_start.sh [--kernels N] [--cell TEXT]
 
+`--features` picks the `:dep` line: `none` (the README's line, without the
+command line and PNG/PDF export; the default) or `default` (every default
+feature, as one-line-steps.ipynb needs). setup.sh runs this once for each,
+so that the first kernel a user starts finds the crate compiled.
+
 Prints one JSON line per kernel (start-up and first-cell seconds, status).
 """
 
@@ -21,8 +26,11 @@ from pathlib import Path
 
 from jupyter_client.manager import start_new_kernel
 
-ROOT = Path(__file__).resolve().parents[1]
-DEP = ':dep stratanet = { path = "%s", default-features = false }\nuse stratanet::prelude::*;'
+ROOT = Path(__file__).resolve().parents[2]
+DEP = {
+    "none": ':dep stratanet = { path = "..", default-features = false }\nuse stratanet::prelude::*;',
+    "default": ':dep stratanet = { path = ".." }\nuse stratanet::prelude::*;',
+}
 
 
 def run_cell(kc, code, timeout):
@@ -47,11 +55,12 @@ def run_cell(kc, code, timeout):
 def main():
     p = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     p.add_argument("--kernels", type=int, default=1, help="kernels to start one after another")
-    p.add_argument("--cell", default=None, help="the cell to time (default: the README's :dep line)")
+    p.add_argument("--cell", default=None, help="the cell to time (default: the :dep line --features picks)")
+    p.add_argument("--features", choices=sorted(DEP), default="none", help="which :dep line (default: none, the README's)")
     p.add_argument("--cwd", default=str(ROOT / "notebooks"), help="the kernel's working folder")
     p.add_argument("--timeout", type=float, default=1200)
     args = p.parse_args()
-    code = args.cell if args.cell is not None else DEP % ".."
+    code = args.cell if args.cell is not None else DEP[args.features]
     for i in range(args.kernels):
         t_start = time.monotonic()
         km, kc = start_new_kernel(kernel_name="rust", cwd=args.cwd, startup_timeout=120)
