@@ -627,13 +627,17 @@ unsafe fn run<F: Float>(
     let blocks = job.p.div_ceil(KC);
     let step = job.p.div_ceil(blocks);
     unsafe {
-        for pj in panels {
-            let j0 = pj * k.nr;
-            let cols = k.nr.min(job.n - j0);
-            let mut k0 = 0;
-            while k0 < job.p {
-                let kc = step.min(job.p - k0);
-                let last = k0 + kc == job.p;
+        // Blocks of the inner dimension outermost: the block of `lhs` the
+        // tiles read (rows x kc) stays in the second-level cache while every
+        // panel passes over it. Each output element still sums its blocks
+        // in ascending order.
+        let mut k0 = 0;
+        while k0 < job.p {
+            let kc = step.min(job.p - k0);
+            let last = k0 + kc == job.p;
+            for pj in panels.clone() {
+                let j0 = pj * k.nr;
+                let cols = k.nr.min(job.n - j0);
                 pack(
                     job.b.add(k0 * job.brs + j0 * job.bcs),
                     (job.brs, job.bcs),
@@ -672,8 +676,8 @@ unsafe fn run<F: Float>(
                         r0 += 1;
                     }
                 }
-                k0 += kc;
             }
+            k0 += kc;
         }
     }
 }
