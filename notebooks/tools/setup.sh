@@ -18,7 +18,8 @@
 #
 # Idempotent: a second run checks and prints "ok" for each step. Run it from
 # any folder:  bash notebooks/tools/setup.sh
-# Environment: PYTHON (default python3, needs >= 3.9), HOME or CARGO_HOME.
+# Environment: PYTHON (default python3, needs >= 3.9), HOME or CARGO_HOME;
+# NB_WARM=0 skips the last step (warming the first build folder).
 set -euo pipefail
 
 NB_TOOLS=$(cd "$(dirname "${BASH_SOURCE[0]}")" && pwd)
@@ -31,6 +32,10 @@ HOME=${HOME:-}
 . "$NB_TOOLS/env.sh"
 
 start=$(date +%s)
+case "${NB_WARM:-1}" in
+  0|1) ;;
+  *) echo "setup: NB_WARM must be 0 (skip warming the first build folder) or 1 (the default), not '${NB_WARM}'" >&2; exit 2 ;;
+esac
 say() { printf 'setup: %s\n' "$*"; }
 need() {
   command -v "$1" >/dev/null 2>&1 || { echo "setup: '$1' not found on PATH ($2)" >&2; exit 2; }
@@ -169,15 +174,18 @@ esac
 
 # 6. Warm the first build folder ------------------------------------------------
 # A user's first kernel would otherwise compile the crate and its
-# dependencies from nothing in its first cell (minutes on 2 cores; README,
-# "Notebook start-up"). Here, once, a kernel started exactly as Jupyter
+# dependencies from nothing in its first cell (minutes on 2 cores;
+# BENCHMARKS.md, "Notebook start-up"). Here, once, a kernel started exactly as Jupyter
 # starts one runs each `:dep` line the notebooks use (without default
 # features, as the README documents, and with them, as one-line-steps.ipynb
 # needs), so the first free build folder and evcxr's cache hold every
-# compiled crate. When they are already warm this takes about 10 s a line.
+# compiled crate. When they are already warm this takes about 15 s a line
+# (kernel start, the cell, shut-down).
 # NB_WARM=0 skips it (the checker's self-test and the start-up benchmark,
 # which measure their own cases).
-if [ "${NB_WARM:-1}" != 0 ]; then
+if [ "${NB_WARM:-1}" = 1 ] && ! command -v flock >/dev/null 2>&1; then
+  say "warning: no 'flock' on PATH, so kernels get evcxr's own build folder, deleted at shut-down; nothing to warm (install util-linux for flock)"
+elif [ "${NB_WARM:-1}" = 1 ]; then
   for features in none default; do
     t0=$(date +%s)
     if ! out=$("$NB_PY" "$NB_TOOLS/first_cell.py" --features "$features" 2>&1); then

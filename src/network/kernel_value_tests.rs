@@ -122,7 +122,7 @@ fn check<F: Real>(m: usize, n: usize, p: usize, unit_roundoff: f64) -> usize {
 }
 
 // Sizes on both sides of the switch, with edges that are not multiples of
-// the register tiles (16 columns, 4 or 8 rows).
+// the register tiles (8 or 16 columns, 4, 6 or 8 rows).
 const SIZES: [(usize, usize, usize); 4] = [
     (7, 19, 5),     // tiny and odd
     (33, 45, 29),   // below the split: one thread
