@@ -10,9 +10,10 @@ down. Run it twice to see a later kernel's start.
     bash bench/notebook_start.sh [--kernels N] [--cell TEXT]
 
 `--features` picks the `:dep` line: `none` (the README's line, without the
-command line and PNG/PDF export; the default) or `default` (every default
-feature, as one-line-steps.ipynb needs). setup.sh runs this once for each,
-so that the first kernel a user starts finds the crate compiled.
+command line and PNG/PDF export; the default) or `cli` (with the command
+line, as one-line-steps.ipynb needs for `stratanet::run`). setup.sh runs
+this once for each, so that the first kernel a user starts finds the crate
+compiled.
 
 Prints one JSON line per kernel (start-up and first-cell seconds, status).
 """
@@ -29,7 +30,7 @@ from jupyter_client.manager import start_new_kernel
 ROOT = Path(__file__).resolve().parents[2]
 DEP = {
     "none": ':dep stratanet = { path = "..", default-features = false }\nuse stratanet::prelude::*;',
-    "default": ':dep stratanet = { path = ".." }\nuse stratanet::prelude::*;',
+    "cli": ':dep stratanet = { path = "..", default-features = false, features = ["cli"] }\nuse stratanet::prelude::*;',
 }
 
 

@@ -177,8 +177,8 @@ esac
 # dependencies from nothing in its first cell (minutes on 2 cores;
 # BENCHMARKS.md, "Notebook start-up"). Here, once, a kernel started exactly as Jupyter
 # starts one runs each `:dep` line the notebooks use (without default
-# features, as the README documents, and with them, as one-line-steps.ipynb
-# needs), so the first free build folder and evcxr's cache hold every
+# features, as the README documents, and with the command line only, as
+# one-line-steps.ipynb needs), so the first free build folder and evcxr's cache hold every
 # compiled crate. When they are already warm this takes about 15 s a line
 # (kernel start, the cell, shut-down).
 # NB_WARM=0 skips it (the checker's self-test and the start-up benchmark,
@@ -186,7 +186,7 @@ esac
 if [ "${NB_WARM:-1}" = 1 ] && ! command -v flock >/dev/null 2>&1; then
   say "warning: no 'flock' on PATH, so kernels get evcxr's own build folder, deleted at shut-down; nothing to warm (install util-linux for flock)"
 elif [ "${NB_WARM:-1}" = 1 ]; then
-  for features in none default; do
+  for features in none cli; do
     t0=$(date +%s)
     if ! out=$("$NB_PY" "$NB_TOOLS/first_cell.py" --features "$features" 2>&1); then
       echo "setup: warming the kernel's build folder failed (:dep features: $features):" >&2
