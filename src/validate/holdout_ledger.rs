@@ -43,6 +43,7 @@
 //! between them (each reads, adds its look and replaces the file); the
 //! ledger counts looks by people, which do not come that close together.
 
+use super::record_file::RecordFile;
 use crate::atomic::write_text;
 use crate::error::{Error, Result};
 use serde::{Deserialize, Serialize};
@@ -117,14 +118,19 @@ pub(crate) struct Recorded {
     pub models: usize,
 }
 
-/// The way out of a bad ledger, said in every refusal.
-const FIX: &str = "a ledger is never reset silently, because a reset would make the next look count as the first: restore the file from where you keep it (a backup, version control), or, accepting that the earlier looks are forgotten, move it away and record the fact in your notes before scoring again";
+/// The ledger's kind: its header, and how a refusal reads (with the way
+/// out of a bad ledger).
+const LEDGER: RecordFile = RecordFile {
+    label: "hold-out ledger",
+    what: "a stratanet hold-out ledger",
+    noun: "a hold-out ledger",
+    format: LEDGER_FORMAT,
+    version: LEDGER_VERSION,
+    fix: "a ledger is never reset silently, because a reset would make the next look count as the first: restore the file from where you keep it (a backup, version control), or, accepting that the earlier looks are forgotten, move it away and record the fact in your notes before scoring again",
+};
 
 fn refuse(path: &Path, reason: impl std::fmt::Display) -> Error {
-    Error::input(
-        format!("{} (hold-out ledger)", path.display()),
-        format!("{reason}; {FIX}"),
-    )
+    LEDGER.refuse(path, reason)
 }
 
 /// One held-out set as a ledger counts it ([`read_ledger`]).
@@ -214,27 +220,7 @@ fn parse(text: &str, path: &Path) -> Result<LedgerFile> {
     if text.trim().is_empty() {
         return Err(refuse(path, "the file is empty"));
     }
-    let probe: serde_json::Value = serde_json::from_str(text)
-        .map_err(|e| Error::json(path, "a stratanet hold-out ledger", e, FIX))?;
-    if probe.get("format").and_then(|f| f.as_str()) != Some(LEDGER_FORMAT) {
-        return Err(refuse(
-            path,
-            format!("this JSON is not a hold-out ledger (no \"format\": \"{LEDGER_FORMAT}\")"),
-        ));
-    }
-    if probe.get("format_version").and_then(|v| v.as_u64()) != Some(u64::from(LEDGER_VERSION)) {
-        return Err(refuse(
-            path,
-            format!(
-                "\"format_version\" is {}, but this library reads version {LEDGER_VERSION}",
-                probe
-                    .get("format_version")
-                    .unwrap_or(&serde_json::Value::Null)
-            ),
-        ));
-    }
-    let file: LedgerFile = serde_json::from_str(text)
-        .map_err(|e| Error::json(path, "a stratanet hold-out ledger", e, FIX))?;
+    let file: LedgerFile = LEDGER.parse(text, path)?;
     check(&file).map_err(|reason| refuse(path, reason))?;
     Ok(file)
 }

@@ -36,6 +36,7 @@
 //! same `f64` (this crate reads JSON with correct rounding), so a saved
 //! figure loads bit for bit.
 
+use super::record_file::RecordFile;
 use crate::atomic::write_text;
 use crate::error::{Error, Result};
 use serde::{Deserialize, Serialize};
@@ -160,14 +161,19 @@ struct ResultsFile {
     results: Vec<EntryV1>,
 }
 
-/// How to get a good key-results file, said in every refusal.
-const FIX: &str = "write the results again by running the analysis that records them";
+/// The key-results file's kind: its header, and how a refusal reads (with
+/// how to get a good file).
+const RESULTS: RecordFile = RecordFile {
+    label: "key results",
+    what: "a stratanet key-results file",
+    noun: "a key-results file",
+    format: RESULTS_FORMAT,
+    version: RESULTS_VERSION,
+    fix: "write the results again by running the analysis that records them",
+};
 
 fn refuse(path: &Path, reason: impl std::fmt::Display) -> Error {
-    Error::input(
-        format!("{} (key results)", path.display()),
-        format!("{reason}; {FIX}"),
-    )
+    RESULTS.refuse(path, reason)
 }
 
 fn sha256_hex(bytes: &[u8]) -> String {
@@ -322,30 +328,7 @@ impl KeyResults {
     /// As [`KeyResults::load`], except for reading the file.
     pub fn from_json(text: &str, name: impl AsRef<Path>) -> Result<KeyResults> {
         let path = name.as_ref();
-        let probe: serde_json::Value = serde_json::from_str(text)
-            .map_err(|e| Error::json(path, "a stratanet key-results file", e, FIX))?;
-        if probe.get("format").and_then(|f| f.as_str()) != Some(RESULTS_FORMAT) {
-            return Err(refuse(
-                path,
-                format!(
-                    "this JSON is not a key-results file (no \"format\": \"{RESULTS_FORMAT}\")"
-                ),
-            ));
-        }
-        if probe.get("format_version").and_then(|v| v.as_u64()) != Some(u64::from(RESULTS_VERSION))
-        {
-            return Err(refuse(
-                path,
-                format!(
-                    "\"format_version\" is {}, but this library reads version {RESULTS_VERSION}",
-                    probe
-                        .get("format_version")
-                        .unwrap_or(&serde_json::Value::Null)
-                ),
-            ));
-        }
-        let file: ResultsFile = serde_json::from_str(text)
-            .map_err(|e| Error::json(path, "a stratanet key-results file", e, FIX))?;
+        let file: ResultsFile = RESULTS.parse(text, path)?;
         let results = KeyResults {
             analysis: file.analysis,
             results: file

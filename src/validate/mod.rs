@@ -31,6 +31,7 @@ pub mod importance;
 pub mod key_results;
 pub(crate) mod nested;
 pub mod out_of_fold;
+mod record_file;
 mod search;
 pub(crate) mod sweep;
 pub mod sweep_files;
