@@ -4,13 +4,13 @@
 # first (idempotent), then the driver with the notebook environment.
 #
 #   bash bench/notebook_start.sh --kernels 2
-#   COLD=1 bash bench/notebook_start.sh   # empty evcxr's cache and the build folders first
+#   COLD=1 bash bench/notebook_start.sh   # empty the kernels' build folders first
 set -euo pipefail
 NB_TOOLS=$(cd "$(dirname "${BASH_SOURCE[0]}")/../notebooks/tools" && pwd)
 NB_WARM=0 bash "$NB_TOOLS/setup.sh" >/dev/null
 # shellcheck source=../notebooks/tools/env.sh
 . "$NB_TOOLS/env.sh"
 if [ -n "${COLD:-}" ]; then
-  rm -rf "$NB_EVCXR_CACHE" "$NB_BUILD_SLOTS"
+  rm -rf "$NB_BUILD_SLOTS"
 fi
 exec "$NB_PY" "$NB_TOOLS/first_cell.py" "$@"

@@ -21,18 +21,24 @@ export JUPYTER_RUNTIME_DIR="$NB_STATE/runtime"
 export JUPYTER_PLATFORM_DIRS=1
 # evcxr: a config folder of our own, so a developer's
 # ~/.config/evcxr/init.evcxr (say `:timing` or `:opt 0`) cannot change outputs.
-# Ours holds only init.evcxr with `:cache`, which turns on evcxr's
-# compilation cache (setup.sh writes it; no effect on outputs).
-export EVCXR_CONFIG_DIR="$NB_STATE/evcxr-config"
-# evcxr's compilation cache lives in $XDG_CACHE_HOME/evcxr: for our kernels,
-# in target/jupyter/cache/evcxr (the kernelspec sets XDG_CACHE_HOME to this).
-NB_CACHE_HOME="$NB_STATE/cache"
-NB_EVCXR_CACHE="$NB_CACHE_HOME/evcxr"
-NB_EVCXR_CACHE_MIB=2048
+# Ours holds an empty init.evcxr (setup.sh writes it). evcxr's compilation
+# cache (`:cache`) stays off: it keys a compiled crate by its rustc arguments
+# with the build folder's path taken out, but some crates' compiled metadata
+# still depends on that path (serde_core includes a file its build script
+# writes under the build folder), so a build folder that mixed crates from
+# the cache with crates it compiled itself failed with E0460 ("found possibly
+# newer version of crate `serde_core` which `csv` depends on"); CI saw it.
+#
 # Build folders that outlive a kernel (EVCXR_TMPDIR), one per kernel running
 # at the same time, so a later kernel finds the crate already compiled. Not
 # inside the repo, for the reason nbcheck.py gives for its own build folder.
-NB_BUILD_SLOTS="${TMPDIR:-/tmp}/stratanet-evcxr-$(printf '%s' "$NB_ROOT" | sha256sum | cut -c1-12)"
+# The "v2" in the name is the layout without the cache: set-up removes this
+# checkout's folders of the earlier layout (NB_OLD_BUILD_DIRS), which may hold
+# such a mix.
+NB_PATH_HASH=$(printf '%s' "$NB_ROOT" | sha256sum | cut -c1-12)
+NB_BUILD_SLOTS="${TMPDIR:-/tmp}/stratanet-evcxr-v2-$NB_PATH_HASH"
+NB_OLD_BUILD_DIRS=("${TMPDIR:-/tmp}/stratanet-evcxr-$NB_PATH_HASH" "${TMPDIR:-/tmp}/nbcheck-evcxr-$NB_PATH_HASH")
+NB_OLD_CACHE="$NB_STATE/cache"
 # cargo/rustup/evcxr_jupyter live in CARGO_HOME/bin (default ~/.cargo/bin).
 case ":$PATH:" in
   *":${CARGO_HOME:-$HOME/.cargo}/bin:"*) ;;

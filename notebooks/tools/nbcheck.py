@@ -80,10 +80,12 @@ ROOT = Path(__file__).resolve().parents[2]
 # evcxr's build folder (EVCXR_TMPDIR). Not inside the repo: cargo parses every
 # Cargo.toml above a package while looking for a workspace (a repo manifest
 # with a [workspace] table, or a broken one, would break evcxr's build) and
-# applies every .cargo/config.toml above the build folder.
+# applies every .cargo/config.toml above the build folder. "v2": the layout
+# without evcxr's compilation cache (env.sh says why); set-up removes the
+# earlier layout's folder.
 BUILD_DIR = Path(
     os.environ.get("NBCHECK_BUILD_DIR")
-    or Path(tempfile.gettempdir()) / f"nbcheck-evcxr-{hashlib.sha256(str(ROOT).encode()).hexdigest()[:12]}"
+    or Path(tempfile.gettempdir()) / f"nbcheck-evcxr-v2-{hashlib.sha256(str(ROOT).encode()).hexdigest()[:12]}"
 ).resolve()
 LOCK_FILE = BUILD_DIR.with_name(BUILD_DIR.name + ".lock")
 KERNEL_LOG = ROOT / "target" / "nbcheck" / "kernel.log"

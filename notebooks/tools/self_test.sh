@@ -53,6 +53,21 @@ run() {
 
 NB_WARM=0 bash "$NB_TOOLS/setup.sh" || { echo "self-test: setup failed"; echo "self-test: 0 passed, 1 failed"; exit 1; }
 
+# 0a. evcxr's compilation cache stays off (env.sh says why: a build folder
+# that mixed crates from the cache with crates it compiled itself failed
+# with E0460 in CI).
+cache_log="$work/cache.log"
+if grep -qs '^[[:space:]]*:cache' "$ROOT/target/jupyter/evcxr-config/init.evcxr" \
+   || grep -qs 'XDG_CACHE_HOME' "$ROOT/target/jupyter/kernels/rust/kernel.json"; then
+  { echo "init.evcxr or kernel.json turns on evcxr's compilation cache:"; cat "$ROOT/target/jupyter/evcxr-config/init.evcxr" "$ROOT/target/jupyter/kernels/rust/kernel.json"; } >"$cache_log" 2>&1
+  fail "evcxr's compilation cache is off" "$cache_log"
+elif [ ! -f "$ROOT/target/jupyter/kernels/rust/kernel.json" ]; then
+  echo "no kernel.json after set-up" >"$cache_log"
+  fail "evcxr's compilation cache is off" "$cache_log"
+else
+  pass "evcxr's compilation cache is off"
+fi
+
 # 0. Each kind of breakage, planted as cells with a kernel's outputs, fails
 # for its own reason (no kernel needed; notebooks/tools/planted.py) ---------
 planted_log="$work/planted.log"

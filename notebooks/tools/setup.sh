@@ -5,9 +5,8 @@
 #                          (notebooks/tools/requirements.txt)
 #   target/jupyter         the evcxr kernelspec ("rust", started through its
 #                          start-kernel.sh), Jupyter's runtime and config
-#                          folders, an evcxr config folder whose init.evcxr
-#                          turns on evcxr's compilation cache (in
-#                          target/jupyter/cache/evcxr)
+#                          folders, an evcxr config folder of our own (an
+#                          empty init.evcxr)
 #
 # and, outside the repo, only what the Rust toolchain itself owns:
 # `cargo install evcxr_jupyter --locked --version 0.22.0` when it is missing,
@@ -92,20 +91,20 @@ fi
 # 4. The kernelspec, in our own Jupyter folder --------------------------------
 # evcxr_jupyter --install writes the kernelspec (and its logos); then its
 # kernel.json is replaced by ours, which starts the kernel through
-# start-kernel.sh (written here) with evcxr's compilation cache turned on:
+# start-kernel.sh (written here):
 #
 # - every kernel, however Jupyter was started, gets EVCXR_CONFIG_DIR (our
-#   init.evcxr: `:cache $NB_EVCXR_CACHE_MIB`, evcxr's cache of compiled
-#   crates) and XDG_CACHE_HOME (so that cache is target/jupyter/cache/evcxr);
+#   empty init.evcxr, so a user's own cannot change outputs; evcxr's
+#   compilation cache stays off, for the reason env.sh gives);
 # - start-kernel.sh gives the kernel a build folder that outlives it
 #   (EVCXR_TMPDIR; evcxr's default is a new folder per kernel, deleted at
 #   shutdown): the first free one of 8 slots under $NB_BUILD_SLOTS, held with
-#   flock for the kernel's life, so two kernels never share one. The cache
-#   alone would not do: evcxr does not cache crates compiled incrementally,
-#   and cargo compiles a path dependency such as `stratanet = { path = ".." }`
-#   incrementally. A caller that sets EVCXR_TMPDIR itself (nbcheck) keeps it.
-mkdir -p "$JUPYTER_RUNTIME_DIR" "$JUPYTER_CONFIG_DIR" "$EVCXR_CONFIG_DIR" "$NB_CACHE_HOME"
-printf ':cache %s\n' "$NB_EVCXR_CACHE_MIB" >"$EVCXR_CONFIG_DIR/init.evcxr"
+#   flock for the kernel's life, so two kernels never share one. Cargo's own
+#   change tracking then decides what a later kernel recompiles: nothing,
+#   unless the crate or a `:dep` line changed. A caller that sets
+#   EVCXR_TMPDIR itself (nbcheck) keeps it.
+mkdir -p "$JUPYTER_RUNTIME_DIR" "$JUPYTER_CONFIG_DIR" "$EVCXR_CONFIG_DIR"
+: >"$EVCXR_CONFIG_DIR/init.evcxr"
 spec_dir="$JUPYTER_PATH/kernels/$NB_KERNEL"
 kernel_json="$spec_dir/kernel.json"
 starter="$spec_dir/start-kernel.sh"
@@ -128,8 +127,9 @@ if [ -z "\${EVCXR_TMPDIR:-}" ] && command -v flock >/dev/null 2>&1; then
     if flock -n 9; then
       export EVCXR_TMPDIR="$NB_BUILD_SLOTS/slot-\$slot"
       mkdir -p "\$EVCXR_TMPDIR"
-      # The same dependency versions as cargo build, until a notebook adds some.
-      [ -f "\$EVCXR_TMPDIR/Cargo.lock" ] || cp "$NB_ROOT/Cargo.lock" "\$EVCXR_TMPDIR/" 2>/dev/null || true
+      # The same dependency versions as cargo build (copied at every start,
+      # so a pull that changes them reaches the kernel too).
+      cp "$NB_ROOT/Cargo.lock" "\$EVCXR_TMPDIR/" 2>/dev/null || true
       break
     fi
     exec 9>&-
@@ -138,26 +138,26 @@ fi
 exec "$exe" --control_file "\$1"
 EOF
 )
-want_json=$("$NB_PY" - "$starter" "$EVCXR_CONFIG_DIR" "$NB_CACHE_HOME" <<'PY'
+want_json=$("$NB_PY" - "$starter" "$EVCXR_CONFIG_DIR" <<'PY'
 import json, sys
-starter, config, cache = sys.argv[1:]
+starter, config = sys.argv[1:]
 print(json.dumps({
     "argv": ["bash", starter, "{connection_file}"],
     "display_name": "Rust",
     "interrupt_mode": "message",
     "language": "rust",
-    "env": {"EVCXR_CONFIG_DIR": config, "XDG_CACHE_HOME": cache},
+    "env": {"EVCXR_CONFIG_DIR": config},
 }, indent=2))
 PY
 )
 if [ "$(cat "$kernel_json")" = "$want_json" ] \
    && [ -f "$starter" ] && [ "$(cat "$starter")" = "$want_starter" ]; then
-  say "ok: kernel '$NB_KERNEL' registered in $JUPYTER_PATH/kernels (compilation cache on)"
+  say "ok: kernel '$NB_KERNEL' registered in $JUPYTER_PATH/kernels (build folders that outlive a kernel)"
 else
   printf '%s\n' "$want_starter" >"$starter"
   printf '%s\n' "$want_json" >"$kernel_json"
   say "registered kernel '$NB_KERNEL' in $JUPYTER_PATH/kernels (started by $starter, then $exe;" \
-    "evcxr's cache in $NB_EVCXR_CACHE, build folders in $NB_BUILD_SLOTS)"
+    "build folders in $NB_BUILD_SLOTS)"
 fi
 
 # 5. Prove the client finds that kernel, and only ours -------------------------
@@ -172,13 +172,39 @@ case "$found" in
   *) echo "setup: jupyter_client resolves kernel '$NB_KERNEL' to $found, not $JUPYTER_PATH/kernels/$NB_KERNEL" >&2; exit 1 ;;
 esac
 
+# 5b. Folders of the earlier layout --------------------------------------------
+# Earlier set-ups turned on evcxr's compilation cache, which could leave a
+# build folder holding crates that do not fit together (env.sh says why).
+# Remove this checkout's cache and its build folders of that layout, unless
+# a kernel or a checker still holds one (then say so and leave it).
+if [ -d "$NB_OLD_CACHE" ]; then
+  rm -rf "$NB_OLD_CACHE"
+  say "removed evcxr's compilation cache of an earlier set-up ($NB_OLD_CACHE)"
+fi
+for old in "${NB_OLD_BUILD_DIRS[@]}"; do
+  [ -e "$old" ] || [ -e "$old.lock" ] || continue
+  busy=""
+  if command -v flock >/dev/null 2>&1; then
+    for lock in "$old.lock" "$old"/slot-*.lock; do
+      [ -f "$lock" ] || continue
+      flock -n "$lock" true || { busy=$lock; break; }
+    done
+  fi
+  if [ -n "$busy" ]; then
+    say "warning: left $old of an earlier set-up in place: $busy is held (a kernel or checker is running); rerun set-up when it ends"
+  else
+    rm -rf "$old" "$old.lock"
+    say "removed the build folder of an earlier set-up ($old)"
+  fi
+done
+
 # 6. Warm the first build folder ------------------------------------------------
 # A user's first kernel would otherwise compile the crate and its
 # dependencies from nothing in its first cell (minutes on 2 cores;
 # BENCHMARKS.md, "Notebook start-up"). Here, once, a kernel started exactly as Jupyter
 # starts one runs each `:dep` line the notebooks use (without default
 # features, as the README documents, and with the command line only, as
-# one-line-steps.ipynb needs), so the first free build folder and evcxr's cache hold every
+# one-line-steps.ipynb needs), so the first free build folder holds every
 # compiled crate. When they are already warm this takes about 15 s a line
 # (kernel start, the cell, shut-down).
 # NB_WARM=0 skips it (the checker's self-test and the start-up benchmark,
