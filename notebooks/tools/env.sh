@@ -28,6 +28,7 @@ export JUPYTER_PLATFORM_DIRS=1
 # writes under the build folder), so a build folder that mixed crates from
 # the cache with crates it compiled itself failed with E0460 ("found possibly
 # newer version of crate `serde_core` which `csv` depends on"); CI saw it.
+export EVCXR_CONFIG_DIR="$NB_STATE/evcxr-config"
 #
 # Build folders that outlive a kernel (EVCXR_TMPDIR), one per kernel running
 # at the same time, so a later kernel finds the crate already compiled. Not
