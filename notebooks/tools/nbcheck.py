@@ -283,8 +283,9 @@ def build_dir_is_cold() -> bool:
 
 
 def prepare_build_dir(fresh: bool) -> bool:
-    """evcxr builds in EVCXR_TMPDIR; we keep it in target/ so later runs reuse
-    compiled dependencies, and seed it with the repo's Cargo.lock so `:dep`
+    """evcxr builds in EVCXR_TMPDIR; we keep one (BUILD_DIR) between runs so
+    later runs reuse compiled dependencies, and seed it with the repo's
+    Cargo.lock so `:dep`
     resolves the same dependency versions as `cargo build` does."""
     if fresh and BUILD_DIR.exists():
         shutil.rmtree(BUILD_DIR)
