@@ -37,8 +37,11 @@ export EVCXR_CONFIG_DIR="$NB_STATE/evcxr-config"
 # checkout's folders of the earlier layout (NB_OLD_BUILD_DIRS), which may hold
 # such a mix.
 NB_PATH_HASH=$(printf '%s' "$NB_ROOT" | sha256sum | cut -c1-12)
-NB_BUILD_SLOTS="${TMPDIR:-/tmp}/stratanet-evcxr-v2-$NB_PATH_HASH"
-NB_OLD_BUILD_DIRS=("${TMPDIR:-/tmp}/stratanet-evcxr-$NB_PATH_HASH" "${TMPDIR:-/tmp}/nbcheck-evcxr-$NB_PATH_HASH")
+# The checker (nbcheck.py) takes a free one of the same folders, so it starts
+# from what set-up compiled.
+export NB_BUILD_SLOTS="${TMPDIR:-/tmp}/stratanet-evcxr-v2-$NB_PATH_HASH"
+export NB_SLOT_COUNT=8
+NB_OLD_BUILD_DIRS=("${TMPDIR:-/tmp}/stratanet-evcxr-$NB_PATH_HASH" "${TMPDIR:-/tmp}/nbcheck-evcxr-$NB_PATH_HASH" "${TMPDIR:-/tmp}/nbcheck-evcxr-v2-$NB_PATH_HASH")
 NB_OLD_CACHE="$NB_STATE/cache"
 # cargo/rustup/evcxr_jupyter live in CARGO_HOME/bin (default ~/.cargo/bin).
 case ":$PATH:" in

@@ -67,7 +67,6 @@ import re
 import shutil
 import subprocess
 import sys
-import tempfile
 import time
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -77,17 +76,17 @@ from nbclient import NotebookClient
 from nbclient.exceptions import CellTimeoutError, DeadKernelError
 
 ROOT = Path(__file__).resolve().parents[2]
-# evcxr's build folder (EVCXR_TMPDIR). Not inside the repo: cargo parses every
-# Cargo.toml above a package while looking for a workspace (a repo manifest
-# with a [workspace] table, or a broken one, would break evcxr's build) and
-# applies every .cargo/config.toml above the build folder. "v2": the layout
-# without evcxr's compilation cache (env.sh says why); set-up removes the
-# earlier layout's folder.
-BUILD_DIR = Path(
-    os.environ.get("NBCHECK_BUILD_DIR")
-    or Path(tempfile.gettempdir()) / f"nbcheck-evcxr-v2-{hashlib.sha256(str(ROOT).encode()).hexdigest()[:12]}"
-).resolve()
-LOCK_FILE = BUILD_DIR.with_name(BUILD_DIR.name + ".lock")
+# evcxr's build folder (EVCXR_TMPDIR): one of the build folders set-up gives
+# the kernels Jupyter starts (env.sh's NB_BUILD_SLOTS and NB_SLOT_COUNT;
+# check.sh sources env.sh), so a check starts from what set-up compiled
+# there. take_lock picks the first free one and holds its lock for the whole
+# run, the lock start-kernel.sh takes, so a checker and a kernel never share
+# a folder. $NBCHECK_BUILD_DIR names a folder of its own instead. Outside the
+# repo: cargo parses every Cargo.toml above a package while looking for a
+# workspace (a repo manifest with a [workspace] table, or a broken one, would
+# break evcxr's build) and applies every .cargo/config.toml above the build
+# folder.
+BUILD_DIR: Path | None = None  # set by take_lock
 KERNEL_LOG = ROOT / "target" / "nbcheck" / "kernel.log"
 # Where notebooks write (`../target/notebook-scratch/STEM/...` from
 # notebooks/). A check runs them in an empty one, so a rerun starts where a
@@ -283,10 +282,9 @@ def build_dir_is_cold() -> bool:
 
 
 def prepare_build_dir(fresh: bool) -> bool:
-    """evcxr builds in EVCXR_TMPDIR; we keep one (BUILD_DIR) between runs so
-    later runs reuse compiled dependencies, and seed it with the repo's
-    Cargo.lock so `:dep`
-    resolves the same dependency versions as `cargo build` does."""
+    """evcxr builds in EVCXR_TMPDIR (BUILD_DIR), kept between runs so later
+    runs reuse compiled dependencies, and seeded with the repo's Cargo.lock so
+    `:dep` resolves the same dependency versions as `cargo build` does."""
     if fresh and BUILD_DIR.exists():
         shutil.rmtree(BUILD_DIR)
     cold = build_dir_is_cold()
@@ -898,14 +896,38 @@ def expand(paths: list[str]) -> list[Path]:
     return [p.resolve() for p in result]
 
 
+def build_dir_candidates() -> list[Path]:
+    """The build folders a run may take, in order (see BUILD_DIR)."""
+    if os.environ.get("NBCHECK_BUILD_DIR"):
+        return [Path(os.environ["NBCHECK_BUILD_DIR"]).resolve()]
+    slots = os.environ.get("NB_BUILD_SLOTS")
+    if not slots:
+        sys.exit("nbcheck: NB_BUILD_SLOTS is not set: run nbcheck through notebooks/tools/check.sh "
+                 "(or set NBCHECK_BUILD_DIR to a build folder of its own)")
+    return [Path(slots) / f"slot-{i}" for i in range(int(os.environ.get("NB_SLOT_COUNT", "8")))]
+
+
 def take_lock():
-    LOCK_FILE.parent.mkdir(parents=True, exist_ok=True)
-    handle = open(LOCK_FILE, "w")
-    try:
-        fcntl.flock(handle, fcntl.LOCK_EX | fcntl.LOCK_NB)
-    except BlockingIOError:
-        out(f"nbcheck: another nbcheck holds {rel(LOCK_FILE)} (it shares the evcxr build folder); waiting")
+    """Takes the first free build folder (its lock, `NAME.lock` beside it) and
+    sets BUILD_DIR; waits for the first when all are held."""
+    global BUILD_DIR
+    candidates = build_dir_candidates()
+    candidates[0].parent.mkdir(parents=True, exist_ok=True)
+    handle = None
+    for folder in candidates:
+        handle = open(folder.with_name(folder.name + ".lock"), "w")
+        try:
+            fcntl.flock(handle, fcntl.LOCK_EX | fcntl.LOCK_NB)
+            BUILD_DIR = folder
+            break
+        except BlockingIOError:
+            handle.close()
+    else:
+        folder = candidates[0]
+        handle = open(folder.with_name(folder.name + ".lock"), "w")
+        out(f"nbcheck: every build folder under {folder.parent} is in use (kernels or another nbcheck); waiting for {folder.name}")
         fcntl.flock(handle, fcntl.LOCK_EX)
+        BUILD_DIR = folder
     KERNEL_LOG.parent.mkdir(parents=True, exist_ok=True)
     KERNEL_LOG.write_text("", encoding="utf-8")  # one log per nbcheck run
     return handle
@@ -1020,7 +1042,8 @@ def main(argv=None) -> int:
                        help=f"fail (not just warn) on stderr output in a cell not tagged {STDERR_TAG} "
                             "(or set NBCHECK_STRICT_STDERR=1)")
         p.add_argument("--fresh", action="store_true",
-                       help=f"delete evcxr's build folder ({BUILD_DIR}, or $NBCHECK_BUILD_DIR) first: a cold :dep compile")
+                       help="delete the build folder the run takes (a kernel build folder that set-up made, "
+                            "or $NBCHECK_BUILD_DIR) first: a cold :dep compile")
         p.add_argument("--save-to", type=Path, metavar="DIR",
                        help="save each executed notebook (normalised) in DIR, and the files the notebooks wrote "
                             "in DIR/written, for a reviewer to open (DIR outside the repository, or under target/)")

@@ -57,12 +57,13 @@ NB_WARM=0 bash "$NB_TOOLS/setup.sh" || { echo "self-test: setup failed"; echo "s
 # that mixed crates from the cache with crates it compiled itself failed
 # with E0460 in CI).
 cache_log="$work/cache.log"
-if grep -qs '^[[:space:]]*:cache' "$ROOT/target/jupyter/evcxr-config/init.evcxr" \
-   || grep -qs 'XDG_CACHE_HOME' "$ROOT/target/jupyter/kernels/rust/kernel.json"; then
-  { echo "init.evcxr or kernel.json turns on evcxr's compilation cache:"; cat "$ROOT/target/jupyter/evcxr-config/init.evcxr" "$ROOT/target/jupyter/kernels/rust/kernel.json"; } >"$cache_log" 2>&1
+init="$ROOT/target/jupyter/evcxr-config/init.evcxr"
+spec="$ROOT/target/jupyter/kernels/rust/kernel.json"
+if [ ! -f "$init" ] || [ ! -f "$spec" ]; then
+  echo "set-up wrote no $init or $spec" >"$cache_log"
   fail "evcxr's compilation cache is off" "$cache_log"
-elif [ ! -f "$ROOT/target/jupyter/kernels/rust/kernel.json" ]; then
-  echo "no kernel.json after set-up" >"$cache_log"
+elif grep -q '^[[:space:]]*:cache' "$init" || grep -q 'XDG_CACHE_HOME' "$spec"; then
+  { echo "init.evcxr or kernel.json turns on evcxr's compilation cache:"; cat "$init" "$spec"; } >"$cache_log" 2>&1
   fail "evcxr's compilation cache is off" "$cache_log"
 else
   pass "evcxr's compilation cache is off"

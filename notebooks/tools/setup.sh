@@ -98,7 +98,7 @@ fi
 #   compilation cache stays off, for the reason env.sh gives);
 # - start-kernel.sh gives the kernel a build folder that outlives it
 #   (EVCXR_TMPDIR; evcxr's default is a new folder per kernel, deleted at
-#   shutdown): the first free one of 8 slots under $NB_BUILD_SLOTS, held with
+#   shutdown): the first free one of $NB_SLOT_COUNT slots under $NB_BUILD_SLOTS, held with
 #   flock for the kernel's life, so two kernels never share one. Cargo's own
 #   change tracking then decides what a later kernel recompiles: nothing,
 #   unless the crate or a `:dep` line changed. A caller that sets
@@ -122,7 +122,7 @@ want_starter=$(cat <<EOF
 set -euo pipefail
 if [ -z "\${EVCXR_TMPDIR:-}" ] && command -v flock >/dev/null 2>&1; then
   mkdir -p "$NB_BUILD_SLOTS"
-  for slot in 0 1 2 3 4 5 6 7; do
+  for slot in $(seq -s ' ' 0 $((NB_SLOT_COUNT - 1))); do
     exec 9>"$NB_BUILD_SLOTS/slot-\$slot.lock"
     if flock -n 9; then
       export EVCXR_TMPDIR="$NB_BUILD_SLOTS/slot-\$slot"
