@@ -362,6 +362,18 @@ fn draw(x: &Array2<f64>, y: &Array2<f64>, net: &Network, spec: &Spec) {
 fn main() {
     let args: Vec<String> = std::env::args().skip(1).collect();
     let cmd = args.first().map(String::as_str).unwrap_or("");
+    let wanted = match cmd {
+        "kernel" => 1,
+        "prepare" | "prepare-csv" | "csv" => 2,
+        "train" | "predict" | "cv" | "draw" => 4,
+        _ => usize::MAX,
+    };
+    if args.len() != wanted {
+        eprintln!("bench: a benchmark harness for bench/run.sh; usage (see the module docs):");
+        eprintln!("  bench prepare DIR | prepare-csv FILE | csv FILE | kernel");
+        eprintln!("  bench train|predict|cv|draw DIR THREADS fast|portable");
+        std::process::exit(2);
+    }
     if cmd == "prepare" {
         prepare(Path::new(&args[1]));
         return;
